@@ -1,0 +1,63 @@
+//! Pieces shared by the commands: loading the graph, resolving names, and
+//! writing output safely.
+
+use causeway::graph::{self, Graph};
+use causeway::{Error, Result};
+use std::path::Path;
+
+/// Reads and parses a graph file, printing its warnings to stderr.
+pub fn load_graph(path: &Path, quiet: bool) -> Result<Graph> {
+    let bytes = std::fs::read(path).map_err(|e| Error::io(path, e))?;
+    let parsed = graph::parse_bytes(&bytes, &path.display().to_string())?;
+    if !quiet {
+        for w in &parsed.warnings {
+            eprintln!("causeway: warning: {w}");
+        }
+    }
+    Ok(parsed.graph)
+}
+
+/// Splits a comma-separated flag value into trimmed, non-empty names.
+pub fn split_list(s: &str) -> Vec<String> {
+    s.split(',')
+        .map(|x| x.trim().to_string())
+        .filter(|x| !x.is_empty())
+        .collect()
+}
+
+/// The node called `name`, or an error naming the flag.
+pub fn resolve(g: &Graph, name: &str, flag: &str) -> Result<usize> {
+    g.node(name).ok_or_else(|| {
+        Error::input(format!(
+            "{flag} '{name}' is not a node of the graph (nodes are matched to names exactly, case-sensitive)"
+        ))
+    })
+}
+
+/// Writes `text` to `path` through a temporary file in the same folder,
+/// renamed into place; refuses to write over any of `inputs`.
+pub fn write_atomic(path: &Path, text: &[u8], inputs: &[&Path]) -> Result<()> {
+    for input in inputs {
+        if same_file(path, input) {
+            return Err(Error::input(format!(
+                "refusing to write {}: it is an input file",
+                path.display()
+            )));
+        }
+    }
+    let dir = match path.parent() {
+        Some(d) if !d.as_os_str().is_empty() => d,
+        _ => Path::new("."),
+    };
+    let mut tmp = tempfile::NamedTempFile::new_in(dir).map_err(|e| Error::io(dir, e))?;
+    std::io::Write::write_all(&mut tmp, text).map_err(|e| Error::io(path, e))?;
+    tmp.persist(path).map_err(|e| Error::io(path, e.error))?;
+    Ok(())
+}
+
+fn same_file(a: &Path, b: &Path) -> bool {
+    match (std::fs::canonicalize(a), std::fs::canonicalize(b)) {
+        (Ok(x), Ok(y)) => x == y,
+        _ => a == b,
+    }
+}

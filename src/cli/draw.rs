@@ -1,0 +1,75 @@
+//! `causeway draw`: the graph as an SVG figure or DOT text.
+
+use super::common::{load_graph, resolve, split_list, write_atomic};
+use causeway::Result;
+use causeway::report::graph_figure::{self, Marks};
+use std::path::PathBuf;
+
+/// Draw the graph, with the exposure, outcome, adjustment set and
+/// unobserved nodes marked.
+///
+/// Example:
+///   causeway draw --graph study.graph --exposure enrolled --outcome pain_days \
+///       --adjust age,role --format svg --output graph.svg
+#[derive(clap::Args)]
+#[command(verbatim_doc_comment)]
+pub struct Args {
+    /// The graph file (plain-text edge list).
+    #[arg(long, value_name = "FILE")]
+    graph: PathBuf,
+    /// The exposure (drawn on the left).
+    #[arg(long, value_name = "NAME")]
+    exposure: Option<String>,
+    /// The outcome (drawn on the right).
+    #[arg(long, value_name = "NAME")]
+    outcome: Option<String>,
+    /// Nodes to mark as adjusted for, comma-separated.
+    #[arg(long, value_name = "A,B")]
+    adjust: Option<String>,
+    /// Nodes to mark as unobserved, comma-separated.
+    #[arg(long, value_name = "A,B")]
+    latent: Option<String>,
+    /// svg (a figure) or dot (text for graph-drawing tools).
+    #[arg(long, default_value = "svg", value_parser = ["svg", "dot"])]
+    format: String,
+    /// Write to this file instead of standard output.
+    #[arg(long, short, value_name = "FILE")]
+    output: Option<PathBuf>,
+    /// Print no warnings.
+    #[arg(long)]
+    quiet: bool,
+}
+
+/// Runs the command.
+pub fn run(a: Args) -> Result<i32> {
+    let mut g = load_graph(&a.graph, a.quiet)?;
+    for name in a.latent.as_deref().map(split_list).unwrap_or_default() {
+        let v = resolve(&g, &name, "--latent")?;
+        g.set_latent(v, true);
+    }
+    let mut marks = Marks {
+        exposure: a
+            .exposure
+            .as_deref()
+            .map(|n| resolve(&g, n, "--exposure"))
+            .transpose()?,
+        outcome: a
+            .outcome
+            .as_deref()
+            .map(|n| resolve(&g, n, "--outcome"))
+            .transpose()?,
+        adjust: Vec::new(),
+    };
+    for name in a.adjust.as_deref().map(split_list).unwrap_or_default() {
+        marks.adjust.push(resolve(&g, &name, "--adjust")?);
+    }
+    let text = match a.format.as_str() {
+        "dot" => graph_figure::dot(&g, &marks),
+        _ => graph_figure::svg(&g, &marks),
+    };
+    match &a.output {
+        Some(path) => write_atomic(path, text.as_bytes(), &[&a.graph])?,
+        None => print!("{text}"),
+    }
+    Ok(0)
+}

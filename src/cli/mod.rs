@@ -1,0 +1,66 @@
+//! Command-line front end: one file per command, each with its clap
+//! arguments and a `run` function. This module dispatches and maps errors to
+//! exit codes; all computing happens in the library.
+
+use causeway::Error;
+use clap::{Parser, Subcommand};
+use std::io::Write;
+
+mod common;
+mod draw;
+
+/// Estimate the causal effect of an exposure on an outcome from
+/// observational data, under a causal graph you declare.
+///
+/// Every estimate is only as valid as the declared graph and the usual
+/// assumptions (no unmeasured confounding beyond the graph, positivity,
+/// consistency, correctly specified models). It does not replace study design
+/// review, subject-matter and clinical judgement, or the ethics and reporting
+/// rules that apply to your work.
+#[derive(Parser)]
+#[command(name = "causeway", version, propagate_version = true, max_term_width = 100)]
+struct Cli {
+    #[command(subcommand)]
+    command: Command,
+}
+
+#[derive(Subcommand)]
+enum Command {
+    Draw(draw::Args),
+}
+
+/// Runs the command line and returns the process exit code.
+pub fn main() -> i32 {
+    let cli = match Cli::try_parse() {
+        Ok(c) => c,
+        Err(e) => {
+            let _ = e.print();
+            return match e.kind() {
+                clap::error::ErrorKind::DisplayHelp | clap::error::ErrorKind::DisplayVersion => 0,
+                _ => 2,
+            };
+        }
+    };
+    // A panic is a bug: report it as an internal error (exit 1), never 101.
+    std::panic::set_hook(Box::new(|info| {
+        eprintln!("causeway: internal error (please report it): {info}");
+    }));
+    let outcome = std::panic::catch_unwind(move || match cli.command {
+        Command::Draw(a) => draw::run(a),
+    });
+    match outcome {
+        Ok(Ok(code)) => code,
+        Ok(Err(e)) => report_error(&e),
+        Err(_) => 1,
+    }
+}
+
+fn report_error(e: &Error) -> i32 {
+    let mut err = std::io::stderr().lock();
+    let label = match e {
+        Error::NotIdentified(_) => "not identified",
+        _ => "error",
+    };
+    let _ = writeln!(err, "causeway: {label}: {e}");
+    e.exit_code()
+}

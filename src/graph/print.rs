@@ -1,0 +1,82 @@
+//! Writes a graph back in the graph-file syntax, so that parsing the output
+//! gives the same graph.
+
+use super::{Coef, Graph, Node};
+use std::fmt::Write;
+
+/// A node name, quoted when it is not a bare word.
+pub fn quote(name: &str) -> String {
+    let bare = !name.is_empty() && name.chars().all(|c| c.is_alphanumeric() || c == '_' || c == '.');
+    if bare {
+        name.to_string()
+    } else {
+        format!("\"{}\"", name.replace('\\', "\\\\").replace('"', "\\\""))
+    }
+}
+
+fn coef_text(c: &Coef) -> String {
+    match c {
+        Coef::Value(v) => format!(" ({v})"),
+        Coef::Levels(l) => {
+            let items: Vec<String> = l.iter().map(|(k, v)| format!("{} {v}", quote(k))).collect();
+            format!(" ({})", items.join(", "))
+        }
+    }
+}
+
+impl Graph {
+    /// The graph as graph-file text: attributes, lone nodes, then edges.
+    /// Latent nodes made by `a <-> b` are written back as `a <-> b`.
+    pub fn to_text(&self) -> String {
+        let mut out = String::new();
+        let generated = |v: Node| self.bidirected_pair(v).is_some();
+        for v in 0..self.len() {
+            if generated(v) {
+                continue;
+            }
+            let s = self.spec(v);
+            let mut attrs = Vec::new();
+            if s.binary {
+                attrs.push("binary".to_string());
+            }
+            for (key, val) in [
+                ("intercept", s.intercept),
+                ("sd", s.sd),
+                ("min", s.min),
+                ("max", s.max),
+            ] {
+                if let Some(x) = val {
+                    attrs.push(format!("{key}={x}"));
+                }
+            }
+            if let Some(r) = s.round {
+                attrs.push(format!("round={r}"));
+            }
+            if !s.levels.is_empty() {
+                let items: Vec<String> = s
+                    .levels
+                    .iter()
+                    .map(|(k, p)| format!("{} {p}", quote(k)))
+                    .collect();
+                attrs.push(format!("levels({})", items.join(", ")));
+            }
+            if !attrs.is_empty() {
+                let _ = writeln!(out, "{} : {}", quote(self.name(v)), attrs.join(" "));
+            } else if self.parents(v).is_empty() && self.children(v).is_empty() {
+                let _ = writeln!(out, "{}", quote(self.name(v)));
+            }
+        }
+        for (a, b) in self.edges() {
+            if let Some((p, q)) = self.bidirected_pair(a) {
+                if b == p {
+                    let c = self.coef(a, b).map(coef_text).unwrap_or_default();
+                    let _ = writeln!(out, "{} <-> {}{c}", quote(self.name(p)), quote(self.name(q)));
+                }
+                continue;
+            }
+            let c = self.coef(a, b).map(coef_text).unwrap_or_default();
+            let _ = writeln!(out, "{} -> {}{c}", quote(self.name(a)), quote(self.name(b)));
+        }
+        out
+    }
+}

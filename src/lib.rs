@@ -1,0 +1,19 @@
+//! causeway: estimate the causal effect of an exposure on an outcome from
+//! observational data, under a causal graph that the analyst declares.
+//!
+//! The library is a one-way pipeline; each stage is a module that only uses
+//! the stages before it:
+//!
+//! graph file -> [`graph`] -> [`identify`] -> analysis plan -> [`data`] ->
+//! [`model`] -> [`estimate`] -> [`infer`] -> [`sensitivity`] -> [`report`].
+//!
+//! An estimate is only as valid as the declared graph and the usual
+//! assumptions (no unmeasured confounding beyond the graph, positivity,
+//! consistency, correctly specified models).
+#![warn(missing_docs)]
+
+pub mod error;
+pub mod graph;
+pub mod report;
+
+pub use error::{Error, Result};

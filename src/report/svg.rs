@@ -1,0 +1,102 @@
+//! A small SVG writer shared by every figure: escaping, a palette that
+//! stays readable in greyscale, and the few shapes the figures use.
+
+use std::fmt::Write;
+
+/// Ink colours: distinct in lightness as well as hue, so that figures print
+/// in greyscale.
+pub mod ink {
+    /// Text and axes.
+    pub const TEXT: &str = "#1d2430";
+    /// The exposure and the main series.
+    pub const DEEP: &str = "#0b4f6c";
+    /// The outcome and the second series.
+    pub const WARM: &str = "#c8781e";
+    /// Adjustment sets, highlights.
+    pub const PALE: &str = "#dcebd9";
+    /// Latent nodes, grid lines.
+    pub const MUTED: &str = "#8a93a0";
+    /// Background panels.
+    pub const PAPER: &str = "#f7f5f0";
+}
+
+/// Escapes text for SVG/XML content and attributes.
+pub fn esc(s: &str) -> String {
+    let mut out = String::with_capacity(s.len());
+    for c in s.chars() {
+        match c {
+            '&' => out.push_str("&amp;"),
+            '<' => out.push_str("&lt;"),
+            '>' => out.push_str("&gt;"),
+            '"' => out.push_str("&quot;"),
+            '\'' => out.push_str("&apos;"),
+            c if (c as u32) < 0x20 && c != '\n' && c != '\t' => out.push(' '),
+            c => out.push(c),
+        }
+    }
+    out
+}
+
+/// Approximate width of `s` in pixels at font size `size` (sans-serif).
+pub fn text_width(s: &str, size: f64) -> f64 {
+    s.chars().count() as f64 * size * 0.58
+}
+
+/// An SVG document being built.
+pub struct Svg {
+    body: String,
+    width: f64,
+    height: f64,
+}
+
+impl Svg {
+    /// A blank canvas of the given size in pixels.
+    pub fn new(width: f64, height: f64) -> Self {
+        Svg {
+            body: String::new(),
+            width,
+            height,
+        }
+    }
+
+    /// Appends raw SVG elements.
+    pub fn raw(&mut self, s: &str) {
+        self.body.push_str(s);
+        self.body.push('\n');
+    }
+
+    /// A text label; `anchor` is start, middle or end.
+    pub fn text(&mut self, x: f64, y: f64, size: f64, anchor: &str, style: &str, s: &str) {
+        let _ = writeln!(
+            self.body,
+            r#"<text x="{x:.1}" y="{y:.1}" font-size="{size}" text-anchor="{anchor}" {style}>{}</text>"#,
+            esc(s)
+        );
+    }
+
+    /// A straight line.
+    pub fn line(&mut self, x1: f64, y1: f64, x2: f64, y2: f64, style: &str) {
+        let _ = writeln!(
+            self.body,
+            r#"<line x1="{x1:.1}" y1="{y1:.1}" x2="{x2:.1}" y2="{y2:.1}" {style}/>"#
+        );
+    }
+
+    /// The finished document, with a title for accessibility.
+    pub fn finish(self, title: &str) -> String {
+        format!(
+            concat!(
+                r#"<?xml version="1.0" encoding="UTF-8"?>"#,
+                "\n",
+                r#"<svg xmlns="http://www.w3.org/2000/svg" width="{w:.0}" height="{h:.0}" viewBox="0 0 {w:.0} {h:.0}" font-family="Helvetica, Arial, sans-serif">"#,
+                "\n<title>{t}</title>\n",
+                r#"<rect width="100%" height="100%" fill="white"/>"#,
+                "\n{b}</svg>\n"
+            ),
+            w = self.width,
+            h = self.height,
+            t = esc(title),
+            b = self.body
+        )
+    }
+}
