@@ -1,0 +1,7 @@
+//! The integration tests: one binary, a module per topic. Each check against
+//! an outside value names its source beside it.
+
+mod helpers;
+
+mod cli_draw;
+mod graph_parse;
