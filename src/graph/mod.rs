@@ -11,10 +11,12 @@
 //! ball") algorithm of Shachter (1998) as presented in Koller & Friedman,
 //! *Probabilistic Graphical Models* (2009), Algorithm 3.1.
 
+mod diff;
 mod dsep;
 mod parse;
 mod print;
 
+pub use diff::{GraphDiff, diff};
 pub use parse::{ParseError, Parsed, Warning, parse, parse_bytes};
 pub use print::quote;
 

@@ -214,7 +214,7 @@ pub fn svg(g: &Graph, m: &Marks) -> String {
     let gap = COL_GAP.max(widest + 50.0);
     let legend_h = 46.0;
     let width = (max_c - min_c) * gap + 2.0 * margin;
-    let width = width.max(560.0);
+    let width = width.max(legend_width(m) + 40.0);
     let height = (max_r - min_r) * ROW_GAP + BOX_H + 90.0 + legend_h;
     let xy = |v: Node| {
         let (c, r) = pos[&v];
@@ -313,7 +313,9 @@ fn node_box(s: &mut Svg, name: &str, cx: f64, cy: f64, r: Role) {
     s.text(cx, cy + FONT * 0.36, FONT, "middle", &text_style, name);
 }
 
-fn legend(s: &mut Svg, y: f64, m: &Marks) {
+const LEGEND_NOTE: &str = "dashed arc: unmeasured common cause";
+
+fn legend_items(m: &Marks) -> Vec<(&'static str, Role)> {
     let mut items: Vec<(&str, Role)> = Vec::new();
     if m.exposure.is_some() {
         items.push(("exposure", Role::Exposure));
@@ -326,8 +328,17 @@ fn legend(s: &mut Svg, y: f64, m: &Marks) {
     }
     items.push(("unobserved", Role::Latent));
     items.push(("observed", Role::Plain));
+    items
+}
+
+fn legend_width(m: &Marks) -> f64 {
+    let boxes: f64 = legend_items(m).iter().map(|(l, _)| box_w(l) + 14.0).sum();
+    20.0 + boxes + 8.0 + text_width(LEGEND_NOTE, 11.0)
+}
+
+fn legend(s: &mut Svg, y: f64, m: &Marks) {
     let mut x = 20.0;
-    for (label, r) in items {
+    for (label, r) in legend_items(m) {
         let w = box_w(label);
         node_box(s, label, x + w / 2.0, y + BOX_H / 2.0, r);
         x += w + 14.0;

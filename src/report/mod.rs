@@ -1,5 +1,44 @@
-//! Output: text, JSON, CSV, Markdown and LaTeX tables, and SVG figures.
-//! Nothing here computes a statistic; it only lays out results.
+//! Output: text, JSON, CSV, Markdown and LaTeX, and SVG figures. Nothing
+//! here computes a statistic; it only lays out results.
+//!
+//! Commands lay out their results once as a [`doc::Doc`]; each format is one
+//! file implementing [`doc::Exporter`]. JSON is the serde form of the
+//! command's result struct.
 
+pub mod csv;
+pub mod doc;
 pub mod graph_figure;
+pub mod latex;
+pub mod markdown;
 pub mod svg;
+pub mod text;
+
+pub use doc::{Block, Doc, Exporter, Stamp, Table};
+
+/// The output formats of the table-producing commands.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum Format {
+    /// Plain text for the terminal.
+    Text,
+    /// JSON (the serde form of the result).
+    Json,
+    /// Markdown.
+    Markdown,
+    /// A LaTeX article.
+    Latex,
+    /// CSV tables.
+    Csv,
+}
+
+impl Format {
+    /// The exporter for a document format (None for JSON).
+    pub fn exporter(self) -> Option<Box<dyn Exporter>> {
+        match self {
+            Format::Text => Some(Box::new(text::Text)),
+            Format::Markdown => Some(Box::new(markdown::Markdown)),
+            Format::Latex => Some(Box::new(latex::Latex)),
+            Format::Csv => Some(Box::new(csv::Csv)),
+            Format::Json => None,
+        }
+    }
+}

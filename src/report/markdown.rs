@@ -1,0 +1,62 @@
+//! Markdown rendering (pipe tables), used for `--format markdown` and for
+//! the report bundle's report.md.
+
+use super::doc::{Align, Block, CAUTION, Doc, Exporter, Table};
+
+/// Renders documents as Markdown.
+pub struct Markdown;
+
+fn cell(s: &str) -> String {
+    s.replace('|', "\\|").replace('\n', " ")
+}
+
+/// A pipe table.
+pub fn table(t: &Table) -> String {
+    let mut out = String::new();
+    if !t.caption.is_empty() {
+        out.push_str(&format!("**{}**\n\n", cell(&t.caption)));
+    }
+    let heads: Vec<String> = t.headers.iter().map(|h| cell(h)).collect();
+    out.push_str(&format!("| {} |\n", heads.join(" | ")));
+    let rule: Vec<&str> = t
+        .align
+        .iter()
+        .map(|a| if *a == Align::Right { "---:" } else { ":---" })
+        .collect();
+    out.push_str(&format!("| {} |\n", rule.join(" | ")));
+    for r in &t.rows {
+        let cs: Vec<String> = r.iter().map(|c| cell(c)).collect();
+        out.push_str(&format!("| {} |\n", cs.join(" | ")));
+    }
+    for n in &t.notes {
+        out.push_str(&format!("\n{n}\n"));
+    }
+    out
+}
+
+impl Exporter for Markdown {
+    fn render(&self, doc: &Doc) -> String {
+        let mut out = format!("# {}\n", doc.title);
+        for b in &doc.blocks {
+            out.push('\n');
+            match b {
+                Block::Heading(h) => out.push_str(&format!("## {h}\n")),
+                Block::Para(p) => out.push_str(&format!("{p}\n")),
+                Block::List(items) => items.iter().for_each(|i| out.push_str(&format!("- {i}\n"))),
+                Block::Table(t) => out.push_str(&table(t)),
+                Block::Figure { path, caption } => {
+                    out.push_str(&format!("![{caption}]({path})\n\n*{caption}*\n"))
+                }
+                Block::Warning(w) => out.push_str(&format!("> **Warning.** {w}\n")),
+            }
+        }
+        out.push_str(&format!("\n## Cautions\n\n{CAUTION}\n"));
+        if let Some(s) = &doc.stamp {
+            out.push_str("\n---\n\n");
+            for l in s.lines() {
+                out.push_str(&format!("<sub>{}</sub><br>\n", cell(&l)));
+            }
+        }
+        out
+    }
+}
