@@ -12,6 +12,7 @@
 //! consistency, correctly specified models).
 #![warn(missing_docs)]
 
+pub mod check;
 pub mod error;
 pub mod graph;
 pub mod report;

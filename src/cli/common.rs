@@ -61,3 +61,45 @@ fn same_file(a: &Path, b: &Path) -> bool {
         _ => a == b,
     }
 }
+
+/// The output formats, as a flag value.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, clap::ValueEnum)]
+pub enum FormatArg {
+    /// Plain text for the terminal.
+    Text,
+    /// JSON with the keys of the command-line contract.
+    Json,
+    /// Markdown tables.
+    Markdown,
+    /// A LaTeX article with booktabs tables.
+    Latex,
+    /// CSV tables.
+    Csv,
+}
+
+impl From<FormatArg> for causeway::report::Format {
+    fn from(f: FormatArg) -> Self {
+        use causeway::report::Format;
+        match f {
+            FormatArg::Text => Format::Text,
+            FormatArg::Json => Format::Json,
+            FormatArg::Markdown => Format::Markdown,
+            FormatArg::Latex => Format::Latex,
+            FormatArg::Csv => Format::Csv,
+        }
+    }
+}
+
+/// The full command line, for the reproducibility stamp.
+pub fn command_line() -> String {
+    std::env::args()
+        .map(|a| {
+            if a.is_empty() || a.contains(|c: char| c.is_whitespace() || "'\"$;&|<>()*?".contains(c)) {
+                format!("'{}'", a.replace('\'', "'\\''"))
+            } else {
+                a
+            }
+        })
+        .collect::<Vec<_>>()
+        .join(" ")
+}
