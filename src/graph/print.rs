@@ -25,7 +25,8 @@ fn coef_text(c: &Coef) -> String {
 }
 
 impl Graph {
-    /// The graph as graph-file text: attributes, lone nodes, then edges.
+    /// The graph as graph-file text: attributes and lone nodes in declaration
+    /// order, then edges sorted by name, so equal graphs print the same.
     /// Latent nodes made by `a <-> b` are written back as `a <-> b`.
     pub fn to_text(&self) -> String {
         let mut out = String::new();
@@ -66,7 +67,9 @@ impl Graph {
                 let _ = writeln!(out, "{}", quote(self.name(v)));
             }
         }
-        for (a, b) in self.edges() {
+        let mut edges = self.edges();
+        edges.sort_by(|x, y| (self.name(x.0), self.name(x.1)).cmp(&(self.name(y.0), self.name(y.1))));
+        for (a, b) in edges {
             if let Some((p, q)) = self.bidirected_pair(a) {
                 if b == p {
                     let c = self.coef(a, b).map(coef_text).unwrap_or_default();
