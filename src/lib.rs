@@ -15,5 +15,6 @@
 pub mod error;
 pub mod graph;
 pub mod report;
+pub mod simulate;
 
 pub use error::{Error, Result};
