@@ -5,3 +5,4 @@ mod helpers;
 
 mod cli_draw;
 mod graph_parse;
+mod simulate;

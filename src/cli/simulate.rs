@@ -190,7 +190,13 @@ fn describe(t: &Truth) -> String {
         Method::PathRule => {
             s += "  by the path rule (Wright 1934): sum over directed paths of the products of their coefficients\n";
             for p in &t.paths {
-                s += &format!("    {}: {}\n", p.path.join(" -> "), short(p.product));
+                let factors: Vec<String> = p.coefficients.iter().map(|&c| short(c)).collect();
+                s += &format!(
+                    "    {}: {} = {}\n",
+                    p.path.join(" -> "),
+                    factors.join(" x "),
+                    short(p.product)
+                );
             }
             if (t.paths.len() as u64) < t.paths_total {
                 s += &format!("    ... {} paths in all\n", t.paths_total);

@@ -60,6 +60,8 @@ pub enum Contrast {
 pub struct PathTerm {
     /// Node names from exposure to outcome.
     pub path: Vec<String>,
+    /// The coefficient of each edge along the path.
+    pub coefficients: Vec<f64>,
     /// Product of the coefficients along the path.
     pub product: f64,
 }
@@ -141,13 +143,22 @@ impl Model {
         let paths_total = self.count_paths(x, &on_path, y);
         let reason = (0..g.len()).filter(|&v| on_path[v]).find_map(|v| {
             let eq = &self.eqs[v];
-            let name = g.name(v);
-            match eq.kind {
-                Kind::Binary => Some(format!("'{name}' is binary")),
-                _ if eq.round.is_some() => Some(format!("'{name}' is rounded")),
-                _ if eq.post_processed() => Some(format!("'{name}' is clipped (min=/max=)")),
-                _ => None,
-            }
+            let what = match eq.kind {
+                Kind::Binary => "binary",
+                _ if eq.round.is_some() => "rounded",
+                _ if eq.post_processed() => "clipped (min=/max=)",
+                _ => return None,
+            };
+            Some(if v == y {
+                format!("the outcome '{}' is {what}", g.name(v))
+            } else {
+                format!(
+                    "'{}' lies on a directed path from '{}' to '{}' and is {what}",
+                    g.name(v),
+                    g.name(x),
+                    g.name(y)
+                )
+            })
         });
         let base = Truth {
             exposure: g.name(x).to_string(),
@@ -174,11 +185,7 @@ impl Model {
                     method: Method::MonteCarlo,
                     mc_se: Some(se),
                     mc_draws: Some(opts.mc_draws),
-                    mc_reason: Some(format!(
-                        "{why} and lies on a directed path from '{}' to '{}', so the effect is not a sum of path products",
-                        g.name(x),
-                        g.name(y)
-                    )),
+                    mc_reason: Some(format!("{why}, so the effect is not a sum of path products")),
                     ..base
                 })
             }
@@ -240,13 +247,14 @@ impl Model {
             }
             if v == y {
                 let nodes: Vec<Node> = stack.iter().map(|&(u, _)| u).collect();
-                let product = nodes
+                let coefficients: Vec<f64> = nodes
                     .windows(2)
                     .map(|w| self.linear_coef(w[0], w[1]).unwrap_or(0.0))
-                    .product();
+                    .collect();
                 out.push(PathTerm {
                     path: g.names_of(&nodes),
-                    product,
+                    product: coefficients.iter().product(),
+                    coefficients,
                 });
                 stack.pop();
                 continue;
