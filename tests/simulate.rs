@@ -127,6 +127,12 @@ x -> y (0.9)
         t.effect
     );
     assert!(t.mc_reason.as_deref().unwrap().contains("outcome 'y' is binary"));
+    // Chunks have their own streams and are combined in order: one thread
+    // gives the same bits as many.
+    let one = rayon::ThreadPoolBuilder::new().num_threads(1).build().unwrap();
+    let t1 = one.install(|| simulate::true_effect(&g, x, y, &opts).unwrap());
+    assert_eq!(t1.effect.to_bits(), t.effect.to_bits());
+    assert_eq!(t1.mc_se, t.mc_se);
 }
 
 /// Rounding the outcome to 3 decimals forces Monte Carlo; with common random

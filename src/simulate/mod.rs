@@ -24,7 +24,7 @@
 //! Rounding and clipping make a node's equation non-linear, as does a binary
 //! node; when such a node lies on a directed path from the exposure to the
 //! outcome, [`true_effect`] computes the truth by Monte Carlo instead of the
-//! path rule (see [`truth`](self::true_effect)).
+//! path rule (see [`true_effect`]).
 //!
 //! Same seed, same numbers, on every platform: the generator is ChaCha8 with
 //! a documented key expansion, normals come from the polar method and the
