@@ -36,7 +36,7 @@ mod rng;
 mod truth;
 
 pub use csv::{format_number, write_csv};
-pub use truth::{Contrast, Method, PathTerm, Truth, TruthOptions, true_effect};
+pub use truth::{CHUNK, Contrast, MAX_PATHS, Method, PathTerm, Truth, TruthOptions, true_effect};
 
 use crate::graph::{Coef, Graph, Node};
 use crate::{Error, Result};
