@@ -16,5 +16,6 @@ pub mod check;
 pub mod error;
 pub mod graph;
 pub mod report;
+pub mod simulate;
 
 pub use error::{Error, Result};

@@ -6,3 +6,4 @@ mod helpers;
 mod cli_draw;
 mod graph_parse;
 mod graph_props;
+mod simulate;

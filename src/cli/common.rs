@@ -51,6 +51,13 @@ pub fn write_atomic(path: &Path, text: &[u8], inputs: &[&Path]) -> Result<()> {
     };
     let mut tmp = tempfile::NamedTempFile::new_in(dir).map_err(|e| Error::io(dir, e))?;
     std::io::Write::write_all(&mut tmp, text).map_err(|e| Error::io(path, e))?;
+    // A temporary file is private (0600); give the output the usual mode.
+    #[cfg(unix)]
+    {
+        use std::os::unix::fs::PermissionsExt;
+        let mode = std::fs::metadata(path).map(|m| m.permissions().mode()).unwrap_or(0o644);
+        let _ = tmp.as_file().set_permissions(std::fs::Permissions::from_mode(mode & 0o777));
+    }
     tmp.persist(path).map_err(|e| Error::io(path, e.error))?;
     Ok(())
 }

@@ -12,6 +12,7 @@
 //! role -> pain (warehouse 2, driver 3.5)   # per-level coefficients
 //! enrolled : binary intercept=-0.5         # node attributes for `simulate`
 //! role : levels(office 0.5, warehouse 0.3, driver 0.2)
+//! motivation : latent                      # unobserved: simulated, not output
 //! ```
 
 use super::{Coef, Graph, Node, NodeSpec};
@@ -426,20 +427,22 @@ impl State<'_> {
         }
     }
 
-    /// `: binary intercept=-1 sd=2 round=0 min=0 max=90 levels(a 0.5, b 0.5)`.
+    /// `: binary intercept=-1 sd=2 round=0 min=0 max=90 levels(a 0.5, b 0.5) latent`.
     fn attributes(&mut self, line: &mut Line, node: Node) -> Result<(), ParseError> {
         let mut spec = self.graph.spec(node).clone();
+        let mut latent = false;
         while !line.at_end() {
             let col = line.col();
             let Some(key) = line.word() else {
                 return Err(self.err(
                     line,
                     col,
-                    "expected an attribute: binary, intercept=, sd=, round=, min=, max= or levels(...)",
+                    "expected an attribute: binary, latent, intercept=, sd=, round=, min=, max= or levels(...)",
                 ));
             };
             match key.as_str() {
                 "binary" => spec.binary = true,
+                "latent" => latent = true,
                 "levels" => {
                     line.skip_ws();
                     let open = line.col();
@@ -471,12 +474,15 @@ impl State<'_> {
                     return Err(self.err(
                         line,
                         col,
-                        format!("unknown attribute '{other}': expected binary, intercept=, sd=, round=, min=, max= or levels(...)"),
+                        format!("unknown attribute '{other}': expected binary, latent, intercept=, sd=, round=, min=, max= or levels(...)"),
                     ));
                 }
             }
         }
         *self.graph.spec_mut(node) = NodeSpec { ..spec };
+        if latent {
+            self.graph.set_latent(node, true);
+        }
         Ok(())
     }
 }
@@ -562,5 +568,10 @@ mod tests {
         assert!(matches!(g.coef(role, y), Some(Coef::Levels(l)) if l.len() == 2));
         assert!(g.spec(x).binary);
         assert_eq!(g.spec(x).intercept, Some(-0.5));
+        assert!(!g.is_latent(x));
+        let p = parse("m -> y (1)\nm : latent sd=2\n", "g.txt").unwrap();
+        let m = p.graph.node("m").unwrap();
+        assert!(p.graph.is_latent(m));
+        assert_eq!(p.graph.spec(m).sd, Some(2.0));
     }
 }
