@@ -14,6 +14,8 @@
 
 pub mod error;
 pub mod graph;
+pub mod infer;
 pub mod report;
+pub mod sensitivity;
 
 pub use error::{Error, Result};

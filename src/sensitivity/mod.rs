@@ -1,0 +1,16 @@
+//! Sensitivity of an estimate to unmeasured confounding.
+//!
+//! - [`evalue`]: the E-value of VanderWeele and Ding (2017), on the
+//!   risk-ratio scale, with the usual conversions from odds ratios, hazard
+//!   ratios and standardized differences.
+//! - [`robustness`]: robustness values, bias-adjusted estimates and
+//!   benchmark bounds in terms of partial R², after Cinelli and Hazlett
+//!   (2020), for a linear-regression coefficient.
+//! - [`frontier`]: the tipping-point curves of both, sampled for a figure.
+//!
+//! These numbers describe how strong a confounder left out of the graph
+//! would have to be; they do not show that there is none.
+
+pub mod evalue;
+pub mod frontier;
+pub mod robustness;
