@@ -3,5 +3,6 @@
 
 mod helpers;
 
+mod bootstrap;
 mod cli_draw;
 mod graph_parse;

@@ -646,6 +646,37 @@ mod tests {
         assert_eq!(jackknife_groups(40, 1), (40, None));
     }
 
+    /// Above the threshold the grouped jackknife still estimates the
+    /// acceleration: for a mean the leave-one-out value is exactly
+    /// Σ(x - x̄)³ / (6 (Σ(x - x̄)²)^{3/2}) (Efron 1987). The grouped estimate
+    /// is a noisy version of it (500 groups of 3 here): over five seeds of
+    /// this sample it differed by 2% to 22%, a standard deviation of about
+    /// 15%; the tolerance, 50%, is about three of them.
+    #[test]
+    fn grouped_jackknife_acceleration_for_a_mean() {
+        let n = 1500;
+        let mut rng = stream_rng(77, 0);
+        let x: Vec<f64> = (0..n)
+            .map(|_| -(((rng.next_u64() >> 11) as f64 + 0.5) / (1u64 << 53) as f64).ln())
+            .collect();
+        let mean = x.iter().sum::<f64>() / n as f64;
+        let s2: f64 = x.iter().map(|v| (v - mean).powi(2)).sum();
+        let s3: f64 = x.iter().map(|v| (v - mean).powi(3)).sum();
+        let exact = s3 / (6.0 * s2.powf(1.5));
+        let o = BootOpts {
+            replicates: 50,
+            threads: 1,
+            ..BootOpts::default()
+        };
+        let d = run(n, &o, |w| Ok(vec![weighted_mean(&x, w)])).unwrap();
+        assert_eq!(d.jackknife.groups, JACKKNIFE_MAX_GROUPS);
+        let a = d.summaries[0].acceleration.unwrap();
+        assert!(
+            (a - exact).abs() < 0.5 * exact,
+            "grouped {a} vs leave-one-out {exact}"
+        );
+    }
+
     #[test]
     fn bad_settings_are_errors() {
         let x = [1.0, 2.0, 3.0];
