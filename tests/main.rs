@@ -6,3 +6,4 @@ mod helpers;
 mod bootstrap;
 mod cli_draw;
 mod graph_parse;
+mod sensitivity;

@@ -2,4 +2,6 @@
 //! Nothing here computes a statistic; it only lays out results.
 
 pub mod graph_figure;
+pub mod sensitivity_text;
 pub mod svg;
+pub mod tipping_figure;

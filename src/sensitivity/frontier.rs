@@ -22,7 +22,7 @@
 //!   include the value) and, near y = 1, an upper one (the adjusted standard
 //!   error shrinks again); both are returned as separate polylines.
 
-use super::evalue::evalue_of;
+use super::evalue::{EValue, evalue_of};
 use super::robustness::{Coefficient, f_star};
 use crate::{Error, Result};
 
@@ -70,6 +70,100 @@ pub fn rr_frontier(rr: f64, max: f64, points: usize) -> Result<Polyline> {
         .collect())
 }
 
+/// The smallest m · 10^k at or above `v` for m in `mults`, computed so that
+/// decimal values such as 0.3 come out as the nearest double.
+fn round_at_or_above(v: f64, mults: &[f64]) -> f64 {
+    let k = v.log10().floor() as i32;
+    let scale = |m: f64| {
+        if k >= 0 {
+            m * 10f64.powi(k)
+        } else {
+            m / 10f64.powi(-k)
+        }
+    };
+    for &m in mults {
+        if scale(m) >= v * (1.0 - 1e-12) {
+            return scale(m);
+        }
+    }
+    scale(10.0)
+}
+
+/// A round number at or above `v` > 0: 1, 2, 2.5 or 5 times a power of 10.
+pub fn nice_ceiling(v: f64) -> f64 {
+    if !(v > 0.0 && v.is_finite()) {
+        return 1.0;
+    }
+    round_at_or_above(v, &[1.0, 2.0, 2.5, 5.0, 10.0])
+}
+
+/// A round axis limit at or above `v` > 0: 1, 1.2, 1.5, 2, 2.5, 3, 4, 5, 6
+/// or 8 times a power of 10.
+pub fn axis_ceiling(v: f64) -> f64 {
+    if !(v > 0.0 && v.is_finite()) {
+        return 1.0;
+    }
+    round_at_or_above(v, &[1.0, 1.2, 1.5, 2.0, 2.5, 3.0, 4.0, 5.0, 6.0, 8.0, 10.0])
+}
+
+/// Both risk-ratio frontiers of an E-value, ready to plot.
+#[derive(Debug, Clone, PartialEq)]
+pub struct RrFrontiers {
+    /// The observed risk ratio, inverted when below 1.
+    pub rr: f64,
+    /// The confidence limit nearest the null on the same side (inverted
+    /// with `rr`); `None` without an interval or when it includes 1.
+    pub limit: Option<f64>,
+    /// The E-value of the estimate.
+    pub evalue: f64,
+    /// The E-value of the limit.
+    pub evalue_limit: Option<f64>,
+    /// Frontier of the estimate.
+    pub estimate: Polyline,
+    /// Frontier of the confidence limit (empty when `limit` is `None`).
+    pub interval: Polyline,
+    /// The side of the square plotted, [1, max]².
+    pub max: f64,
+}
+
+/// The risk-ratio frontiers for an E-value on a square wide enough for the
+/// E-value and for any reference points `(RR_EU, RR_UY)` to be shown.
+pub fn rr_frontiers(e: &EValue, references: &[(f64, f64)], points: usize) -> Result<RrFrontiers> {
+    let invert = e.rr < 1.0;
+    let rr = if invert { 1.0 / e.rr } else { e.rr };
+    let limit = match (e.rr_ci, e.ci_limit) {
+        (Some((lo, hi)), Some(l)) if l > 1.0 => Some(if invert { 1.0 / hi } else { lo }),
+        _ => None,
+    };
+    let mut reach = 1.5 * e.point;
+    for &(a, b) in references {
+        reach = reach.max(1.1 * a).max(1.1 * b);
+    }
+    let max = axis_ceiling(reach.max(2.0));
+    Ok(RrFrontiers {
+        rr,
+        limit,
+        evalue: e.point,
+        evalue_limit: limit.and(e.ci_limit),
+        estimate: rr_frontier(rr, max, points)?,
+        interval: match limit {
+            Some(l) => rr_frontier(l, max, points)?,
+            None => Vec::new(),
+        },
+        max,
+    })
+}
+
+/// The side of the partial-R² square to plot: room for twice the
+/// robustness value and for every reference point `(R2_dz, R2_yz)`, at most 1.
+pub fn r2_axis_max(rv: f64, references: &[(f64, f64)]) -> f64 {
+    let mut reach = (2.0 * rv).max(0.02);
+    for &(a, b) in references {
+        reach = reach.max(1.15 * a).max(1.15 * b);
+    }
+    axis_ceiling(reach).min(1.0)
+}
+
 /// The two partial-R² frontiers of a coefficient.
 #[derive(Debug, Clone, PartialEq)]
 pub struct R2Frontiers {
@@ -102,29 +196,69 @@ fn roots(x: f64, fq: f64, fs: f64) -> (Option<f64>, Option<f64>) {
     (lower, upper)
 }
 
-/// Samples one frontier over x in (0, max], splitting it into polylines
-/// where a branch leaves the square or has no solution.
-fn trace(fq: f64, fs: f64, max: f64, points: usize) -> Vec<Polyline> {
-    let mut lower: Vec<Polyline> = vec![Vec::new()];
-    let mut upper: Vec<Polyline> = vec![Vec::new()];
-    // Dense near x = 0, where the estimate frontier rises steeply:
-    // x = max · s², s evenly spaced.
-    for i in 1..=points {
-        let s = i as f64 / points as f64;
-        let x = max * s * s;
-        let (l, u) = roots(x, fq, fs);
-        for (branch, v) in [(&mut lower, l), (&mut upper, u)] {
-            match v {
-                Some(y) if y <= max => branch.last_mut().unwrap().push((x, y)),
-                _ => {
-                    if !branch.last().unwrap().is_empty() {
-                        branch.push(Vec::new());
-                    }
-                }
-            }
+/// The root of one branch at `x` if it lies in the square.
+fn branch_at(x: f64, fq: f64, fs: f64, max: f64, upper: bool) -> Option<f64> {
+    let (l, u) = roots(x, fq, fs);
+    let y = if upper { u } else { l };
+    y.filter(|&y| y <= max)
+}
+
+/// The x between `a` (branch absent) and `b` (present), or the reverse,
+/// where the branch enters or leaves the square, by bisection.
+fn edge(a: f64, b: f64, fq: f64, fs: f64, max: f64, upper: bool) -> Option<(f64, f64)> {
+    let (mut out, mut inside) = (a, b);
+    for _ in 0..60 {
+        let mid = 0.5 * (out + inside);
+        if branch_at(mid, fq, fs, max, upper).is_some() {
+            inside = mid;
+        } else {
+            out = mid;
         }
     }
-    lower.into_iter().chain(upper).filter(|p| p.len() >= 2).collect()
+    branch_at(inside, fq, fs, max, upper).map(|y| (inside, y))
+}
+
+/// Samples one frontier over x in (0, max], splitting it into polylines
+/// where a branch leaves the square or has no solution; the points where a
+/// branch enters or leaves are located by bisection, so the curves reach
+/// the edges of the square.
+fn trace(fq: f64, fs: f64, max: f64, points: usize) -> Vec<Polyline> {
+    let mut out = Vec::new();
+    for upper in [false, true] {
+        let mut current: Polyline = Vec::new();
+        let mut prev: Option<(f64, bool)> = None;
+        // Dense near x = 0, where the frontiers rise steeply:
+        // x = max · s², s evenly spaced.
+        for i in 1..=points {
+            let s = i as f64 / points as f64;
+            let x = max * s * s;
+            let here = branch_at(x, fq, fs, max, upper);
+            if let Some((px, was_in)) = prev
+                && was_in != here.is_some()
+            {
+                let (outside, inside) = if was_in { (x, px) } else { (px, x) };
+                if let Some(p) = edge(outside, inside, fq, fs, max, upper) {
+                    current.push(p);
+                }
+            }
+            match here {
+                Some(y) => current.push((x, y)),
+                None => {
+                    if current.len() >= 2 {
+                        current.sort_by(|a, b| a.0.total_cmp(&b.0));
+                        out.push(std::mem::take(&mut current));
+                    }
+                    current.clear();
+                }
+            }
+            prev = Some((x, here.is_some()));
+        }
+        if current.len() >= 2 {
+            current.sort_by(|a, b| a.0.total_cmp(&b.0));
+            out.push(current);
+        }
+    }
+    out
 }
 
 /// The estimate and interval frontiers of `c` on the square [0, `max`]² of
@@ -187,6 +321,12 @@ mod tests {
         let c = Coefficient::new(0.097, 0.0232, 783.0).unwrap();
         let f = r2_frontiers(&c, 1.0, 0.05, 0.5, 300).unwrap();
         assert!(!f.estimate.is_empty() && !f.interval.is_empty());
+        // The estimate frontier y = f² (1 - x) / x enters the square at its
+        // top edge and leaves at the right edge.
+        let fq2 = c.t().powi(2) / 783.0;
+        let first = f.estimate[0][0];
+        assert!((first.1 - 0.5).abs() < 1e-9 && (first.0 - fq2 / (0.5 + fq2)).abs() < 1e-9);
+        assert!((f.estimate[0].last().unwrap().0 - 0.5).abs() < 1e-12);
         for line in &f.estimate {
             for &(x, y) in line {
                 let a = adjust(&c, x, y, 0.05).unwrap();
@@ -210,6 +350,25 @@ mod tests {
         assert!((e - r.rv).abs() < 0.01, "{e} vs {}", r.rv);
         let i = f.interval.iter().find_map(cross).unwrap();
         assert!((i - r.rv_alpha).abs() < 0.01, "{i} vs {}", r.rv_alpha);
+    }
+
+    #[test]
+    fn axis_ranges_are_round_and_hold_the_points() {
+        assert_eq!(nice_ceiling(7.26), 10.0);
+        assert_eq!(nice_ceiling(0.278), 0.5);
+        assert_eq!(nice_ceiling(0.2), 0.2);
+        assert_eq!(nice_ceiling(2.1), 2.5);
+        assert_eq!(axis_ceiling(10.9), 12.0);
+        assert_eq!(r2_axis_max(0.139, &[]), 0.3);
+        assert_eq!(r2_axis_max(0.139, &[(0.9, 0.1)]), 1.0);
+        let e = crate::sensitivity::evalue::risk_ratio(0.4, Some((0.2, 0.8))).unwrap();
+        let f = rr_frontiers(&e, &[(12.0, 1.5)], 100).unwrap();
+        assert_eq!(f.max, 15.0);
+        assert!((f.rr - 2.5).abs() < 1e-12 && (f.limit.unwrap() - 1.25).abs() < 1e-12);
+        assert!(!f.interval.is_empty());
+        let e = crate::sensitivity::evalue::risk_ratio(1.4, Some((0.9, 2.0))).unwrap();
+        let f = rr_frontiers(&e, &[], 100).unwrap();
+        assert!(f.limit.is_none() && f.interval.is_empty());
     }
 
     #[test]
