@@ -8,12 +8,9 @@ use causeway::infer::bootstrap::resample_weights;
 use std::io::Write;
 
 fn main() {
-    let args: Vec<u64> = std::env::args()
-        .skip(1)
-        .map(|a| a.parse().expect("N REPLICATES SEED are whole numbers"))
-        .collect();
-    let [n, b, seed] = args[..] else {
-        eprintln!("usage: bootstrap_resamples N REPLICATES SEED");
+    let args: Option<Vec<u64>> = std::env::args().skip(1).map(|a| a.parse().ok()).collect();
+    let Some([n, b, seed]) = args.as_deref().and_then(|a| <[u64; 3]>::try_from(a).ok()) else {
+        eprintln!("usage: bootstrap_resamples N REPLICATES SEED (whole numbers)");
         std::process::exit(2);
     };
     let out = std::io::stdout();
@@ -21,6 +18,8 @@ fn main() {
     for i in 0..b {
         let w = resample_weights(n as usize, seed, i);
         let line: Vec<String> = w.iter().map(|c| format!("{}", *c as u64)).collect();
-        writeln!(out, "{}", line.join(" ")).expect("write to stdout");
+        if writeln!(out, "{}", line.join(" ")).is_err() {
+            std::process::exit(1);
+        }
     }
 }

@@ -47,6 +47,7 @@ fn opts(replicates: usize, seed: u64, threads: usize) -> BootOpts {
         threads,
         level: 0.95,
         progress: false,
+        bca: true,
     }
 }
 
@@ -189,6 +190,31 @@ fn failed_replicates_are_counted() {
     for key in ["replicates", "interval", "ci", "failed"] {
         assert!(json.get(key).is_some(), "{key}");
     }
+}
+
+/// Without the jackknife there is no BCa interval, and the other intervals
+/// are unchanged.
+#[test]
+fn bca_can_be_left_out() {
+    let (x, y) = sample();
+    let f = |w: &[f64]| Ok(three_statistics(&x, &y, w));
+    let with = run(30, &opts(200, 3, 1), f).unwrap();
+    let o = BootOpts {
+        bca: false,
+        ..opts(200, 3, 1)
+    };
+    let without = run(30, &o, f).unwrap();
+    assert_eq!(without.jackknife.groups, 0);
+    let (a, b) = (&with.summaries[1], &without.summaries[1]);
+    assert!(b.bca.is_none() && a.bca.is_some());
+    assert_eq!(a.percentile, b.percentile);
+    assert_eq!(a.normal, b.normal);
+    assert!(
+        b.interval(IntervalKind::Bca)
+            .unwrap_err()
+            .to_string()
+            .contains("jackknife")
+    );
 }
 
 #[test]

@@ -374,6 +374,9 @@ fn two_panel_figure_from_the_library() {
         }],
     };
     let svg = tipping_figure::svg(Some(&rr), Some(&r2)).unwrap();
+    if let Ok(path) = std::env::var("CAUSEWAY_KEEP_FIGURE") {
+        std::fs::write(path, &svg).unwrap();
+    }
     let t = texts(&svg);
     assert!(t.iter().any(|s| s == "1x female"), "{t:?}");
     assert!(t.iter().any(|s| s == "smoking"));

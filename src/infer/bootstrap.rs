@@ -68,6 +68,9 @@ pub struct BootOpts {
     pub level: f64,
     /// Show a progress bar on stderr (only when stderr is a terminal).
     pub progress: bool,
+    /// Compute the jackknife behind the BCa interval (min(n, 500) extra
+    /// evaluations of the statistic); without it the BCa interval is absent.
+    pub bca: bool,
 }
 
 impl Default for BootOpts {
@@ -78,6 +81,7 @@ impl Default for BootOpts {
             threads: 0,
             level: 0.95,
             progress: false,
+            bca: true,
         }
     }
 }
@@ -129,7 +133,8 @@ impl IntervalKind {
 /// The jackknife used for the BCa acceleration.
 #[derive(Debug, Clone, PartialEq)]
 pub struct Jackknife {
-    /// Number of leave-out groups (n when leaving out one row at a time).
+    /// Number of leave-out groups (n when leaving out one row at a time; 0
+    /// when the jackknife was not run).
     pub groups: usize,
     /// Estimates with each group left out, `[statistic][group]`; NaN where
     /// the closure failed.
@@ -377,7 +382,11 @@ where
     if let Some(pb) = &pb {
         pb.finish_and_clear();
     }
-    let (groups, membership) = jackknife_groups(n, seed);
+    let (groups, membership) = if opts.bca {
+        jackknife_groups(n, seed)
+    } else {
+        (0, None)
+    };
     let jack: Vec<Result<Vec<f64>>> = pool.install(|| {
         (0..groups)
             .into_par_iter()
@@ -555,7 +564,9 @@ fn summarize(estimate: f64, values: &[f64], jack: &[f64], replicates: usize, lev
     let at_or_below = ok.iter().filter(|&&x| x <= estimate).count() as f64;
     let share = (below + at_or_below) / (2.0 * k);
     let jack_failed = jack.iter().filter(|x| x.is_nan()).count();
-    if jack_failed > 0 {
+    if jack.is_empty() {
+        warnings.push("no BCa interval: the jackknife was not run".to_string());
+    } else if jack_failed > 0 {
         warnings.push(format!(
             "no BCa interval: the statistic failed on {jack_failed} of {} jackknife samples",
             jack.len()

@@ -282,6 +282,25 @@ mod tests {
     }
 
     #[test]
+    fn tables_list_every_row_and_skipped_pair() {
+        use crate::sensitivity::robustness::{Covariate, adjust, benchmark_table};
+        let c = Coefficient::new(0.097, 0.0232, 783.0).unwrap();
+        let covs = [Covariate {
+            name: "female".into(),
+            r2_exposure: 0.009,
+            r2_outcome: 0.125,
+        }];
+        let t = benchmark_table(&c, &covs, &[1.0, 200.0], 0.05).unwrap();
+        let text = benchmark_section(&t, 0.05);
+        assert!(text.contains("female"));
+        assert!(text.contains("(skipped)"));
+        assert!(text.contains("95% interval"));
+        let rows = [adjust(&c, 0.01, 0.05, 0.05).unwrap()];
+        let text = adjusted_section(&rows, 0.1);
+        assert!(text.contains("90% interval") && text.contains("1.00%") && text.contains("5.00%"));
+    }
+
+    #[test]
     fn wrap_keeps_lines_short() {
         let w = wrap(CAUTION, 78, "");
         assert!(w.lines().all(|l| l.len() <= 78));

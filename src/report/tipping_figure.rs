@@ -236,12 +236,34 @@ fn shade(svg: &mut Svg, f: &Frame, line: &Polyline) {
 /// Places point labels in a panel, avoiding the square's edges, the
 /// markers and the labels already placed.
 struct Labels {
+    /// Markers and labels already placed: a label should not cover them.
     boxes: Vec<[f64; 4]>,
+    /// Curve paths: better avoided.
+    soft: Vec<[f64; 4]>,
 }
 
 impl Labels {
     fn new() -> Self {
-        Labels { boxes: Vec::new() }
+        Labels {
+            boxes: Vec::new(),
+            soft: Vec::new(),
+        }
+    }
+
+    /// Reserves the path of a curve, so labels keep off it.
+    fn curve(&mut self, f: &Frame, line: &Polyline) {
+        let pts = f.pts(line);
+        for w in pts.windows(2) {
+            // Points every few pixels along each segment.
+            let (a, b) = (w[0], w[1]);
+            let len = ((b.0 - a.0).powi(2) + (b.1 - a.1).powi(2)).sqrt();
+            let steps = (len / 4.0).ceil().max(1.0) as usize;
+            for k in 0..=steps {
+                let t = k as f64 / steps as f64;
+                let (x, y) = (a.0 + t * (b.0 - a.0), a.1 + t * (b.1 - a.1));
+                self.soft.push([x - 1.5, y - 1.5, x + 1.5, y + 1.5]);
+            }
+        }
     }
 
     /// Reserves the area of a marker.
@@ -249,8 +271,8 @@ impl Labels {
         self.boxes.push([px - 6.0, py - 6.0, px + 6.0, py + 6.0]);
     }
 
-    /// Draws `label` beside the point (px, py), at the first of the
-    /// candidate sides ((dx, dy) signs) that is free, else at the first.
+    /// Draws `label` beside the point (px, py) at one of the candidate
+    /// sides ((dx, dy) signs).
     fn place(&mut self, svg: &mut Svg, f: &Frame, px: f64, py: f64, sides: &[(f64, f64)], label: &str) {
         let w = text_width(label, FONT - 1.0);
         let h = FONT;
@@ -258,22 +280,24 @@ impl Labels {
         let (r, b) = (l + SIDE - 6.0, t + SIDE - 6.0);
         let rect = |(dx, dy): (f64, f64)| {
             let x = if dx < 0.0 { px - 9.0 - w } else { px + 9.0 };
-            let y = if dy < 0.0 { py - 9.0 - h } else { py + 5.0 };
+            let y = if dy < 0.0 { py - 5.0 - h } else { py + 5.0 };
             [x, y, x + w, y + h]
         };
-        let free = |bx: &[f64; 4], boxes: &[[f64; 4]]| {
-            bx[0] >= l
-                && bx[2] <= r
-                && bx[1] >= t
-                && bx[3] <= b
-                && boxes
-                    .iter()
-                    .all(|o| bx[2] <= o[0] || bx[0] >= o[2] || bx[3] <= o[1] || bx[1] >= o[3])
+        let within = |bx: &[f64; 4]| bx[0] >= l && bx[2] <= r && bx[1] >= t && bx[3] <= b;
+        let hits = |bx: &[f64; 4], list: &[[f64; 4]]| {
+            list.iter()
+                .filter(|o| !(bx[2] <= o[0] || bx[0] >= o[2] || bx[3] <= o[1] || bx[1] >= o[3]))
+                .count()
         };
+        let overlaps = |bx: &[f64; 4]| 1000 * hits(bx, &self.boxes) + hits(bx, &self.soft);
+        // The side inside the square that covers the fewest markers and
+        // labels, then the least curve (the first such side on ties); the
+        // first side if none fits.
         let chosen = sides
             .iter()
             .map(|&side| rect(side))
-            .find(|bx| free(bx, &self.boxes))
+            .filter(within)
+            .min_by_key(overlaps)
             .unwrap_or_else(|| rect(sides[0]));
         svg.text(
             chosen[0],
@@ -296,9 +320,9 @@ const DIAGONAL_SIDES: [(f64, f64); 4] = [(-1.0, 1.0), (1.0, -1.0), (1.0, 1.0), (
 /// Label sides for a reference point: to the right first.
 const REFERENCE_SIDES: [(f64, f64); 4] = [(1.0, 1.0), (1.0, -1.0), (-1.0, 1.0), (-1.0, -1.0)];
 
-fn equal_point(svg: &mut Svg, f: &Frame, labels: &mut Labels, v: f64, filled: bool, label: &str) {
+fn equal_point(svg: &mut Svg, f: &Frame, labels: &mut Labels, v: f64, filled: bool) -> bool {
     if !(v >= f.lo && v <= f.hi) {
-        return;
+        return false;
     }
     let style = if filled {
         format!(r#"fill="{}" stroke="white" stroke-width="1.2""#, ink::DEEP)
@@ -306,7 +330,21 @@ fn equal_point(svg: &mut Svg, f: &Frame, labels: &mut Labels, v: f64, filled: bo
         format!(r#"fill="white" stroke="{}" stroke-width="2.2""#, ink::WARM)
     };
     svg.marker(Shape::Circle, f.px(v), f.py(v), 10.0, &style);
-    labels.place(svg, f, f.px(v), f.py(v), &DIAGONAL_SIDES, label);
+    labels.mark(f.px(v), f.py(v));
+    true
+}
+
+/// Draws the equal-strength points, then their labels.
+fn equal_points(svg: &mut Svg, f: &Frame, labels: &mut Labels, points: &[(f64, bool, String)]) {
+    let drawn: Vec<bool> = points
+        .iter()
+        .map(|(v, filled, _)| equal_point(svg, f, labels, *v, *filled))
+        .collect();
+    for ((v, _, label), shown) in points.iter().zip(drawn) {
+        if shown {
+            labels.place(svg, f, f.px(*v), f.py(*v), &DIAGONAL_SIDES, label);
+        }
+    }
 }
 
 fn inside(f: &Frame, r: &Reference) -> bool {
@@ -383,25 +421,15 @@ fn rr_panel(svg: &mut Svg, x0: f64, y0: f64, p: &RrPanel) {
     };
     curves(svg, &f, "clip-rr", std::slice::from_ref(&fr.estimate), &interval);
     let mut labels = Labels::new();
-    reference_marks(svg, &f, &mut labels, &p.references);
-    equal_point(
-        svg,
-        &f,
-        &mut labels,
-        fr.evalue,
-        true,
-        &format!("E-value {:.2}", fr.evalue),
-    );
-    if let Some(e) = fr.evalue_limit {
-        equal_point(
-            svg,
-            &f,
-            &mut labels,
-            e,
-            false,
-            &format!("E-value, interval {e:.2}"),
-        );
+    for line in std::iter::once(&fr.estimate).chain(&interval) {
+        labels.curve(&f, line);
     }
+    reference_marks(svg, &f, &mut labels, &p.references);
+    let mut points = vec![(fr.evalue, true, format!("E-value {:.2}", fr.evalue))];
+    if let Some(e) = fr.evalue_limit {
+        points.push((e, false, format!("E-value, interval {e:.2}")));
+    }
+    equal_points(svg, &f, &mut labels, &points);
     reference_labels(svg, &f, &mut labels, &p.references);
 }
 
@@ -425,19 +453,16 @@ fn r2_panel(svg: &mut Svg, x0: f64, y0: f64, p: &R2Panel) {
     );
     curves(svg, &f, "clip-r2", &fr.estimate, &fr.interval);
     let mut labels = Labels::new();
+    for line in fr.estimate.iter().chain(&fr.interval) {
+        labels.curve(&f, line);
+    }
     reference_marks(svg, &f, &mut labels, &p.references);
     let rv = &p.robustness;
-    equal_point(svg, &f, &mut labels, rv.rv, true, &format!("RV {}", pct(rv.rv)));
+    let mut points = vec![(rv.rv, true, format!("RV {}", pct(rv.rv)))];
     if !fr.interval.is_empty() {
-        equal_point(
-            svg,
-            &f,
-            &mut labels,
-            rv.rv_alpha,
-            false,
-            &format!("RV, interval {}", pct(rv.rv_alpha)),
-        );
+        points.push((rv.rv_alpha, false, format!("RV, interval {}", pct(rv.rv_alpha))));
     }
+    equal_points(svg, &f, &mut labels, &points);
     reference_labels(svg, &f, &mut labels, &p.references);
 }
 
