@@ -6,6 +6,7 @@ use causeway::report::sensitivity_text::{
     CAUTION, adjusted_section, evalue_section, robustness_section, wrap,
 };
 use causeway::report::tipping_figure::{self, R2Panel, Reference, ReferenceKind, RrPanel};
+use causeway::sensitivity::SensitivityBlock;
 use causeway::sensitivity::evalue::{self, EValue};
 use causeway::sensitivity::frontier::{r2_axis_max, r2_frontiers, rr_frontiers};
 use causeway::sensitivity::robustness::{Adjusted, Coefficient, RobustnessValue, adjust, robustness_value};
@@ -88,8 +89,8 @@ pub struct Args {
 /// The JSON document of this command.
 #[derive(Serialize)]
 struct Output {
-    evalue: Option<EValue>,
-    robustness_value: Option<RobustnessValue>,
+    #[serde(flatten)]
+    block: SensitivityBlock,
     adjusted: Option<Vec<Adjusted>>,
 }
 
@@ -261,8 +262,10 @@ pub fn run(a: Args) -> Result<i32> {
     match a.format.as_str() {
         "json" => {
             let out = Output {
-                evalue: ev,
-                robustness_value: reg.as_ref().map(|r| r.rv.clone()),
+                block: SensitivityBlock {
+                    evalue: ev,
+                    robustness_value: reg.as_ref().map(|r| r.rv.clone()),
+                },
                 adjusted: reg.and_then(|r| r.adjusted),
             };
             let text = serde_json::to_string_pretty(&out)

@@ -14,3 +14,16 @@
 pub mod evalue;
 pub mod frontier;
 pub mod robustness;
+
+use serde::Serialize;
+
+/// The `sensitivity` block of the JSON contract for an estimate: the
+/// E-value and, for a linear-outcome regression estimate, the robustness
+/// value; `null` where it does not apply.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct SensitivityBlock {
+    /// The E-value, when the estimate has a risk-ratio reading.
+    pub evalue: Option<evalue::EValue>,
+    /// Robustness values, for a linear-regression coefficient.
+    pub robustness_value: Option<robustness::RobustnessValue>,
+}
