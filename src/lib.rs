@@ -15,7 +15,9 @@
 pub mod check;
 pub mod error;
 pub mod graph;
+pub mod infer;
 pub mod report;
+pub mod sensitivity;
 pub mod simulate;
 
 pub use error::{Error, Result};

@@ -3,7 +3,9 @@
 
 mod helpers;
 
+mod bootstrap;
 mod cli_draw;
 mod graph_parse;
 mod graph_props;
+mod sensitivity;
 mod simulate;

@@ -55,8 +55,12 @@ pub fn write_atomic(path: &Path, text: &[u8], inputs: &[&Path]) -> Result<()> {
     #[cfg(unix)]
     {
         use std::os::unix::fs::PermissionsExt;
-        let mode = std::fs::metadata(path).map(|m| m.permissions().mode()).unwrap_or(0o644);
-        let _ = tmp.as_file().set_permissions(std::fs::Permissions::from_mode(mode & 0o777));
+        let mode = std::fs::metadata(path)
+            .map(|m| m.permissions().mode())
+            .unwrap_or(0o644);
+        let _ = tmp
+            .as_file()
+            .set_permissions(std::fs::Permissions::from_mode(mode & 0o777));
     }
     tmp.persist(path).map_err(|e| Error::io(path, e.error))?;
     Ok(())

@@ -8,6 +8,7 @@ use std::io::Write;
 
 mod common;
 mod draw;
+mod sensitivity;
 mod simulate;
 
 /// Estimate the causal effect of an exposure on an outcome from
@@ -29,6 +30,7 @@ struct Cli {
 enum Command {
     Draw(draw::Args),
     Simulate(simulate::Args),
+    Sensitivity(sensitivity::Args),
 }
 
 /// Runs the command line and returns the process exit code.
@@ -50,6 +52,7 @@ pub fn main() -> i32 {
     let outcome = std::panic::catch_unwind(move || match cli.command {
         Command::Draw(a) => draw::run(a),
         Command::Simulate(a) => simulate::run(a),
+        Command::Sensitivity(a) => sensitivity::run(a),
     });
     match outcome {
         Ok(Ok(code)) => code,

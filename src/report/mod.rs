@@ -10,8 +10,10 @@ pub mod doc;
 pub mod graph_figure;
 pub mod latex;
 pub mod markdown;
+pub mod sensitivity_text;
 pub mod svg;
 pub mod text;
+pub mod tipping_figure;
 
 pub use doc::{Block, Doc, Exporter, Stamp, Table};
 

@@ -42,6 +42,30 @@ pub fn text_width(s: &str, size: f64) -> f64 {
     s.chars().count() as f64 * size * 0.58
 }
 
+/// Marker shapes for points in figures.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum Shape {
+    /// A circle.
+    Circle,
+    /// A square.
+    Square,
+    /// A triangle pointing up.
+    Triangle,
+    /// A diamond.
+    Diamond,
+}
+
+fn point_list(points: &[(f64, f64)]) -> String {
+    let mut s = String::with_capacity(points.len() * 12);
+    for (i, (x, y)) in points.iter().enumerate() {
+        if i > 0 {
+            s.push(' ');
+        }
+        let _ = write!(s, "{x:.1},{y:.1}");
+    }
+    s
+}
+
 /// An SVG document being built.
 pub struct Svg {
     body: String,
@@ -80,6 +104,95 @@ impl Svg {
             self.body,
             r#"<line x1="{x1:.1}" y1="{y1:.1}" x2="{x2:.1}" y2="{y2:.1}" {style}/>"#
         );
+    }
+
+    /// A text label turned by `angle` degrees about its anchor point
+    /// (-90 reads bottom to top).
+    #[allow(clippy::too_many_arguments)]
+    pub fn text_rotated(
+        &mut self,
+        x: f64,
+        y: f64,
+        angle: f64,
+        size: f64,
+        anchor: &str,
+        style: &str,
+        s: &str,
+    ) {
+        let _ = writeln!(
+            self.body,
+            r#"<text x="{x:.1}" y="{y:.1}" font-size="{size}" text-anchor="{anchor}" transform="rotate({angle:.1} {x:.1} {y:.1})" {style}>{}</text>"#,
+            esc(s)
+        );
+    }
+
+    /// An open polyline through `points` (nothing for fewer than two).
+    pub fn polyline(&mut self, points: &[(f64, f64)], style: &str) {
+        if points.len() < 2 {
+            return;
+        }
+        let _ = writeln!(
+            self.body,
+            r#"<polyline points="{}" fill="none" {style}/>"#,
+            point_list(points)
+        );
+    }
+
+    /// A closed polygon through `points`.
+    pub fn polygon(&mut self, points: &[(f64, f64)], style: &str) {
+        if points.len() < 3 {
+            return;
+        }
+        let _ = writeln!(self.body, r#"<polygon points="{}" {style}/>"#, point_list(points));
+    }
+
+    /// A rectangle with its top-left corner at (x, y).
+    pub fn rect(&mut self, x: f64, y: f64, w: f64, h: f64, style: &str) {
+        let _ = writeln!(
+            self.body,
+            r#"<rect x="{x:.1}" y="{y:.1}" width="{w:.1}" height="{h:.1}" {style}/>"#
+        );
+    }
+
+    /// A circle.
+    pub fn circle(&mut self, cx: f64, cy: f64, r: f64, style: &str) {
+        let _ = writeln!(
+            self.body,
+            r#"<circle cx="{cx:.1}" cy="{cy:.1}" r="{r:.1}" {style}/>"#
+        );
+    }
+
+    /// A point marker of the given shape centred on (x, y), about `size`
+    /// pixels across; shapes stay distinct when printed in greyscale.
+    pub fn marker(&mut self, shape: Shape, x: f64, y: f64, size: f64, style: &str) {
+        let h = size / 2.0;
+        match shape {
+            Shape::Circle => self.circle(x, y, h, style),
+            Shape::Square => self.rect(x - h * 0.9, y - h * 0.9, h * 1.8, h * 1.8, style),
+            Shape::Triangle => self.polygon(
+                &[(x, y - h * 1.15), (x + h, y + h * 0.75), (x - h, y + h * 0.75)],
+                style,
+            ),
+            Shape::Diamond => self.polygon(
+                &[(x, y - h * 1.2), (x + h, y), (x, y + h * 1.2), (x - h, y)],
+                style,
+            ),
+        }
+    }
+
+    /// Starts a group of elements clipped to the rectangle (x, y, w, h);
+    /// close it with [`Svg::end_clip`]. `id` must be unique in the document.
+    pub fn begin_clip(&mut self, id: &str, x: f64, y: f64, w: f64, h: f64) {
+        let id = esc(id);
+        let _ = writeln!(
+            self.body,
+            r#"<clipPath id="{id}"><rect x="{x:.1}" y="{y:.1}" width="{w:.1}" height="{h:.1}"/></clipPath><g clip-path="url(#{id})">"#
+        );
+    }
+
+    /// Ends a group started by [`Svg::begin_clip`].
+    pub fn end_clip(&mut self) {
+        self.body.push_str("</g>\n");
     }
 
     /// The finished document, with a title for accessibility.

@@ -1,0 +1,29 @@
+//! Sensitivity of an estimate to unmeasured confounding.
+//!
+//! - [`evalue`]: the E-value of VanderWeele and Ding (2017), on the
+//!   risk-ratio scale, with the usual conversions from odds ratios, hazard
+//!   ratios and standardized differences.
+//! - [`robustness`]: robustness values, bias-adjusted estimates and
+//!   benchmark bounds in terms of partial R², after Cinelli and Hazlett
+//!   (2020), for a linear-regression coefficient.
+//! - [`frontier`]: the tipping-point curves of both, sampled for a figure.
+//!
+//! These numbers describe how strong a confounder left out of the graph
+//! would have to be; they do not show that there is none.
+
+pub mod evalue;
+pub mod frontier;
+pub mod robustness;
+
+use serde::Serialize;
+
+/// The `sensitivity` block of the JSON contract for an estimate: the
+/// E-value and, for a linear-outcome regression estimate, the robustness
+/// value; `null` where it does not apply.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct SensitivityBlock {
+    /// The E-value, when the estimate has a risk-ratio reading.
+    pub evalue: Option<evalue::EValue>,
+    /// Robustness values, for a linear-regression coefficient.
+    pub robustness_value: Option<robustness::RobustnessValue>,
+}
