@@ -14,6 +14,7 @@
 
 pub mod error;
 pub mod graph;
+pub mod identify;
 pub mod report;
 
 pub use error::{Error, Result};
