@@ -8,6 +8,7 @@ use std::io::Write;
 
 mod common;
 mod draw;
+mod identify;
 
 /// Estimate the causal effect of an exposure on an outcome from
 /// observational data, under a causal graph you declare.
@@ -27,6 +28,7 @@ struct Cli {
 #[derive(Subcommand)]
 enum Command {
     Draw(draw::Args),
+    Identify(identify::Args),
 }
 
 /// Runs the command line and returns the process exit code.
@@ -47,6 +49,7 @@ pub fn main() -> i32 {
     }));
     let outcome = std::panic::catch_unwind(move || match cli.command {
         Command::Draw(a) => draw::run(a),
+        Command::Identify(a) => identify::run(a),
     });
     match outcome {
         Ok(Ok(code)) => code,

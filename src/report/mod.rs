@@ -2,4 +2,5 @@
 //! Nothing here computes a statistic; it only lays out results.
 
 pub mod graph_figure;
+pub mod identify_text;
 pub mod svg;
