@@ -4,6 +4,8 @@
 mod helpers;
 
 mod cli_draw;
+mod cli_identify;
 mod graph_parse;
 mod identify_dsep;
 mod identify_props;
+mod identify_textbook;
