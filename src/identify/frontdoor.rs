@@ -24,10 +24,17 @@
 //!   until none is left, every m with bad(m, S) (one reachability search per
 //!   round); the fixpoint S* meets (2) and (3), holds every valid subset of
 //!   S, and is valid exactly when it meets (1).
+//! * Every minimal set lies among the ancestors of Y. If M is valid, so is
+//!   its part M' inside An(Y): a path open given {X} has all its nodes in
+//!   An(m, Y, X), so a member of M outside An(Y) (and, by (2), outside
+//!   An(X)) cannot lie on a path from a member of M' to Y; the paths that
+//!   M' has to block are blocked already.
 //!
-//! That gives an exact test "is there a front-door set inside S". A minimal
-//! one is found by dropping members one at a time while the test still
-//! passes (a member kept once stays needed, as the sets only shrink). All
+//! That gives an exact test "is there a front-door set inside S", which is
+//! monotone in S. A set S that passes while no S minus one member does is a
+//! minimal front-door set; one is found with the divide-and-conquer search
+//! for a minimal subset under a monotone test of Junker (QuickXplain, AAAI
+//! 2004, from memory), in O(k log(n/k)) tests for a set of size k. All
 //! minimal sets are listed by branching: every minimal set other than the
 //! one found, M0, misses some member of M0, so it is a minimal set inside
 //! S minus that member; searched sets are remembered so none is searched
@@ -38,7 +45,7 @@ use std::collections::{BTreeSet, HashSet};
 
 /// Upper bound on candidate sets searched; past it the list is reported as
 /// truncated.
-const SEARCH_BUDGET: usize = 5_000;
+const SEARCH_BUDGET: usize = 2_000;
 
 /// Pearl's three front-door conditions applied to one set.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
@@ -95,15 +102,54 @@ struct Search<'a> {
     g: &'a Graph,
     x: Node,
     y: Node,
+    /// Ancestors of X (the exposure included).
+    anc_x: Vec<bool>,
 }
 
 impl Search<'_> {
+    fn new(g: &Graph, x: Node, y: Node) -> Search<'_> {
+        Search {
+            g,
+            x,
+            y,
+            anc_x: g.ancestors(&[x]),
+        }
+    }
+
+    /// Nodes d-connected to Y given {X} once the edges out of `cut` nodes
+    /// are removed (the reachability search of the graph module, run on the
+    /// cut graph without building it). Valid while no `cut` node is an
+    /// ancestor of X, which (2) guarantees.
+    fn connected_to_y(&self, cut: &[bool]) -> Vec<bool> {
+        let g = self.g;
+        let mut visited = vec![[false; 2]; g.len()];
+        let mut reached = vec![false; g.len()];
+        // 0: arrived from a child (travelling up); 1: from a parent.
+        let mut stack = vec![(self.y, 0usize)];
+        while let Some((v, dir)) = stack.pop() {
+            if visited[v][dir] {
+                continue;
+            }
+            visited[v][dir] = true;
+            let given = v == self.x;
+            reached[v] = !given;
+            let to_children = !given && !cut[v];
+            let to_parents = if dir == 0 { !given } else { self.anc_x[v] };
+            if to_children {
+                stack.extend(g.children(v).iter().map(|&c| (c, 1)));
+            }
+            if to_parents {
+                stack.extend(g.parents(v).iter().filter(|&&p| !cut[p]).map(|&p| (p, 0)));
+            }
+        }
+        reached
+    }
+
     /// The largest subset of `s` meeting (2) and (3), given members of `s`
     /// that all meet (2).
     fn fixpoint(&self, mut s: Vec<Node>) -> Vec<Node> {
         loop {
-            let cut = self.g.without_edges_out_of(&s);
-            let reached = cut.d_connected_from(&[self.y], &[self.x]);
+            let reached = self.connected_to_y(&self.g.mask(&s));
             let before = s.len();
             s.retain(|&m| !reached[m]);
             if s.len() == before {
@@ -119,28 +165,44 @@ impl Search<'_> {
         ok.then_some(f)
     }
 
-    /// An inclusion-minimal front-door set inside `cur`, itself a
-    /// front-door set.
-    fn minimize(&self, mut cur: Vec<Node>) -> Vec<Node> {
-        let order = cur.clone();
-        for m in order {
-            if !cur.contains(&m) {
-                continue;
-            }
-            let rest: Vec<Node> = cur.iter().copied().filter(|&v| v != m).collect();
-            if let Some(smaller) = self.largest_within(rest) {
-                cur = smaller;
-            }
+    fn passes(&self, s: &[Node]) -> bool {
+        self.largest_within(s.to_vec()).is_some()
+    }
+
+    /// An inclusion-minimal front-door set inside `cur`, itself a front-door
+    /// set (Junker's divide and conquer).
+    fn minimize(&self, cur: Vec<Node>) -> Vec<Node> {
+        let mut found = self.quick(&[], false, &cur);
+        found.sort_unstable();
+        found
+    }
+
+    /// A minimal subset X of `cands` such that `background` plus X passes,
+    /// given that `background` plus `cands` passes; `fresh` says that the
+    /// background has grown since the last test.
+    fn quick(&self, background: &[Node], fresh: bool, cands: &[Node]) -> Vec<Node> {
+        if fresh && self.passes(background) {
+            return Vec::new();
         }
-        cur
+        if cands.len() == 1 {
+            return cands.to_vec();
+        }
+        let (c1, c2) = cands.split_at(cands.len() / 2);
+        let with_c1 = [background, c1].concat();
+        let x2 = self.quick(&with_c1, true, c2);
+        let with_x2 = [background, &x2].concat();
+        let x1 = self.quick(&with_x2, !x2.is_empty(), c1);
+        [x1, x2].concat()
     }
 }
 
-/// Observed nodes other than `x` and `y` that meet condition (2) alone.
+/// Observed ancestors of `y`, other than `x` and `y`, that meet condition
+/// (2) alone: every minimal front-door set is made of them.
 fn candidates(g: &Graph, x: Node, y: Node) -> Vec<Node> {
     let open_from_x = g.without_edges_out_of(&[x]).d_connected_from(&[x], &[]);
+    let anc_y = g.ancestors(&[y]);
     (0..g.len())
-        .filter(|&v| v != x && v != y && !g.is_latent(v) && !open_from_x[v])
+        .filter(|&v| v != x && v != y && anc_y[v] && !g.is_latent(v) && !open_from_x[v])
         .collect()
 }
 
@@ -163,7 +225,7 @@ pub fn frontdoor_obstacle(g: &Graph, x: Node, y: Node) -> Option<String> {
              do not intercept every directed path from {ex} to {ey} (condition 1)"
         ));
     }
-    let search = Search { g, x, y };
+    let search = Search::new(g, x, y);
     match search.largest_within(cands) {
         Some(_) => None,
         None => Some(format!(
@@ -183,7 +245,7 @@ pub fn minimal_frontdoor_sets(g: &Graph, x: Node, y: Node, cap: usize) -> (Vec<V
     if x == y || !g.is_ancestor(x, y) || g.has_edge(x, y) {
         return (Vec::new(), false);
     }
-    let search = Search { g, x, y };
+    let search = Search::new(g, x, y);
     let mut found: BTreeSet<Vec<Node>> = BTreeSet::new();
     let mut searched: HashSet<Vec<Node>> = HashSet::new();
     let mut stack = vec![candidates(g, x, y)];
