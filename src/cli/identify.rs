@@ -9,12 +9,13 @@ use causeway::{Error, Result};
 use std::io::{Read, Write};
 use std::path::PathBuf;
 
-/// Say which sets of observed variables identify the effect of the exposure
-/// on the outcome: backdoor adjustment sets (every minimal one and the
-/// optimal one), front-door sets, and the backdoor paths to block.
+/// Which variables to adjust for, and whether the effect is identified.
 ///
-/// Nodes of the graph that are not columns of --data are unobserved. Exit
-/// code 3 when neither criterion identifies the effect.
+/// Lists the backdoor paths to block, every minimal backdoor adjustment set,
+/// the optimal adjustment set and the front-door sets, and checks a set given
+/// with --adjust against the backdoor criterion. Nodes of the graph that are
+/// not columns of --data are unobserved. Exit code 3 when neither the
+/// backdoor nor the front-door criterion identifies the effect.
 ///
 /// Example:
 ///   causeway identify --graph study.graph --exposure enrolled --outcome pain_days \
@@ -41,7 +42,7 @@ pub struct Args {
     /// A set to check against the backdoor criterion, comma-separated.
     #[arg(long, value_name = "A,B")]
     adjust: Option<String>,
-    /// text (a report in words) or json (the keys of the command-line contract).
+    /// text (a report in words) or json (stable keys, for scripts).
     #[arg(long, default_value = "text", value_parser = ["text", "json"])]
     format: String,
     /// Print no warnings.
