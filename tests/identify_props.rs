@@ -384,10 +384,11 @@ proptest! {
             .filter(|&v| keep[v] && !de[v] && !g.is_latent(v) && v != y)
             .collect();
         prop_assert_eq!(sets.is_empty(), !is_backdoor_set(&g, x, y, &largest));
-        if !sets.is_empty() && g.is_ancestor(x, y) {
-            if let Err(e) = optimal_set(&g, x, y) {
-                prop_assert!(e.contains("unobserved"), "{}", e);
-            }
+        if !sets.is_empty()
+            && g.is_ancestor(x, y)
+            && let Err(e) = optimal_set(&g, x, y)
+        {
+            prop_assert!(e.contains("unobserved"), "{}", e);
         }
     }
 
