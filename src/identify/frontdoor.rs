@@ -40,7 +40,7 @@
 //! S minus that member; searched sets are remembered so none is searched
 //! twice.
 
-use crate::graph::{Graph, Node};
+use crate::graph::{Graph, Node, quote};
 use std::collections::{BTreeSet, HashSet};
 
 /// Upper bound on candidate sets searched; past it the list is reported as
@@ -209,7 +209,7 @@ fn candidates(g: &Graph, x: Node, y: Node) -> Vec<Node> {
 /// Why no front-door set exists, in words (None when one does). Names the
 /// first condition that no set of observed variables can meet.
 pub fn frontdoor_obstacle(g: &Graph, x: Node, y: Node) -> Option<String> {
-    let (ex, ey) = (g.name(x), g.name(y));
+    let (ex, ey) = (quote(g.name(x)), quote(g.name(y)));
     if x == y || !g.is_ancestor(x, y) {
         return Some(format!("there is no directed path from {ex} to {ey}"));
     }

@@ -10,7 +10,7 @@
 //! adjustment set exactly when it meets the backdoor criterion.
 
 use super::backdoor::is_backdoor_set;
-use crate::graph::{Graph, Node};
+use crate::graph::{Graph, Node, quote};
 
 /// The optimal adjustment set O for the effect of `x` on `y`, sorted by name,
 /// or the reason it cannot be used: a member is unobserved, or O does not
@@ -27,8 +27,8 @@ pub fn optimal_set(g: &Graph, x: Node, y: Node) -> Result<Vec<Node>, String> {
         } else {
             Err(format!(
                 "{} is not an ancestor of {}, and adjusting for nothing leaves a backdoor path open",
-                g.name(x),
-                g.name(y)
+                quote(g.name(x)),
+                quote(g.name(y))
             ))
         };
     }
@@ -37,7 +37,11 @@ pub fn optimal_set(g: &Graph, x: Node, y: Node) -> Result<Vec<Node>, String> {
     if !latent.is_empty() {
         return Err(format!(
             "the optimal set includes unobserved {}",
-            g.names_of(&latent).join(", ")
+            latent
+                .iter()
+                .map(|&v| quote(g.name(v)))
+                .collect::<Vec<_>>()
+                .join(", ")
         ));
     }
     if !is_backdoor_set(g, x, y, &o) {

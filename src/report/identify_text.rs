@@ -289,3 +289,52 @@ fn given(out: &mut String, id: &Identification, g: &Graph, x: &str) {
     }
     let _ = writeln!(out);
 }
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::graph::parse;
+    use crate::identify::identify;
+
+    fn graph(text: &str) -> Graph {
+        parse(text, "t").unwrap().graph
+    }
+
+    #[test]
+    fn paths_show_arrows_and_bidirected_pairs() {
+        let g = graph("A -> \"blood pressure\"\nA -> Y\n\"blood pressure\" <-> Y");
+        let p = |v: &[&str]| v.iter().map(|s| s.to_string()).collect::<Vec<_>>();
+        assert_eq!(
+            path_text(&g, &p(&["blood pressure", "A", "Y"])),
+            "\"blood pressure\" <- A -> Y"
+        );
+        let u = g.latent_nodes()[0];
+        assert_eq!(
+            path_text(&g, &p(&["blood pressure", g.name(u), "Y"])),
+            "\"blood pressure\" <-> Y"
+        );
+    }
+
+    #[test]
+    fn report_names_recommendation_truncation_and_caution() {
+        let g = graph("A -> X\nA -> B -> Y\nX -> Y");
+        let (x, y) = (g.node("X").unwrap(), g.node("Y").unwrap());
+        let mut id = identify(&g, x, y, Some(&[]));
+        let text = identify_text(&id, &g);
+        assert!(text.contains("Recommended adjustment set: {B}"), "{text}");
+        assert!(text.contains("optimal set"));
+        assert!(text.contains("Your set nothing (the empty set): does NOT meet"));
+        assert!(text.contains("X <- A -> B -> Y"));
+        assert!(text.contains("only as valid as the declared graph"));
+        id.backdoor.minimal_sets_truncated = true;
+        id.backdoor.optimal_set = None;
+        id.backdoor.optimal_set_reason = Some("a reason".into());
+        let text = identify_text(&id, &g);
+        assert!(text.contains(&format!("more than {SET_CAP}")), "{text}");
+        assert!(
+            text.contains("(a reason); this is the smallest minimal set"),
+            "{text}"
+        );
+        assert!(text.contains("Recommended adjustment set: {A}"), "{text}");
+    }
+}
