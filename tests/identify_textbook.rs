@@ -150,3 +150,31 @@ fn exposure_not_an_ancestor_of_outcome() {
     assert_eq!(id2.backdoor.optimal_set, Some(Vec::new()));
     assert_eq!(id2.backdoor.minimal_sets, vec![Vec::<String>::new()]);
 }
+
+// NHEFS (Hernán & Robins, Causal Inference: What If, 2020, ch. 12): with the
+// nine baseline covariates as common causes of qsmk and wt82_71, the one
+// minimal adjustment set and the optimal set are all nine, the set the book
+// adjusts for. Graph copied unchanged from the project's reference data
+// (tests/data/nhefs.graph, which names its source).
+#[test]
+fn nhefs_graph_adjusts_for_the_nine_covariates() {
+    let text = std::fs::read_to_string(crate::helpers::data("nhefs.graph")).unwrap();
+    let g = graph(&text);
+    let (x, y) = (node(&g, "qsmk"), node(&g, "wt82_71"));
+    let mut nine = vec![
+        "active",
+        "age",
+        "education",
+        "exercise",
+        "race",
+        "sex",
+        "smokeintensity",
+        "smokeyrs",
+        "wt71",
+    ];
+    nine.sort();
+    let id = identify(&g, x, y, None);
+    assert_eq!(id.backdoor.minimal_sets, sets(&[&nine]));
+    assert_eq!(id.backdoor.optimal_set, Some(sets(&[&nine]).remove(0)));
+    assert_eq!(id.backdoor.open_paths.len(), 9);
+}
