@@ -15,6 +15,7 @@
 pub mod check;
 pub mod error;
 pub mod graph;
+pub mod identify;
 pub mod infer;
 pub mod report;
 pub mod sensitivity;

@@ -5,7 +5,11 @@ mod helpers;
 
 mod bootstrap;
 mod cli_draw;
+mod cli_identify;
 mod graph_parse;
 mod graph_props;
+mod identify_dsep;
+mod identify_props;
+mod identify_textbook;
 mod sensitivity;
 mod simulate;

@@ -8,6 +8,7 @@ use std::io::Write;
 
 mod common;
 mod draw;
+mod identify;
 mod sensitivity;
 mod simulate;
 
@@ -31,6 +32,7 @@ enum Command {
     Draw(draw::Args),
     Simulate(simulate::Args),
     Sensitivity(sensitivity::Args),
+    Identify(identify::Args),
 }
 
 /// Runs the command line and returns the process exit code.
@@ -53,6 +55,7 @@ pub fn main() -> i32 {
         Command::Draw(a) => draw::run(a),
         Command::Simulate(a) => simulate::run(a),
         Command::Sensitivity(a) => sensitivity::run(a),
+        Command::Identify(a) => identify::run(a),
     });
     match outcome {
         Ok(Ok(code)) => code,

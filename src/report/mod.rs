@@ -8,6 +8,7 @@
 pub mod csv;
 pub mod doc;
 pub mod graph_figure;
+pub mod identify_text;
 pub mod latex;
 pub mod markdown;
 pub mod sensitivity_text;

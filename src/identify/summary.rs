@@ -1,0 +1,191 @@
+//! [`Identification`]: everything `causeway identify` reports, gathered
+//! from the criteria of this module. It serialises exactly as the `identify`
+//! JSON of the command-line contract; facts only the text report needs are
+//! kept in fields that are not serialised.
+
+use super::{
+    OPEN_PATH_CAP, SET_CAP, check_backdoor, frontdoor_obstacle, minimal_backdoor_sets,
+    minimal_frontdoor_sets, open_backdoor_paths, optimal_set,
+};
+use crate::graph::{Graph, Node};
+use serde::Serialize;
+
+/// How the effect is identified.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize)]
+#[serde(rename_all = "lowercase")]
+pub enum Strategy {
+    /// By adjustment for a set meeting the backdoor criterion.
+    Backdoor,
+    /// By the front-door formula through a set of intermediate variables.
+    Frontdoor,
+    /// Not identified by the criteria the tool knows.
+    None,
+}
+
+/// The backdoor part of an [`Identification`].
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct BackdoorSummary {
+    /// Some set of observed variables meets the backdoor criterion.
+    pub identified: bool,
+    /// Every inclusion-minimal backdoor adjustment set (each sorted; the
+    /// list by size, then names); `[[]]` when adjusting for nothing is valid.
+    pub minimal_sets: Vec<Vec<String>>,
+    /// The optimal adjustment set, when it is observed and valid.
+    pub optimal_set: Option<Vec<String>>,
+    /// Backdoor paths open when adjusting for nothing.
+    pub open_paths: Vec<Vec<String>>,
+    /// There are more minimal sets than listed.
+    #[serde(skip)]
+    pub minimal_sets_truncated: bool,
+    /// There are more open paths than listed.
+    #[serde(skip)]
+    pub open_paths_truncated: bool,
+    /// Why the optimal set is `None`.
+    #[serde(skip)]
+    pub optimal_set_reason: Option<String>,
+}
+
+/// The front-door part of an [`Identification`].
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct FrontdoorSummary {
+    /// Some set of observed variables meets the front-door criterion.
+    pub identified: bool,
+    /// Every inclusion-minimal front-door set (each sorted; the list by
+    /// size, then names).
+    pub sets: Vec<Vec<String>>,
+    /// The listing stopped early.
+    #[serde(skip)]
+    pub truncated: bool,
+    /// Why no set meets the criterion, when none does.
+    #[serde(skip)]
+    pub obstacle: Option<String>,
+}
+
+/// The backdoor criterion applied to a set the analyst gave.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct GivenSet {
+    /// The set, sorted by name.
+    pub set: Vec<String>,
+    /// It meets the backdoor criterion.
+    pub valid: bool,
+    /// Backdoor paths the set leaves open.
+    pub open_paths: Vec<Vec<String>>,
+    /// There are more open paths than listed.
+    #[serde(skip)]
+    pub open_paths_truncated: bool,
+    /// Members that are descendants of the exposure.
+    #[serde(skip)]
+    pub descendants_of_exposure: Vec<String>,
+}
+
+/// What the graph says about identifying the effect of the exposure on the
+/// outcome; serialises as the `identify` JSON of the command-line contract.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct Identification {
+    /// The exposure's name.
+    pub exposure: String,
+    /// The outcome's name.
+    pub outcome: String,
+    /// Observed nodes, in declaration order.
+    pub observed: Vec<String>,
+    /// Unobserved nodes, in declaration order (those made by `a <-> b`
+    /// included).
+    pub latent: Vec<String>,
+    /// How the effect is identified: backdoor when some observed set meets
+    /// the backdoor criterion, else frontdoor when some set meets the
+    /// front-door criterion, else none.
+    pub strategy: Strategy,
+    /// The backdoor criterion.
+    pub backdoor: BackdoorSummary,
+    /// The front-door criterion.
+    pub frontdoor: FrontdoorSummary,
+    /// The set the analyst gave, when one was given.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub given_set: Option<GivenSet>,
+    /// The exposure is an ancestor of the outcome (when it is not, the graph
+    /// implies no effect).
+    #[serde(skip)]
+    pub exposure_is_ancestor: bool,
+}
+
+impl Identification {
+    /// The adjustment set to use: the optimal set when it is valid, else the
+    /// smallest minimal set (ties broken by names); None when no observed
+    /// set meets the backdoor criterion.
+    pub fn recommended_adjustment(&self) -> Option<Vec<String>> {
+        self.backdoor
+            .optimal_set
+            .clone()
+            .or_else(|| self.backdoor.minimal_sets.first().cloned())
+    }
+
+    /// The smallest front-door set (ties broken by names), if any.
+    pub fn recommended_frontdoor(&self) -> Option<Vec<String>> {
+        self.frontdoor.sets.first().cloned()
+    }
+}
+
+fn names(g: &Graph, sets: &[Vec<Node>]) -> Vec<Vec<String>> {
+    sets.iter().map(|s| g.names_of(s)).collect()
+}
+
+/// Applies every criterion of this module to the effect of `x` on `y`, and
+/// checks `given` against the backdoor criterion when it is passed. The
+/// caller makes sure `x` and `y` are distinct observed nodes and that
+/// `given` holds neither.
+pub fn identify(g: &Graph, x: Node, y: Node, given: Option<&[Node]>) -> Identification {
+    let (open, open_truncated) = open_backdoor_paths(g, x, y, &[], OPEN_PATH_CAP);
+    let (minimal, minimal_truncated) = minimal_backdoor_sets(g, x, y, SET_CAP);
+    let optimal = optimal_set(g, x, y);
+    let (front, front_truncated) = minimal_frontdoor_sets(g, x, y, SET_CAP);
+    let backdoor = BackdoorSummary {
+        identified: !minimal.is_empty(),
+        minimal_sets: names(g, &minimal),
+        optimal_set: optimal.as_ref().ok().map(|o| g.names_of(o)),
+        open_paths: names(g, &open),
+        minimal_sets_truncated: minimal_truncated,
+        open_paths_truncated: open_truncated,
+        optimal_set_reason: optimal.err(),
+    };
+    let frontdoor = FrontdoorSummary {
+        identified: !front.is_empty(),
+        sets: names(g, &front),
+        truncated: front_truncated,
+        obstacle: if front.is_empty() {
+            frontdoor_obstacle(g, x, y)
+        } else {
+            None
+        },
+    };
+    let strategy = if backdoor.identified {
+        Strategy::Backdoor
+    } else if frontdoor.identified {
+        Strategy::Frontdoor
+    } else {
+        Strategy::None
+    };
+    let given_set = given.map(|z| {
+        let mut z = z.to_vec();
+        super::sort_by_name(g, &mut z);
+        z.dedup();
+        let check = check_backdoor(g, x, y, &z);
+        GivenSet {
+            set: g.names_of(&z),
+            valid: check.valid,
+            open_paths: names(g, &check.open_paths),
+            open_paths_truncated: check.open_paths_truncated,
+            descendants_of_exposure: g.names_of(&check.descendants_of_exposure),
+        }
+    });
+    Identification {
+        exposure: g.name(x).to_string(),
+        outcome: g.name(y).to_string(),
+        observed: g.names_of(&g.observed()),
+        latent: g.names_of(&g.latent_nodes()),
+        strategy,
+        backdoor,
+        frontdoor,
+        given_set,
+        exposure_is_ancestor: g.is_ancestor(x, y),
+    }
+}

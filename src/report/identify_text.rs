@@ -1,0 +1,340 @@
+//! The `identify` result in plain words: the verdict, the backdoor paths to
+//! block, the recommended adjustment set and why, every minimal set, the
+//! front-door set and the conditions it meets, and a check of the analyst's
+//! own set. Only lays out an [`Identification`]; the graph is used to draw
+//! each path's arrows.
+
+use crate::graph::{Graph, quote};
+use crate::identify::{Identification, OPEN_PATH_CAP, SET_CAP, Strategy};
+use std::fmt::Write;
+
+/// The closing caution of the identification report.
+pub const CAUTION: &str = "Caution: these answers are only as valid as the declared graph and the usual \
+assumptions (no unmeasured confounding beyond the graph, positivity, consistency, correctly specified \
+models). They do not replace study design review, subject-matter and clinical judgement, or the ethics \
+and reporting rules that apply locally.";
+
+/// A node name as written in a graph file (quoted when needed).
+fn show(name: &str) -> String {
+    quote(name)
+}
+
+/// Text width of the report.
+const WIDTH: usize = 88;
+
+/// Writes `text` as a paragraph wrapped at [`WIDTH`] columns: the first line
+/// starts with `first` (and a space, unless it ends with one), the others
+/// with `rest`.
+fn para(out: &mut String, first: &str, rest: &str, text: &str) {
+    let mut line = first.to_string();
+    let mut empty = first.is_empty() || first.ends_with(' ');
+    for word in text.split_whitespace() {
+        if !empty && line.chars().count() + 1 + word.chars().count() > WIDTH {
+            let _ = writeln!(out, "{line}");
+            line = rest.to_string();
+            empty = rest.is_empty() || rest.ends_with(' ');
+        }
+        if !empty {
+            line.push(' ');
+        }
+        line.push_str(word);
+        empty = false;
+    }
+    let _ = writeln!(out, "{line}");
+}
+
+/// A set as `{a, b}`, or `nothing (the empty set)`.
+fn set_text(set: &[String]) -> String {
+    if set.is_empty() {
+        "nothing (the empty set)".to_string()
+    } else {
+        let names: Vec<String> = set.iter().map(|s| show(s)).collect();
+        format!("{{{}}}", names.join(", "))
+    }
+}
+
+/// A path with its arrows, `x <- a -> y`; a latent node made by `a <-> b`
+/// between its two nodes is written `a <-> b`.
+pub fn path_text(g: &Graph, path: &[String]) -> String {
+    let nodes: Vec<Option<usize>> = path.iter().map(|n| g.node(n)).collect();
+    let mut out = show(&path[0]);
+    let mut i = 1;
+    while i < path.len() {
+        let (a, b) = (nodes[i - 1], nodes[i]);
+        let pair = b.and_then(|b| g.bidirected_pair(b));
+        let next = nodes.get(i + 1).copied().flatten();
+        if let (Some((p, q)), Some(a), Some(c)) = (pair, a, next)
+            && ((p, q) == (a, c) || (q, p) == (a, c))
+        {
+            let _ = write!(out, " <-> {}", show(&path[i + 1]));
+            i += 2;
+            continue;
+        }
+        let arrow = match (a, b) {
+            (Some(a), Some(b)) if g.has_edge(b, a) => "<-",
+            _ => "->",
+        };
+        let _ = write!(out, " {arrow} {}", show(&path[i]));
+        i += 1;
+    }
+    out
+}
+
+fn paths_block(out: &mut String, g: &Graph, paths: &[Vec<String>], truncated: bool) {
+    for p in paths {
+        let _ = writeln!(out, "    {}", path_text(g, p));
+    }
+    if truncated {
+        let _ = writeln!(
+            out,
+            "    (more than {OPEN_PATH_CAP}; only the first {OPEN_PATH_CAP} are shown)"
+        );
+    }
+}
+
+fn names_line(g: &Graph, names: &[String]) -> String {
+    let mut plain = Vec::new();
+    let mut pairs = Vec::new();
+    for n in names {
+        match g.node(n).and_then(|v| g.bidirected_pair(v)) {
+            Some((a, b)) => pairs.push(format!("{} <-> {}", show(g.name(a)), show(g.name(b)))),
+            None => plain.push(show(n)),
+        }
+    }
+    if !pairs.is_empty() {
+        let what = if pairs.len() == 1 {
+            "a common cause"
+        } else {
+            "common causes"
+        };
+        plain.push(format!("{what} written {}", pairs.join(", ")));
+    }
+    plain.join(", ")
+}
+
+/// Renders the identification report as plain text.
+pub fn identify_text(id: &Identification, g: &Graph) -> String {
+    let mut out = String::new();
+    let (x, y) = (show(&id.exposure), show(&id.outcome));
+    let _ = writeln!(out, "Identifying the effect of {x} on {y}");
+    para(
+        &mut out,
+        "  observed:   ",
+        "              ",
+        &names_line(g, &id.observed),
+    );
+    if !id.latent.is_empty() {
+        para(
+            &mut out,
+            "  unobserved:",
+            "              ",
+            &names_line(g, &id.latent),
+        );
+    }
+    let _ = writeln!(out);
+    verdict(&mut out, id, &x, &y);
+    backdoor(&mut out, id, g, &x);
+    frontdoor(&mut out, id, &x, &y);
+    given(&mut out, id, g, &x);
+    para(&mut out, "", "", CAUTION);
+    out
+}
+
+fn verdict(out: &mut String, id: &Identification, x: &str, y: &str) {
+    let text = match id.strategy {
+        Strategy::Backdoor => {
+            "identified by adjustment (some set of observed variables meets the backdoor criterion)."
+        }
+        Strategy::Frontdoor => {
+            "identified through the front-door criterion (no set of observed variables meets the backdoor criterion)."
+        }
+        Strategy::None => "not identified by the backdoor or the front-door criterion under this graph.",
+    };
+    para(out, "Verdict:", "  ", text);
+    if !id.exposure_is_ancestor {
+        para(
+            out,
+            "  ",
+            "  ",
+            &format!(
+                "The graph has no directed path from {x} to {y}: it implies that {x} has no effect on {y}."
+            ),
+        );
+    }
+    let _ = writeln!(out);
+}
+
+fn backdoor(out: &mut String, id: &Identification, g: &Graph, x: &str) {
+    let b = &id.backdoor;
+    if b.open_paths.is_empty() {
+        let _ = writeln!(out, "Backdoor paths: none is open without adjustment.");
+    } else {
+        let _ = writeln!(
+            out,
+            "Backdoor paths open without adjustment, to be blocked ({}{}):",
+            if b.open_paths_truncated { "more than " } else { "" },
+            b.open_paths.len()
+        );
+        paths_block(out, g, &b.open_paths, b.open_paths_truncated);
+    }
+    let _ = writeln!(out);
+    match id.recommended_adjustment() {
+        Some(set) => {
+            let _ = writeln!(out, "Recommended adjustment set: {}", set_text(&set));
+            if b.optimal_set.is_some() {
+                para(
+                    out,
+                    "  why:",
+                    "       ",
+                    "it is the optimal set O = pa(cn) minus forb (Henckel, Perkovic & Maathuis 2022), \
+                     which among valid adjustment sets gives the smallest asymptotic variance for many \
+                     estimators.",
+                );
+            } else {
+                let reason = b.optimal_set_reason.as_deref().unwrap_or("it is not available");
+                para(
+                    out,
+                    "  why:",
+                    "       ",
+                    &format!("the optimal set cannot be used ({reason}); this is the smallest minimal set."),
+                );
+            }
+        }
+        None => para(
+            out,
+            "Adjustment:",
+            "  ",
+            &format!(
+                "no set of observed variables blocks every backdoor path without including an \
+                 unobserved variable or a descendant of {x}."
+            ),
+        ),
+    }
+    if !b.minimal_sets.is_empty() {
+        let count = if b.minimal_sets_truncated {
+            format!("more than {SET_CAP}; the first {SET_CAP} found")
+        } else {
+            b.minimal_sets.len().to_string()
+        };
+        let _ = writeln!(out, "Minimal adjustment sets ({count}):");
+        for s in &b.minimal_sets {
+            let _ = writeln!(out, "    {}", set_text(s));
+        }
+    }
+    let _ = writeln!(out);
+}
+
+fn frontdoor(out: &mut String, id: &Identification, x: &str, y: &str) {
+    let f = &id.frontdoor;
+    match id.recommended_frontdoor() {
+        Some(set) => {
+            let _ = writeln!(out, "Front-door set: {}", set_text(&set));
+            para(
+                out,
+                "  it meets all three conditions:",
+                "    ",
+                &format!(
+                    "(1) every directed path from {x} to {y} passes through it; (2) no backdoor path \
+                     from {x} to it is open; (3) {x} blocks every backdoor path from it to {y}."
+                ),
+            );
+            if f.sets.len() > 1 || f.truncated {
+                let count = if f.truncated {
+                    format!("more than {}, the first found", f.sets.len())
+                } else {
+                    f.sets.len().to_string()
+                };
+                let _ = writeln!(out, "Minimal front-door sets ({count}):");
+                for s in &f.sets {
+                    let _ = writeln!(out, "    {}", set_text(s));
+                }
+            }
+        }
+        None => {
+            let reason = f
+                .obstacle
+                .as_deref()
+                .unwrap_or("no set of observed variables meets it");
+            para(out, "Front-door:", "  ", &format!("no set works: {reason}."));
+        }
+    }
+    let _ = writeln!(out);
+}
+
+fn given(out: &mut String, id: &Identification, g: &Graph, x: &str) {
+    let Some(s) = &id.given_set else {
+        return;
+    };
+    let verdict = if s.valid {
+        "meets the backdoor criterion"
+    } else {
+        "does NOT meet the backdoor criterion"
+    };
+    let _ = writeln!(out, "Your set {}: {verdict}.", set_text(&s.set));
+    if !s.descendants_of_exposure.is_empty() {
+        let names: Vec<String> = s.descendants_of_exposure.iter().map(|n| show(n)).collect();
+        para(
+            out,
+            "  it includes",
+            "    ",
+            &format!(
+                "descendants of {x}, which must not be adjusted for: {}",
+                names.join(", ")
+            ),
+        );
+    }
+    if !s.open_paths.is_empty() {
+        let _ = writeln!(out, "  backdoor paths it leaves open:");
+        paths_block(out, g, &s.open_paths, s.open_paths_truncated);
+    }
+    let _ = writeln!(out);
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::graph::parse;
+    use crate::identify::identify;
+
+    fn graph(text: &str) -> Graph {
+        parse(text, "t").unwrap().graph
+    }
+
+    #[test]
+    fn paths_show_arrows_and_bidirected_pairs() {
+        let g = graph("A -> \"blood pressure\"\nA -> Y\n\"blood pressure\" <-> Y");
+        let p = |v: &[&str]| v.iter().map(|s| s.to_string()).collect::<Vec<_>>();
+        assert_eq!(
+            path_text(&g, &p(&["blood pressure", "A", "Y"])),
+            "\"blood pressure\" <- A -> Y"
+        );
+        let u = g.latent_nodes()[0];
+        assert_eq!(
+            path_text(&g, &p(&["blood pressure", g.name(u), "Y"])),
+            "\"blood pressure\" <-> Y"
+        );
+    }
+
+    #[test]
+    fn report_names_recommendation_truncation_and_caution() {
+        let g = graph("A -> X\nA -> B -> Y\nX -> Y");
+        let (x, y) = (g.node("X").unwrap(), g.node("Y").unwrap());
+        let mut id = identify(&g, x, y, Some(&[]));
+        let text = identify_text(&id, &g);
+        assert!(text.contains("Recommended adjustment set: {B}"), "{text}");
+        assert!(text.contains("optimal set"));
+        assert!(text.contains("Your set nothing (the empty set): does NOT meet"));
+        assert!(text.contains("X <- A -> B -> Y"));
+        assert!(text.contains("only as valid as the declared graph"));
+        id.backdoor.minimal_sets_truncated = true;
+        id.backdoor.optimal_set = None;
+        id.backdoor.optimal_set_reason = Some("a reason".into());
+        let text = identify_text(&id, &g);
+        assert!(text.contains(&format!("more than {SET_CAP}")), "{text}");
+        assert!(
+            text.contains("(a reason); this is the smallest minimal set"),
+            "{text}"
+        );
+        assert!(text.contains("Recommended adjustment set: {A}"), "{text}");
+    }
+}
