@@ -12,8 +12,11 @@
 //! consistency, correctly specified models).
 #![warn(missing_docs)]
 
+pub mod data;
 pub mod error;
+pub mod estimate;
 pub mod graph;
+pub mod model;
 pub mod report;
 
 pub use error::{Error, Result};

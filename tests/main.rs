@@ -5,3 +5,5 @@ mod helpers;
 
 mod cli_draw;
 mod graph_parse;
+mod estimate_nhefs;
+mod model_fixtures;
