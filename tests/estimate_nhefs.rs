@@ -5,7 +5,7 @@
 
 use crate::helpers::data;
 use causeway::data::{Dataset, ReadOptions, Shape};
-use causeway::estimate::{self, Method, Problem, Spec, diagnostics, method, sensitivity_inputs};
+use causeway::estimate::{self, Problem, Spec, diagnostics, method, sensitivity_inputs};
 
 /// The nine covariates of tests/data/nhefs.graph.
 pub const COVARIATES: [&str; 9] = [
@@ -59,7 +59,11 @@ fn ipw_ate_matches_program_12_2() {
     assert!((e.estimate - 3.4405).abs() < 1e-3, "{}", e.estimate);
     assert!((e.ci[0] - 2.4106).abs() < 0.15, "{:?}", e.ci);
     assert!((e.ci[1] - 4.4705).abs() < 0.15, "{:?}", e.ci);
-    assert!(e.ci[1] - e.ci[0] <= 4.4705 - 2.4106 + 1e-9, "sandwich not wider: {:?}", e.ci);
+    assert!(
+        e.ci[1] - e.ci[0] <= 4.4705 - 2.4106 + 1e-9,
+        "sandwich not wider: {:?}",
+        e.ci
+    );
     let point = method("ipw").unwrap().point(&p, None, None).unwrap();
     assert!((point - e.estimate).abs() < 1e-12);
 }
@@ -81,7 +85,11 @@ fn weights_match_programs_12_2_and_12_3() {
         assert!((got - want).abs() < 1e-4, "{got} vs {want}");
     }
     assert_eq!(d.balance.len(), 18);
-    assert!(d.balance.iter().all(|b| b.smd_weighted.abs() < 0.1), "{:?}", d.balance);
+    assert!(
+        d.balance.iter().all(|b| b.smd_weighted.abs() < 0.1),
+        "{:?}",
+        d.balance
+    );
     assert!(d.balance.iter().any(|b| b.smd_raw.abs() > 0.1));
     assert!(w.ess_treated > 100.0 && w.ess_treated < 403.0);
 }
@@ -95,7 +103,11 @@ fn standardization_with_product_term_matches_chapter_13() {
     let e = method("regression").unwrap().estimate(&p).unwrap();
     assert!((e.estimate - 3.5174).abs() < 1e-4, "{}", e.estimate);
     // Analytic interval against the book's bootstrap interval: within 0.15.
-    assert!((e.ci[0] - 2.6).abs() < 0.15 && (e.ci[1] - 4.5).abs() < 0.15, "{:?}", e.ci);
+    assert!(
+        (e.ci[0] - 2.6).abs() < 0.15 && (e.ci[1] - 4.5).abs() < 0.15,
+        "{:?}",
+        e.ci
+    );
 }
 
 #[test]
@@ -107,7 +119,11 @@ fn unadjusted_difference_matches_chapter_12() {
     // The published CI (to 1 decimal) is the equal-variance one; ours is
     // the sandwich, wider here because the arms' variances differ: each end
     // within 0.15.
-    assert!((e.ci[0] - 1.7).abs() < 0.15 && (e.ci[1] - 3.4).abs() < 0.15, "{:?}", e.ci);
+    assert!(
+        (e.ci[0] - 1.7).abs() < 0.15 && (e.ci[1] - 3.4).abs() < 0.15,
+        "{:?}",
+        e.ci
+    );
     // With no covariates and no products the stacked-equation SE of the
     // standardized difference is exactly the HC0 SE of the exposure
     // coefficient (White 1980; closed form, 1e-10 relative).
@@ -144,7 +160,12 @@ fn sensitivity_inputs_match_statsmodels() {
     let so = &fx["sensitivity_outcome_ols"];
     let se = &fx["sensitivity_exposure_ols"];
     let at = |f: &serde_json::Value, key: &str, name: &str| -> f64 {
-        let i = f["names"].as_array().unwrap().iter().position(|n| n == name).unwrap();
+        let i = f["names"]
+            .as_array()
+            .unwrap()
+            .iter()
+            .position(|n| n == name)
+            .unwrap();
         f[key][i].as_f64().unwrap()
     };
     assert!((s.estimate - at(so, "coef", "qsmk")).abs() < 1e-6);

@@ -4,6 +4,6 @@
 mod helpers;
 
 mod cli_draw;
-mod graph_parse;
 mod estimate_nhefs;
+mod graph_parse;
 mod model_fixtures;

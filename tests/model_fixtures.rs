@@ -12,7 +12,8 @@ use nalgebra::DVector;
 use serde_json::Value;
 
 fn fixtures() -> Value {
-    serde_json::from_str(&std::fs::read_to_string(crate::helpers::fixture("nhefs_models.json")).unwrap()).unwrap()
+    serde_json::from_str(&std::fs::read_to_string(crate::helpers::fixture("nhefs_models.json")).unwrap())
+        .unwrap()
 }
 
 fn close(got: f64, want: f64, what: &str) {
@@ -24,10 +25,18 @@ fn close(got: f64, want: f64, what: &str) {
 
 /// Compares coefficients (uncentred) and standard errors by term name.
 fn compare(f: &Value, names: &[String], coef: &DVector<f64>, se: &[(&str, DVector<f64>)]) {
-    let fnames: Vec<&str> = f["names"].as_array().unwrap().iter().map(|v| v.as_str().unwrap()).collect();
+    let fnames: Vec<&str> = f["names"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .map(|v| v.as_str().unwrap())
+        .collect();
     assert_eq!(fnames.len(), names.len(), "{names:?}");
     for (j, n) in names.iter().enumerate() {
-        let k = fnames.iter().position(|x| x == n).unwrap_or_else(|| panic!("term {n}"));
+        let k = fnames
+            .iter()
+            .position(|x| x == n)
+            .unwrap_or_else(|| panic!("term {n}"));
         close(coef[j], f["coef"][k].as_f64().unwrap(), &format!("coef {n}"));
         for (key, s) in se {
             close(s[j], f[*key][k].as_f64().unwrap(), &format!("{key} {n}"));
@@ -44,7 +53,10 @@ fn propensity_logit_matches_statsmodels_glm() {
     let fx = fixtures();
     let p = Problem::build(&nhefs(), &nhefs_spec(&COVARIATES, &[])).unwrap();
     let rows = p.propensity.rows(&p.frame, Setting::Observed);
-    for (key, w) in [("propensity_logit", None), ("propensity_logit_freq", Some(freq(p.n())))] {
+    for (key, w) in [
+        ("propensity_logit", None),
+        ("propensity_logit_freq", Some(freq(p.n()))),
+    ] {
         let f = Logit::fit(&rows, p.a(), w.as_deref(), None, LogitOptions::default()).unwrap();
         assert!(f.separation.is_none());
         let (b, v) = p.propensity.uncenter(&f.coef, &f.cov);
@@ -70,7 +82,12 @@ fn outcome_ols_matches_statsmodels_classic_and_hc0() {
         let (_, vh) = p.outcome_design.uncenter(&f.coef, &f.cov_hc0);
         let se = v.diagonal().map(f64::sqrt);
         let seh = vh.diagonal().map(f64::sqrt);
-        compare(&fx[key], &p.outcome_design.names(), &b, &[("se", se), ("se_hc0", seh)]);
+        compare(
+            &fx[key],
+            &p.outcome_design.names(),
+            &b,
+            &[("se", se), ("se_hc0", seh)],
+        );
         assert_eq!(f.df, fx[key]["df_resid"].as_f64().unwrap());
     }
 }

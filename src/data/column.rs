@@ -126,7 +126,9 @@ impl Column {
     /// Level code of every row (`u32::MAX` = missing) and the level texts,
     /// for a text column.
     pub fn codes(&self) -> Option<(&[u32], &[String])> {
-        self.text.as_ref().map(|t| (t.codes.as_slice(), t.levels.as_slice()))
+        self.text
+            .as_ref()
+            .map(|t| (t.codes.as_slice(), t.levels.as_slice()))
     }
 
     /// The values for a numeric role, or an input error naming the first

@@ -144,7 +144,13 @@ impl Design {
     /// A design: intercept, then the exposure (if any), then the terms of
     /// each covariate, then exposure products with each `interact` column
     /// (its linear term, or each of its dummies); centred over `frame`.
-    pub fn build(frame: &Frame, exposure: Option<usize>, covariates: &[usize], shape: Shape, interact: &[usize]) -> Design {
+    pub fn build(
+        frame: &Frame,
+        exposure: Option<usize>,
+        covariates: &[usize],
+        shape: Shape,
+        interact: &[usize],
+    ) -> Design {
         let mut terms = vec![Term::intercept()];
         if let Some(a) = exposure {
             terms.push(Term {
@@ -250,8 +256,14 @@ impl Design {
     pub fn without(&self, drop: &[usize]) -> Design {
         let keep = |j: &usize| !drop.contains(j);
         Design {
-            terms: (0..self.terms.len()).filter(keep).map(|j| self.terms[j].clone()).collect(),
-            centers: (0..self.terms.len()).filter(keep).map(|j| self.centers[j]).collect(),
+            terms: (0..self.terms.len())
+                .filter(keep)
+                .map(|j| self.terms[j].clone())
+                .collect(),
+            centers: (0..self.terms.len())
+                .filter(keep)
+                .map(|j| self.centers[j])
+                .collect(),
             exposure: self.exposure,
         }
     }

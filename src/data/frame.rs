@@ -96,7 +96,9 @@ impl Frame {
             }
         };
         if levels.is_empty() {
-            return Err(Error::input(format!("{src}: column '{name}' has no values in the sample")));
+            return Err(Error::input(format!(
+                "{src}: column '{name}' has no values in the sample"
+            )));
         }
         Ok(self.push(name, Kind::Categorical { levels }, values))
     }

@@ -45,8 +45,10 @@ impl Dataset {
             Some(k) => names.iter().map(|n| k.contains(n)).collect(),
             None => vec![true; names.len()],
         };
-        let mut columns: Vec<Option<Column>> =
-            keep.iter().map(|&k| if k { Some(Column::default()) } else { None }).collect();
+        let mut columns: Vec<Option<Column>> = keep
+            .iter()
+            .map(|&k| if k { Some(Column::default()) } else { None })
+            .collect();
         let width = names.len();
         let mut nrows = 0usize;
         let mut last_line = 1u64;
@@ -93,7 +95,11 @@ impl Dataset {
     /// and calls [`Dataset::read`] itself).
     pub fn open(path: &Path, opts: &ReadOptions) -> Result<Dataset> {
         let f = std::fs::File::open(path).map_err(|e| Error::io(path, e))?;
-        Dataset::read(std::io::BufReader::with_capacity(1 << 16, f), &path.display().to_string(), opts)
+        Dataset::read(
+            std::io::BufReader::with_capacity(1 << 16, f),
+            &path.display().to_string(),
+            opts,
+        )
     }
 }
 
@@ -101,12 +107,22 @@ fn header(rec: &csv::ByteRecord, source: &str) -> Result<Vec<String>> {
     let mut names = Vec::with_capacity(rec.len());
     let mut seen: HashMap<String, usize> = HashMap::new();
     for (j, raw) in rec.iter().enumerate() {
-        let raw = if j == 0 { raw.strip_prefix(b"\xEF\xBB\xBF").unwrap_or(raw) } else { raw };
+        let raw = if j == 0 {
+            raw.strip_prefix(b"\xEF\xBB\xBF").unwrap_or(raw)
+        } else {
+            raw
+        };
         let name = std::str::from_utf8(trim(raw)).map_err(|_| {
-            Error::input(format!("{source}:1:{}: the column name is not valid UTF-8", j + 1))
+            Error::input(format!(
+                "{source}:1:{}: the column name is not valid UTF-8",
+                j + 1
+            ))
         })?;
         if name.is_empty() {
-            return Err(Error::input(format!("{source}:1:{}: a column has no name", j + 1)));
+            return Err(Error::input(format!(
+                "{source}:1:{}: a column has no name",
+                j + 1
+            )));
         }
         if let Some(first) = seen.insert(name.to_string(), j + 1) {
             return Err(Error::input(format!(

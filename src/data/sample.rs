@@ -27,7 +27,10 @@ pub struct Sample {
 impl Dataset {
     /// The rows complete for every column in `names` (each must be kept).
     pub fn complete_cases(&self, names: &[&str]) -> Result<Sample> {
-        let cols = names.iter().map(|n| self.require(n)).collect::<Result<Vec<_>>>()?;
+        let cols = names
+            .iter()
+            .map(|n| self.require(n))
+            .collect::<Result<Vec<_>>>()?;
         let mut complete = vec![true; self.nrows];
         let mut by_column = BTreeMap::new();
         for (name, c) in names.iter().zip(&cols) {

@@ -12,7 +12,10 @@ pub fn rcs_knots(x: &[f64]) -> Vec<f64> {
     if s.is_empty() {
         return Vec::new();
     }
-    let mut k: Vec<f64> = [0.05, 0.35, 0.65, 0.95].iter().map(|&q| quantile(&s, q)).collect();
+    let mut k: Vec<f64> = [0.05, 0.35, 0.65, 0.95]
+        .iter()
+        .map(|&q| quantile(&s, q))
+        .collect();
     k.dedup();
     k
 }

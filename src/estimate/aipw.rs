@@ -108,7 +108,11 @@ impl Method for Aipw {
         if let Some(s) = &f.om.separation {
             warnings.push(format!("aipw: outcome model shows {s}"));
         }
-        let model = if f.om.binary { "logistic regression" } else { "least squares" };
+        let model = if f.om.binary {
+            "logistic regression"
+        } else {
+            "least squares"
+        };
         Ok(Estimate {
             method: self.name().into(),
             estimand: Estimand::Ate,

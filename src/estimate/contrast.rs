@@ -53,7 +53,10 @@ pub(crate) fn interval(scale: Scale, arms: &Arms, level: f64) -> Result<(f64, f6
     let (d1, d0) = match scale {
         Scale::Difference => (1.0, 1.0),
         Scale::Ratio => (1.0 / arms.mu1, 1.0 / arms.mu0),
-        Scale::Odds => (1.0 / (arms.mu1 * (1.0 - arms.mu1)), 1.0 / (arms.mu0 * (1.0 - arms.mu0))),
+        Scale::Odds => (
+            1.0 / (arms.mu1 * (1.0 - arms.mu1)),
+            1.0 / (arms.mu0 * (1.0 - arms.mu0)),
+        ),
     };
     let var: f64 = arms
         .phi1

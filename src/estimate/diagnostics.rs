@@ -171,7 +171,13 @@ pub fn diagnostics(p: &Problem) -> Result<Diagnostics> {
     let stabilized = (p.spec.estimand == Estimand::Ate).then(|| {
         let pa = a.iter().sum::<f64>() / n as f64;
         let s: Vec<f64> = (0..n)
-            .map(|i| if a[i] == 1.0 { pa / ps.e[i] } else { (1.0 - pa) / (1.0 - ps.e[i]) })
+            .map(|i| {
+                if a[i] == 1.0 {
+                    pa / ps.e[i]
+                } else {
+                    (1.0 - pa) / (1.0 - ps.e[i])
+                }
+            })
             .collect();
         let r = range(s.iter().copied());
         Summary {

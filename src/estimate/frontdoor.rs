@@ -54,10 +54,10 @@ fn path(p: &Problem) -> Result<Path> {
         }
         Ok(Path::Linear)
     } else {
-        return Err(Error::input(
+        Err(Error::input(
             "--method frontdoor: the mediators are a mix of discrete and continuous columns; \
              declare them all --categorical or use continuous ones only",
-        ));
+        ))
     }
 }
 
@@ -140,7 +140,10 @@ impl Table {
                 let (xi, m) = (p.a()[i] as usize, cell[i]);
                 let first = if xi == x { (nu(m) - psi) / self.px[x] } else { 0.0 };
                 let second = self.pm_x[x][m] * (p.y()[i] - self.mu[xi][m]) / self.pm_x[xi][m];
-                let third: f64 = (0..self.mu[0].len()).map(|k| self.pm_x[x][k] * self.mu[xi][k]).sum::<f64>() - psi;
+                let third: f64 = (0..self.mu[0].len())
+                    .map(|k| self.pm_x[x][k] * self.mu[xi][k])
+                    .sum::<f64>()
+                    - psi;
                 (first + second + third) / n
             })
             .collect()
@@ -156,21 +159,30 @@ struct LinearFit {
 fn linear(p: &Problem, freq: Option<&[f64]>, with_se: bool) -> Result<LinearFit> {
     let dm = Design::build(&p.frame, Some(p.exposure), &[], Shape::Linear, &[]);
     let dy = Design::build(&p.frame, Some(p.exposure), &p.mediators, Shape::Linear, &[]);
-    let (rm, ry) = (dm.rows(&p.frame, Setting::Observed), dy.rows(&p.frame, Setting::Observed));
+    let (rm, ry) = (
+        dm.rows(&p.frame, Setting::Observed),
+        dy.rows(&p.frame, Setting::Observed),
+    );
     let ax = dm.exposure_term().unwrap_or(1);
     let (by, cy) = Ols::coefficients(&ry, p.y(), freq)?;
     let resid = |d: &Design, c: &DVector<f64>, v: &[f64]| -> Vec<f64> {
         let eta = linear_predictor(&d.rows(&p.frame, Setting::Observed), c);
         v.iter().zip(eta).map(|(v, e)| v - e).collect()
     };
-    let ry_res = if with_se { resid(&dy, &by, p.y()) } else { Vec::new() };
+    let ry_res = if with_se {
+        resid(&dy, &by, p.y())
+    } else {
+        Vec::new()
+    };
     let mut effect = 0.0;
     let mut phi = with_se.then(|| vec![0.0; p.n()]);
     for &m in &p.mediators {
         let mv = p.frame.col(m);
         let (bm, cm) = Ols::coefficients(&rm, mv, freq)?;
         let name = p.frame.name(m);
-        let jm = dy.position(name).ok_or_else(|| Error::Numerical(format!("mediator term {name} lost")))?;
+        let jm = dy
+            .position(name)
+            .ok_or_else(|| Error::Numerical(format!("mediator term {name} lost")))?;
         let (alpha, beta) = (bm[ax], by[jm]);
         effect += alpha * beta;
         if let Some(phi) = phi.as_mut() {
@@ -218,14 +230,32 @@ impl Method for FrontDoor {
                     exposed: arms.mu1,
                     unexposed: arms.mu0,
                 };
-                (e, se, ci, Some(means), "empirical proportions and cell means of the mediator cells")
+                (
+                    e,
+                    se,
+                    ci,
+                    Some(means),
+                    "empirical proportions and cell means of the mediator cells",
+                )
             }
             Path::Linear => {
                 let f = linear(p, None, true)?;
-                let se = f.phi.unwrap_or_default().iter().map(|x| x * x).sum::<f64>().sqrt();
+                let se = f
+                    .phi
+                    .unwrap_or_default()
+                    .iter()
+                    .map(|x| x * x)
+                    .sum::<f64>()
+                    .sqrt();
                 let z = z_value(p.spec.level);
                 let ci = [f.effect - z * se, f.effect + z * se];
-                (f.effect, se, ci, None, "product of the exposure-mediator and mediator-outcome least-squares coefficients")
+                (
+                    f.effect,
+                    se,
+                    ci,
+                    None,
+                    "product of the exposure-mediator and mediator-outcome least-squares coefficients",
+                )
             }
         };
         let mut notes = vec![format!("front-door formula by plug-in: {note}")];

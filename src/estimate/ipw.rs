@@ -42,7 +42,9 @@ impl Ipw {
             s[4] += f * population(est, a[i]);
         }
         if s[1] <= 0.0 || s[3] <= 0.0 {
-            return Err(Error::Numerical("ipw: an arm has no weight (no exposed or no unexposed rows)".into()));
+            return Err(Error::Numerical(
+                "ipw: an arm has no weight (no exposed or no unexposed rows)".into(),
+            ));
         }
         Ok(if self.horvitz_thompson {
             (s[0] / s[4], s[2] / s[4])
@@ -81,10 +83,22 @@ impl Method for Ipw {
             let s = norm(arm);
             // Estimating-function value, and its derivative in the score.
             let term = |i: usize| -> (f64, f64) {
-                let (h, dh) = if arm == 1 { (w[i].0, w[i].2) } else { (w[i].1, w[i].3) };
+                let (h, dh) = if arm == 1 {
+                    (w[i].0, w[i].2)
+                } else {
+                    (w[i].1, w[i].3)
+                };
                 let r = if self.horvitz_thompson { y[i] } else { y[i] - mu };
-                let u = if self.horvitz_thompson { h * y[i] - population(est, a[i]) * mu } else { h * r };
-                let de = if ps.clipped(i) { 0.0 } else { ps.e[i] * (1.0 - ps.e[i]) };
+                let u = if self.horvitz_thompson {
+                    h * y[i] - population(est, a[i]) * mu
+                } else {
+                    h * r
+                };
+                let de = if ps.clipped(i) {
+                    0.0
+                } else {
+                    ps.e[i] * (1.0 - ps.e[i])
+                };
                 (u, dh * de * r)
             };
             let k_rows: Vec<f64> = (0..n).map(|i| term(i).1).collect();
@@ -99,10 +113,17 @@ impl Method for Ipw {
             phi0: arm(0, mu0),
         };
         let (estimate, std_error, ci) = interval(p.spec.scale, &arms, p.spec.level)?;
-        let form = if self.horvitz_thompson { "Horvitz-Thompson" } else { "normalised (Hajek)" };
+        let form = if self.horvitz_thompson {
+            "Horvitz-Thompson"
+        } else {
+            "normalised (Hajek)"
+        };
         let notes = vec![format!(
             "{form} inverse probability weights from a logistic propensity model{}",
-            p.spec.trim.map_or(String::new(), |t| format!(", scores clipped to [{t}, {}]", 1.0 - t))
+            p.spec.trim.map_or(String::new(), |t| format!(
+                ", scores clipped to [{t}, {}]",
+                1.0 - t
+            ))
         )];
         Ok(Estimate {
             method: self.name().into(),

@@ -30,7 +30,9 @@ mod result;
 mod sensitivity;
 
 pub use aipw::Aipw;
-pub use diagnostics::{Balance, Diagnostics, PropensityDiagnostics, Range, Summary, WeightDiagnostics, diagnostics};
+pub use diagnostics::{
+    Balance, Diagnostics, PropensityDiagnostics, Range, Summary, WeightDiagnostics, diagnostics,
+};
 pub use frontdoor::FrontDoor;
 pub use ipw::Ipw;
 pub use problem::{Problem, Spec};

@@ -33,8 +33,13 @@ impl<'a> OutcomeModel<'a> {
             let (coef, chol) = Ols::coefficients(&rows, p.y(), w)?;
             (coef, chol, None)
         };
-        if chol.aliased().contains(&design.exposure_term().unwrap_or(usize::MAX)) {
-            return Err(Error::Numerical("the exposure term is aliased in the outcome model".into()));
+        if chol
+            .aliased()
+            .contains(&design.exposure_term().unwrap_or(usize::MAX))
+        {
+            return Err(Error::Numerical(
+                "the exposure term is aliased in the outcome model".into(),
+            ));
         }
         Ok(OutcomeModel {
             design,

@@ -86,7 +86,9 @@ pub struct Problem {
 }
 
 fn aliased(design: &Design, frame: &Frame) -> Vec<usize> {
-    let c = accumulate(&design.rows(frame, Setting::Observed), None, |_, _| (1.0, 0.0, 0.0, 0.0));
+    let c = accumulate(&design.rows(frame, Setting::Observed), None, |_, _| {
+        (1.0, 0.0, 0.0, 0.0)
+    });
     Chol::new(&c.xtx, ALIAS_TOL).aliased()
 }
 
@@ -108,7 +110,11 @@ impl Problem {
             )));
         }
         if sample.dropped > 0 {
-            let by: Vec<String> = sample.dropped_by_column.iter().map(|(k, v)| format!("{k} {v}")).collect();
+            let by: Vec<String> = sample
+                .dropped_by_column
+                .iter()
+                .map(|(k, v)| format!("{k} {v}"))
+                .collect();
             warnings.push(format!(
                 "{} of {} rows dropped for missing values (by column: {})",
                 sample.dropped,
@@ -161,7 +167,10 @@ impl Problem {
             )));
         }
         if !drop.is_empty() {
-            let names: Vec<String> = drop.iter().map(|&j| outcome_design.terms()[j].name.clone()).collect();
+            let names: Vec<String> = drop
+                .iter()
+                .map(|&j| outcome_design.terms()[j].name.clone())
+                .collect();
             warnings.push(format!(
                 "outcome-model terms dropped as collinear with others: {}",
                 names.join(", ")
@@ -264,12 +273,17 @@ impl Problem {
 
 fn check_spec(spec: &Spec) -> Result<()> {
     if !(spec.level > 0.0 && spec.level < 1.0) {
-        return Err(Error::input(format!("--level {}: must lie between 0 and 1", spec.level)));
+        return Err(Error::input(format!(
+            "--level {}: must lie between 0 and 1",
+            spec.level
+        )));
     }
-    if let Some(t) = spec.trim {
-        if !(t >= 0.0 && t < 0.5) {
-            return Err(Error::input(format!("--trim {t}: must be at least 0 and below 0.5")));
-        }
+    if let Some(t) = spec.trim
+        && !(0.0..0.5).contains(&t)
+    {
+        return Err(Error::input(format!(
+            "--trim {t}: must be at least 0 and below 0.5"
+        )));
     }
     if spec.exposure == spec.outcome {
         return Err(Error::input("the exposure and the outcome are the same column"));
@@ -325,7 +339,9 @@ fn check_kinds(frame: &Frame, spec: &Spec, outcome: usize, exposure: usize) -> R
         )));
     }
     if spec.contrast.is_some() && binary(exposure) {
-        return Err(Error::input("a contrast of exposure values applies to a continuous exposure only"));
+        return Err(Error::input(
+            "a contrast of exposure values applies to a continuous exposure only",
+        ));
     }
     Ok(())
 }

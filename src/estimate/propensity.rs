@@ -34,7 +34,10 @@ impl Propensity {
                 p.spec.exposure
             )));
         }
-        let raw: Vec<f64> = linear_predictor(&rows, &fit.coef).into_iter().map(crate::model::expit).collect();
+        let raw: Vec<f64> = linear_predictor(&rows, &fit.coef)
+            .into_iter()
+            .map(crate::model::expit)
+            .collect();
         let e = match p.spec.trim {
             Some(t) if t > 0.0 => raw.iter().map(|&x| x.clamp(t, 1.0 - t)).collect(),
             _ => raw.clone(),

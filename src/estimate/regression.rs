@@ -18,13 +18,18 @@ pub struct Regression;
 
 /// Weighted mean of `m` over `u` (`u` = frequency x group).
 fn mean(m: &[f64], u: &[f64]) -> f64 {
-    let (s, t) = m.iter().zip(u).fold((0.0, 0.0), |(s, t), (m, u)| (s + m * u, t + u));
+    let (s, t) = m
+        .iter()
+        .zip(u)
+        .fold((0.0, 0.0), |(s, t), (m, u)| (s + m * u, t + u));
     s / t
 }
 
 /// Frequency weight times estimand-group membership for every row.
 pub(crate) fn group_weights(p: &Problem, freq: Option<&[f64]>) -> Vec<f64> {
-    (0..p.n()).map(|i| freq.map_or(1.0, |f| f[i]) * p.group(i)).collect()
+    (0..p.n())
+        .map(|i| freq.map_or(1.0, |f| f[i]) * p.group(i))
+        .collect()
 }
 
 impl Regression {
@@ -42,7 +47,11 @@ impl Method for Regression {
         let m = self.fit(p, freq, warm)?;
         let u = group_weights(p, freq);
         let (s1, s0) = p.settings();
-        effect(p.spec.scale, mean(&m.predict(p, s1), &u), mean(&m.predict(p, s0), &u))
+        effect(
+            p.spec.scale,
+            mean(&m.predict(p, s1), &u),
+            mean(&m.predict(p, s0), &u),
+        )
     }
 
     fn estimate(&self, p: &Problem) -> Result<Estimate> {
@@ -50,7 +59,10 @@ impl Method for Regression {
         let u = group_weights(p, None);
         let total: f64 = u.iter().sum();
         if total <= 0.0 {
-            return Err(Error::input(format!("no row belongs to the {} population", p.spec.estimand)));
+            return Err(Error::input(format!(
+                "no row belongs to the {} population",
+                p.spec.estimand
+            )));
         }
         let observed = m.predict(p, Setting::Observed);
         let (s1, s0) = p.settings();
@@ -60,7 +72,9 @@ impl Method for Regression {
             let scaled: Vec<f64> = u.iter().map(|g| g / total).collect();
             let k = m.gradient(p, s, &pred, &scaled);
             let infl = m.influence(p, &k, &observed);
-            let phi: Vec<f64> = (0..p.n()).map(|i| u[i] * (pred[i] - mu) / total + infl[i]).collect();
+            let phi: Vec<f64> = (0..p.n())
+                .map(|i| u[i] * (pred[i] - mu) / total + infl[i])
+                .collect();
             (mu, phi)
         };
         let (mu1, phi1) = arm(s1);
@@ -69,9 +83,15 @@ impl Method for Regression {
         let (estimate, std_error, ci) = interval(p.spec.scale, &arms, p.spec.level)?;
         let mut warnings = Vec::new();
         if let Some(s) = &m.separation {
-            warnings.push(format!("regression: outcome model shows {s}; predictions near 0 or 1 are unstable"));
+            warnings.push(format!(
+                "regression: outcome model shows {s}; predictions near 0 or 1 are unstable"
+            ));
         }
-        let model = if m.binary { "logistic regression" } else { "least squares" };
+        let model = if m.binary {
+            "logistic regression"
+        } else {
+            "least squares"
+        };
         let products: Vec<String> = m
             .design
             .terms()
@@ -81,7 +101,11 @@ impl Method for Regression {
             .collect();
         let mut notes = vec![format!(
             "outcome model: {model} on the exposure and the adjustment terms{}",
-            if products.is_empty() { String::new() } else { format!(", with products {}", products.join(", ")) }
+            if products.is_empty() {
+                String::new()
+            } else {
+                format!(", with products {}", products.join(", "))
+            }
         )];
         if !p.binary_exposure() {
             notes.push(match p.spec.contrast {

@@ -28,7 +28,9 @@ impl std::str::FromStr for Estimand {
             "ate" => Ok(Estimand::Ate),
             "att" => Ok(Estimand::Att),
             "atc" => Ok(Estimand::Atc),
-            _ => Err(Error::input(format!("--estimand '{s}': expected ate, att or atc"))),
+            _ => Err(Error::input(format!(
+                "--estimand '{s}': expected ate, att or atc"
+            ))),
         }
     }
 }
@@ -63,7 +65,9 @@ impl std::str::FromStr for Scale {
             "difference" => Ok(Scale::Difference),
             "ratio" => Ok(Scale::Ratio),
             "odds" => Ok(Scale::Odds),
-            _ => Err(Error::input(format!("--scale '{s}': expected difference, ratio or odds"))),
+            _ => Err(Error::input(format!(
+                "--scale '{s}': expected difference, ratio or odds"
+            ))),
         }
     }
 }

@@ -21,7 +21,8 @@ impl Chol {
         for j in 0..p {
             let ajj = a[(j, j)];
             let d = ajj - (0..j).map(|k| l[(j, k)] * l[(j, k)]).sum::<f64>();
-            if !(ajj > 0.0) || !(d > tol * ajj) {
+            // NaN pivots count as aliased too.
+            if ajj.is_nan() || d.is_nan() || ajj <= 0.0 || d <= tol * ajj {
                 continue;
             }
             kept[j] = true;

@@ -39,7 +39,11 @@ pub struct Separation {
 
 impl std::fmt::Display for Separation {
     fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
-        let kind = if self.complete { "complete" } else { "quasi-complete" };
+        let kind = if self.complete {
+            "complete"
+        } else {
+            "quasi-complete"
+        };
         write!(
             f,
             "{kind} separation: {} rows have fitted probabilities of 0 or 1 and some coefficients diverge",
@@ -114,7 +118,9 @@ impl Logit {
                     continue;
                 }
             } else if !dev.is_finite() {
-                return Err(Error::Numerical("logistic regression: non-finite deviance".into()));
+                return Err(Error::Numerical(
+                    "logistic regression: non-finite deviance".into(),
+                ));
             }
             halvings = 0;
             let chol = Chol::new(&c.xtx, ALIAS_TOL);
@@ -122,7 +128,9 @@ impl Logit {
             let decrement = c.xtu.dot(&delta);
             let done = decrement < opts.tol * (dev.abs() + 1.0);
             if done || iterations >= opts.max_iter {
-                let nrows_pos = (0..rows.nrows()).filter(|&i| w.is_none_or(|w| w[i] > 0.0)).count();
+                let nrows_pos = (0..rows.nrows())
+                    .filter(|&i| w.is_none_or(|w| w[i] > 0.0))
+                    .count();
                 let separation = (extreme > 0).then_some(Separation {
                     extreme_rows: extreme,
                     complete: extreme == nrows_pos,

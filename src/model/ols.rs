@@ -34,7 +34,11 @@ fn weight(w: Option<&[f64]>, i: usize) -> f64 {
 
 impl Ols {
     /// Coefficients only (one pass), with the factor of `X'WX`.
-    pub fn coefficients<R: Rows + ?Sized>(rows: &R, y: &[f64], w: Option<&[f64]>) -> Result<(DVector<f64>, Chol)> {
+    pub fn coefficients<R: Rows + ?Sized>(
+        rows: &R,
+        y: &[f64],
+        w: Option<&[f64]>,
+    ) -> Result<(DVector<f64>, Chol)> {
         let c = accumulate(rows, None, |i, _| {
             let wi = weight(w, i);
             (wi, wi * y[i], wi, 0.0)
@@ -88,7 +92,11 @@ impl Ols {
     pub fn t(&self) -> DVector<f64> {
         let se = self.se();
         DVector::from_fn(self.coef.len(), |j, _| {
-            if self.aliased.contains(&j) { f64::NAN } else { self.coef[j] / se[j] }
+            if self.aliased.contains(&j) {
+                f64::NAN
+            } else {
+                self.coef[j] / se[j]
+            }
         })
     }
 
