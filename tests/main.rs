@@ -4,6 +4,9 @@
 mod helpers;
 
 mod cli_draw;
+mod data_csv;
+mod estimate_frontdoor;
 mod estimate_nhefs;
+mod estimate_sim;
 mod graph_parse;
 mod model_fixtures;

@@ -43,6 +43,44 @@ pub struct Dataset {
 }
 
 impl Dataset {
+    /// A dataset from numeric columns (NaN = missing), e.g. simulated data;
+    /// `source` names it in messages. Columns must have equal lengths.
+    pub fn from_columns(source: &str, columns: Vec<(String, Vec<f64>)>) -> crate::Result<Dataset> {
+        let nrows = columns.first().map_or(0, |c| c.1.len());
+        let mut names = Vec::with_capacity(columns.len());
+        let mut cols = Vec::with_capacity(columns.len());
+        for (name, values) in columns {
+            if values.len() != nrows {
+                return Err(crate::Error::input(format!(
+                    "{source}: column '{name}' has {} values, the first column {nrows}",
+                    values.len()
+                )));
+            }
+            if names.contains(&name) {
+                return Err(crate::Error::input(format!(
+                    "{source}: duplicate column name '{name}'"
+                )));
+            }
+            let first_infinite = values.iter().position(|v| v.is_infinite()).map(|i| Cell {
+                line: i as u64 + 2,
+                column: names.len() + 1,
+                text: format!("{}", values[i]),
+            });
+            names.push(name);
+            cols.push(Some(Column {
+                values,
+                first_infinite,
+                ..Column::default()
+            }));
+        }
+        Ok(Dataset {
+            source: source.to_string(),
+            names,
+            columns: cols,
+            nrows,
+        })
+    }
+
     /// The name used for the file in messages (a path, or `<stdin>`).
     pub fn source(&self) -> &str {
         &self.source

@@ -57,8 +57,9 @@ impl Dataset {
             last_line = line;
             if rec.len() != width {
                 let col = rec.len().min(width) + 1;
+                let unit = if rec.len() == 1 { "field" } else { "fields" };
                 return Err(Error::input(format!(
-                    "{source}:{line}:{col}: this row has {} fields but the header has {width}",
+                    "{source}:{line}:{col}: this row has {} {unit} but the header has {width}",
                     rec.len()
                 )));
             }
