@@ -5,6 +5,7 @@ mod helpers;
 
 mod cli_draw;
 mod data_csv;
+mod estimate_cases;
 mod estimate_frontdoor;
 mod estimate_nhefs;
 mod estimate_sim;

@@ -33,10 +33,14 @@ impl<'a> OutcomeModel<'a> {
             let (coef, chol) = Ols::coefficients(&rows, p.y(), w)?;
             (coef, chol, None)
         };
-        if chol
+        // Under separation the information matrix is near singular and a
+        // column may look aliased there while its coefficient is simply not
+        // updated; otherwise an aliased exposure (e.g. a replicate with no
+        // exposed rows) makes the fit meaningless.
+        let exposure_aliased = chol
             .aliased()
-            .contains(&design.exposure_term().unwrap_or(usize::MAX))
-        {
+            .contains(&design.exposure_term().unwrap_or(usize::MAX));
+        if exposure_aliased && separation.is_none() {
             return Err(Error::Numerical(
                 "the exposure term is aliased in the outcome model".into(),
             ));

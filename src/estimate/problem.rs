@@ -8,6 +8,7 @@ use super::{Estimand, Scale};
 use crate::data::{Dataset, Design, Frame, Kind, Role, Sample, Setting, Shape};
 use crate::model::{ALIAS_TOL, Chol, accumulate};
 use crate::{Error, Result};
+use nalgebra::DMatrix;
 
 /// What to estimate, from the analysis plan.
 #[derive(Debug, Clone)]
@@ -85,11 +86,35 @@ pub struct Problem {
     pub warnings: Vec<String>,
 }
 
+/// Aliased terms of `design`, taken in the order intercept, adjustment
+/// terms, exposure, exposure products: the exposure counts as aliased when
+/// the adjustment terms explain it, and a product when the terms before it
+/// do.
 fn aliased(design: &Design, frame: &Frame) -> Vec<usize> {
     let c = accumulate(&design.rows(frame, Setting::Observed), None, |_, _| {
         (1.0, 0.0, 0.0, 0.0)
     });
-    Chol::new(&c.xtx, ALIAS_TOL).aliased()
+    let terms = design.terms();
+    let a = design.exposure_col();
+    let rank = |j: usize| {
+        let t = &terms[j];
+        match (t.is_intercept(), a.is_some_and(|a| t.uses(a)), t.factors.len()) {
+            (true, _, _) => 0,
+            (_, false, _) => 1,
+            (_, true, 1) => 2,
+            _ => 3,
+        }
+    };
+    let mut order: Vec<usize> = (0..terms.len()).collect();
+    order.sort_by_key(|&j| rank(j));
+    let permuted = DMatrix::from_fn(order.len(), order.len(), |i, k| c.xtx[(order[i], order[k])]);
+    let mut out: Vec<usize> = Chol::new(&permuted, ALIAS_TOL)
+        .aliased()
+        .iter()
+        .map(|&i| order[i])
+        .collect();
+    out.sort_unstable();
+    out
 }
 
 impl Problem {
