@@ -13,10 +13,13 @@
 #![warn(missing_docs)]
 
 pub mod check;
+pub mod data;
 pub mod error;
+pub mod estimate;
 pub mod graph;
 pub mod identify;
 pub mod infer;
+pub mod model;
 pub mod report;
 pub mod sensitivity;
 pub mod simulate;

@@ -1,0 +1,358 @@
+//! Design matrices as lists of terms, filled a block of rows at a time.
+//!
+//! One builder serves every model: an intercept; binary columns as 0/1;
+//! categorical columns as one dummy per non-reference level; continuous
+//! columns by [`Shape`] (linear; quadratic, x and x^2; or a restricted cubic
+//! spline with 4 knots, see [`super::spline`]); the exposure; and products of
+//! the exposure with the linear term of a column or with each of its dummies.
+//! Term columns are centred at their sample means (a reparametrisation that
+//! keeps every prediction and slope; it only moves the intercept, see
+//! [`Design::uncenter`]) so that cross-products stay well conditioned.
+
+use super::{Frame, Kind, Rows, rcs_basis, rcs_knots, reduce};
+use nalgebra::{DMatrix, DVector};
+
+/// How continuous covariates enter a model.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Default)]
+pub enum Shape {
+    /// x.
+    #[default]
+    Linear,
+    /// x and x^2.
+    Quadratic,
+    /// Restricted cubic spline with 4 knots (x and two nonlinear terms).
+    Spline,
+}
+
+/// A function of one frame column.
+#[derive(Debug, Clone, PartialEq)]
+pub enum Transform {
+    /// The value.
+    Linear,
+    /// The value squared.
+    Square,
+    /// Nonlinear restricted cubic spline term `j` with these knots.
+    Spline {
+        /// Knot positions.
+        knots: Vec<f64>,
+        /// Basis index (0-based).
+        j: usize,
+    },
+    /// 1 when the code equals this level code, else 0.
+    Level(f64),
+}
+
+/// One factor of a term: a transform of a frame column.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Factor {
+    /// Frame column.
+    pub col: usize,
+    /// Transform applied.
+    pub transform: Transform,
+}
+
+/// A design column: the product of its factors (none: the intercept).
+#[derive(Debug, Clone, PartialEq)]
+pub struct Term {
+    /// Readable name, e.g. `age^2`, `role=driver`, `qsmk:smokeintensity`.
+    pub name: String,
+    /// Factors multiplied together.
+    pub factors: Vec<Factor>,
+}
+
+impl Term {
+    /// The intercept term.
+    pub fn intercept() -> Term {
+        Term {
+            name: "(intercept)".into(),
+            factors: Vec::new(),
+        }
+    }
+
+    /// Is this the intercept?
+    pub fn is_intercept(&self) -> bool {
+        self.factors.is_empty()
+    }
+
+    /// Does the term involve frame column `col`?
+    pub fn uses(&self, col: usize) -> bool {
+        self.factors.iter().any(|f| f.col == col)
+    }
+}
+
+/// What value the exposure column takes when rows are filled.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub enum Setting {
+    /// As observed.
+    Observed,
+    /// Set to this value for every row.
+    Fixed(f64),
+    /// The observed value plus this shift.
+    Shift(f64),
+}
+
+/// A list of terms with their centring constants.
+#[derive(Debug, Clone, Default, PartialEq)]
+pub struct Design {
+    terms: Vec<Term>,
+    centers: Vec<f64>,
+    exposure: Option<usize>,
+}
+
+/// The terms of one covariate column under `shape`.
+pub fn covariate_terms(frame: &Frame, col: usize, shape: Shape) -> Vec<Term> {
+    let name = frame.name(col);
+    let one = |name: String, t: Transform| Term {
+        name,
+        factors: vec![Factor { col, transform: t }],
+    };
+    match frame.kind(col) {
+        Kind::Binary { low, high } => {
+            let label = if *low == 0.0 && *high == 1.0 {
+                name.to_string()
+            } else {
+                format!("{name}={high}")
+            };
+            vec![one(label, Transform::Linear)]
+        }
+        Kind::Categorical { levels } => (1..levels.len())
+            .map(|k| one(format!("{name}={}", levels[k]), Transform::Level(k as f64)))
+            .collect(),
+        Kind::Numeric => {
+            let mut t = vec![one(name.to_string(), Transform::Linear)];
+            match shape {
+                Shape::Linear => {}
+                Shape::Quadratic => t.push(one(format!("{name}^2"), Transform::Square)),
+                Shape::Spline => {
+                    let knots = rcs_knots(frame.col(col));
+                    for j in 0..knots.len().saturating_sub(2) {
+                        let primes = "'".repeat(j + 1);
+                        let tr = Transform::Spline {
+                            knots: knots.clone(),
+                            j,
+                        };
+                        t.push(one(format!("{name}{primes}"), tr));
+                    }
+                }
+            }
+            t
+        }
+    }
+}
+
+impl Design {
+    /// A design: intercept, then the exposure (if any), then the terms of
+    /// each covariate, then exposure products with each `interact` column
+    /// (its linear term, or each of its dummies); centred over `frame`.
+    pub fn build(
+        frame: &Frame,
+        exposure: Option<usize>,
+        covariates: &[usize],
+        shape: Shape,
+        interact: &[usize],
+    ) -> Design {
+        let mut terms = vec![Term::intercept()];
+        if let Some(a) = exposure {
+            terms.push(Term {
+                name: frame.name(a).to_string(),
+                factors: vec![Factor {
+                    col: a,
+                    transform: Transform::Linear,
+                }],
+            });
+        }
+        for &c in covariates {
+            terms.extend(covariate_terms(frame, c, shape));
+        }
+        if let Some(a) = exposure {
+            for &c in interact {
+                for t in covariate_terms(frame, c, Shape::Linear) {
+                    let mut factors = vec![Factor {
+                        col: a,
+                        transform: Transform::Linear,
+                    }];
+                    factors.extend(t.factors);
+                    terms.push(Term {
+                        name: format!("{}:{}", frame.name(a), t.name),
+                        factors,
+                    });
+                }
+            }
+        }
+        Design::from_terms(frame, terms, exposure)
+    }
+
+    /// A design from explicit terms, centred over `frame`.
+    pub fn from_terms(frame: &Frame, terms: Vec<Term>, exposure: Option<usize>) -> Design {
+        let mut d = Design {
+            centers: vec![0.0; terms.len()],
+            terms,
+            exposure,
+        };
+        d.recenter(frame);
+        d
+    }
+
+    fn recenter(&mut self, frame: &Frame) {
+        let n = frame.nrows().max(1) as f64;
+        let p = self.terms.len();
+        let rows = self.rows(frame, Setting::Observed);
+        let sums = reduce(
+            &rows,
+            || vec![0.0; p],
+            |acc, b| {
+                for (j, a) in acc.iter_mut().enumerate() {
+                    *a += b.col(j).iter().sum::<f64>();
+                }
+            },
+            |a, b| a.iter_mut().zip(b).for_each(|(x, y)| *x += y),
+        );
+        self.centers = sums
+            .iter()
+            .zip(&self.terms)
+            .map(|(s, t)| if t.is_intercept() { 0.0 } else { s / n })
+            .collect();
+    }
+
+    /// The terms.
+    pub fn terms(&self) -> &[Term] {
+        &self.terms
+    }
+
+    /// Term names.
+    pub fn names(&self) -> Vec<String> {
+        self.terms.iter().map(|t| t.name.clone()).collect()
+    }
+
+    /// Number of columns.
+    pub fn ncols(&self) -> usize {
+        self.terms.len()
+    }
+
+    /// Index of the term called `name`.
+    pub fn position(&self, name: &str) -> Option<usize> {
+        self.terms.iter().position(|t| t.name == name)
+    }
+
+    /// Index of the exposure's own term (not its products).
+    pub fn exposure_term(&self) -> Option<usize> {
+        let a = self.exposure?;
+        self.terms
+            .iter()
+            .position(|t| t.factors.len() == 1 && t.factors[0].col == a)
+    }
+
+    /// The frame column of the exposure, if the design has one.
+    pub fn exposure_col(&self) -> Option<usize> {
+        self.exposure
+    }
+
+    /// The centring constant of each term (0 for the intercept).
+    pub fn centers(&self) -> &[f64] {
+        &self.centers
+    }
+
+    /// A copy without the terms at `drop` (indices), same centring.
+    pub fn without(&self, drop: &[usize]) -> Design {
+        let keep = |j: &usize| !drop.contains(j);
+        Design {
+            terms: (0..self.terms.len())
+                .filter(keep)
+                .map(|j| self.terms[j].clone())
+                .collect(),
+            centers: (0..self.terms.len())
+                .filter(keep)
+                .map(|j| self.centers[j])
+                .collect(),
+            exposure: self.exposure,
+        }
+    }
+
+    /// Rows of this design over `frame`, with the exposure set by `setting`.
+    pub fn rows<'a>(&'a self, frame: &'a Frame, setting: Setting) -> DesignRows<'a> {
+        DesignRows {
+            design: self,
+            frame,
+            setting,
+        }
+    }
+
+    /// Coefficients and covariance of the uncentred parametrisation (raw
+    /// term values) from those of the centred one: only the intercept
+    /// changes, b0 = b0c - sum_j c_j b_j.
+    pub fn uncenter(&self, beta: &DVector<f64>, cov: &DMatrix<f64>) -> (DVector<f64>, DMatrix<f64>) {
+        let p = self.terms.len();
+        let mut t = DMatrix::<f64>::identity(p, p);
+        if let Some(i0) = self.terms.iter().position(Term::is_intercept) {
+            for j in 0..p {
+                if j != i0 {
+                    t[(i0, j)] = -self.centers[j];
+                }
+            }
+        }
+        let b = &t * beta;
+        let v = &t * cov * t.transpose();
+        (b, v)
+    }
+}
+
+/// The rows of a [`Design`] over a [`Frame`], implementing [`Rows`].
+pub struct DesignRows<'a> {
+    design: &'a Design,
+    frame: &'a Frame,
+    setting: Setting,
+}
+
+impl DesignRows<'_> {
+    fn factor(&self, f: &Factor, start: usize, out: &mut [f64], multiply: bool) {
+        let src = &self.frame.col(f.col)[start..start + out.len()];
+        // The exposure's value as a*x + b: observed (1, 0), fixed (0, v),
+        // shifted (1, d).
+        let (a, b) = match (self.design.exposure == Some(f.col), self.setting) {
+            (true, Setting::Fixed(v)) => (0.0, v),
+            (true, Setting::Shift(d)) => (1.0, d),
+            _ => (1.0, 0.0),
+        };
+        match &f.transform {
+            Transform::Linear => apply(src, out, multiply, |x| a * x + b),
+            Transform::Square => apply(src, out, multiply, |x| (a * x + b) * (a * x + b)),
+            Transform::Spline { knots, j } => apply(src, out, multiply, |x| rcs_basis(a * x + b, knots, *j)),
+            Transform::Level(c) => apply(src, out, multiply, |x| f64::from(u8::from(a * x + b == *c))),
+        }
+    }
+}
+
+fn apply(src: &[f64], out: &mut [f64], multiply: bool, g: impl Fn(f64) -> f64) {
+    if multiply {
+        out.iter_mut().zip(src).for_each(|(o, &x)| *o *= g(x));
+    } else {
+        out.iter_mut().zip(src).for_each(|(o, &x)| *o = g(x));
+    }
+}
+
+impl Rows for DesignRows<'_> {
+    fn nrows(&self) -> usize {
+        self.frame.nrows()
+    }
+
+    fn ncols(&self) -> usize {
+        self.design.terms.len()
+    }
+
+    fn fill(&self, start: usize, len: usize, out: &mut [f64]) {
+        for (j, term) in self.design.terms.iter().enumerate() {
+            let col = &mut out[j * len..(j + 1) * len];
+            if term.factors.is_empty() {
+                col.fill(1.0);
+                continue;
+            }
+            for (k, f) in term.factors.iter().enumerate() {
+                self.factor(f, start, col, k > 0);
+            }
+            let c = self.design.centers[j];
+            if c != 0.0 {
+                col.iter_mut().for_each(|v| *v -= c);
+            }
+        }
+    }
+}

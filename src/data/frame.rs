@@ -1,0 +1,215 @@
+//! The analysis frame: the columns an analysis uses, restricted to the
+//! complete-case rows and coded by kind.
+//!
+//! Kinds (common practice, no source): a column with exactly two distinct
+//! values is binary and coded 0/1, the larger value as 1 (for the exposure:
+//! "exposed"); a column holding text, or named categorical, is categorical
+//! with one code per level and the lowest level as reference (numeric order
+//! when every level is a number, else lexical); anything else is numeric.
+
+use super::{Dataset, Sample};
+use crate::{Error, Result};
+
+/// What a column is, over the analysis sample.
+#[derive(Debug, Clone, PartialEq)]
+pub enum Kind {
+    /// Exactly two values, stored as 0 (`low`) and 1 (`high`).
+    Binary {
+        /// The value coded 0.
+        low: f64,
+        /// The value coded 1 ("exposed" for an exposure).
+        high: f64,
+    },
+    /// A number used as is.
+    Numeric,
+    /// Levels stored as codes 0, 1, ...; level 0 is the reference.
+    Categorical {
+        /// Level names in code order.
+        levels: Vec<String>,
+    },
+}
+
+/// How a column is to be read.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum Role {
+    /// Must be numbers (exposure, outcome): binary or numeric.
+    Number,
+    /// Anything: text or `categorical` gives a categorical column.
+    Covariate {
+        /// Named in the `categorical` option.
+        categorical: bool,
+    },
+}
+
+/// Analysis columns over the complete-case rows.
+#[derive(Debug, Clone, Default)]
+pub struct Frame {
+    n: usize,
+    names: Vec<String>,
+    kinds: Vec<Kind>,
+    cols: Vec<Vec<f64>>,
+}
+
+impl Frame {
+    /// An empty frame of `n` rows.
+    pub fn new(n: usize) -> Self {
+        Frame {
+            n,
+            ..Default::default()
+        }
+    }
+
+    /// Number of rows.
+    pub fn nrows(&self) -> usize {
+        self.n
+    }
+
+    /// Adds a column of `n` values; returns its index.
+    pub fn push(&mut self, name: &str, kind: Kind, values: Vec<f64>) -> usize {
+        assert_eq!(values.len(), self.n, "frame column length");
+        self.names.push(name.to_string());
+        self.kinds.push(kind);
+        self.cols.push(values);
+        self.cols.len() - 1
+    }
+
+    /// Adds column `name` of `data` over `sample`'s rows, coded for `role`.
+    pub fn push_from(&mut self, data: &Dataset, sample: &Sample, name: &str, role: Role) -> Result<usize> {
+        let col = data.require(name)?;
+        let src = data.source();
+        let categorical = match role {
+            Role::Number => false,
+            Role::Covariate { categorical } => categorical || col.is_text(),
+        };
+        if !categorical {
+            let v = col.numeric(src, name, "a number")?;
+            let values: Vec<f64> = sample.keep.iter().map(|&i| v[i]).collect();
+            let (values, kind) = code_numeric(values);
+            return Ok(self.push(name, kind, values));
+        }
+        col.check_finite(src, name)?;
+        let (values, levels) = match col.codes() {
+            Some((codes, levels)) => code_levels(sample.keep.iter().map(|&i| codes[i]), levels),
+            None => {
+                let v: Vec<f64> = sample.keep.iter().map(|&i| col.values[i]).collect();
+                code_numeric_levels(v)
+            }
+        };
+        if levels.is_empty() {
+            return Err(Error::input(format!(
+                "{src}: column '{name}' has no values in the sample"
+            )));
+        }
+        Ok(self.push(name, Kind::Categorical { levels }, values))
+    }
+
+    /// Index of column `name`.
+    pub fn index(&self, name: &str) -> Option<usize> {
+        self.names.iter().position(|n| n == name)
+    }
+
+    /// Name of column `j`.
+    pub fn name(&self, j: usize) -> &str {
+        &self.names[j]
+    }
+
+    /// Kind of column `j`.
+    pub fn kind(&self, j: usize) -> &Kind {
+        &self.kinds[j]
+    }
+
+    /// Values of column `j` (codes for binary and categorical columns).
+    pub fn col(&self, j: usize) -> &[f64] {
+        &self.cols[j]
+    }
+
+    /// Number of columns.
+    pub fn ncols(&self) -> usize {
+        self.cols.len()
+    }
+}
+
+/// Binary columns become 0/1; others stay as they are.
+fn code_numeric(mut v: Vec<f64>) -> (Vec<f64>, Kind) {
+    let mut distinct: Vec<f64> = Vec::with_capacity(3);
+    for &x in &v {
+        if !distinct.contains(&x) {
+            distinct.push(x);
+            if distinct.len() > 2 {
+                return (v, Kind::Numeric);
+            }
+        }
+    }
+    if distinct.len() < 2 {
+        return (v, Kind::Numeric);
+    }
+    let (low, high) = (distinct[0].min(distinct[1]), distinct[0].max(distinct[1]));
+    for x in v.iter_mut() {
+        *x = if *x == high { 1.0 } else { 0.0 };
+    }
+    (v, Kind::Binary { low, high })
+}
+
+/// Levels of a numeric column named categorical, in numeric order.
+fn code_numeric_levels(mut v: Vec<f64>) -> (Vec<f64>, Vec<String>) {
+    let mut distinct = v.clone();
+    distinct.sort_by(f64::total_cmp);
+    distinct.dedup();
+    for x in v.iter_mut() {
+        *x = distinct.partition_point(|d| d < x) as f64;
+    }
+    (v, distinct.iter().map(|d| format!("{d}")).collect())
+}
+
+/// Levels of a text column (the codes present in the sample), sorted
+/// numerically when all are numbers, else lexically.
+fn code_levels(codes: impl Iterator<Item = u32>, levels: &[String]) -> (Vec<f64>, Vec<String>) {
+    let codes: Vec<u32> = codes.collect();
+    let mut present = vec![false; levels.len()];
+    for &c in &codes {
+        present[c as usize] = true;
+    }
+    let mut order: Vec<usize> = (0..levels.len()).filter(|&k| present[k]).collect();
+    let nums: Option<Vec<f64>> = order.iter().map(|&k| levels[k].parse::<f64>().ok()).collect();
+    match nums {
+        Some(nums) if nums.iter().all(|x| x.is_finite()) => {
+            let mut pairs: Vec<(f64, usize)> = nums.into_iter().zip(order.iter().copied()).collect();
+            pairs.sort_by(|a, b| a.0.total_cmp(&b.0));
+            order = pairs.into_iter().map(|p| p.1).collect();
+        }
+        _ => order.sort_by(|&a, &b| levels[a].cmp(&levels[b])),
+    }
+    let mut recode = vec![0f64; levels.len()];
+    for (new, &old) in order.iter().enumerate() {
+        recode[old] = new as f64;
+    }
+    let values = codes.iter().map(|&c| recode[c as usize]).collect();
+    (values, order.iter().map(|&k| levels[k].clone()).collect())
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn binary_codes_the_larger_value_as_one() {
+        let (v, k) = code_numeric(vec![2.0, 5.0, 5.0, 2.0]);
+        assert_eq!(v, vec![0.0, 1.0, 1.0, 0.0]);
+        assert_eq!(k, Kind::Binary { low: 2.0, high: 5.0 });
+        let (_, k) = code_numeric(vec![1.0, 2.0, 3.0]);
+        assert_eq!(k, Kind::Numeric);
+    }
+
+    #[test]
+    fn levels_sort_numerically_when_numbers() {
+        let levels: Vec<String> = ["10", "9", "b"].iter().map(|s| s.to_string()).collect();
+        let (v, l) = code_levels([0u32, 1, 0].into_iter(), &levels);
+        assert_eq!(l, vec!["9", "10"]);
+        assert_eq!(v, vec![1.0, 0.0, 1.0]);
+        let (_, l) = code_levels([2u32, 1].into_iter(), &levels);
+        assert_eq!(l, vec!["9", "b"]);
+        let (v, l) = code_numeric_levels(vec![3.0, 1.0, 2.0, 1.0]);
+        assert_eq!(l, vec!["1", "2", "3"]);
+        assert_eq!(v, vec![2.0, 0.0, 1.0, 0.0]);
+    }
+}

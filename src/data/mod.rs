@@ -1,0 +1,125 @@
+//! The data stage: a CSV file read into columns, the complete-case sample an
+//! analysis uses, the analysis frame, and the design matrices of the models.
+//!
+//! - [`Dataset::read`] reads a CSV with a header row into one `Vec<f64>` per
+//!   column (NaN = missing); text columns also keep level codes.
+//! - [`Dataset::complete_cases`] gives the rows complete for a list of
+//!   columns and the `sample` counts the report shows.
+//! - [`Frame`] holds the analysis columns of those rows, coded by [`Kind`].
+//! - [`Design`] lists model terms (intercept, binary, dummies of categorical
+//!   columns, linear / quadratic / restricted cubic spline terms of continuous
+//!   ones, exposure products) and fills blocks of rows on demand through
+//!   [`Rows`], so no `n x p` matrix is ever stored. The spline basis follows
+//!   Harrell, *Regression Modeling Strategies*, 2nd ed. (2015), sec. 2.4.5.
+//!
+//! Missing values are the tokens empty, `NA`, `NaN` and `.`; a row missing
+//! any column an analysis uses is dropped. Infinite values are never used:
+//! a column used by an analysis that holds one is an input error naming the
+//! line and column (mark the cell missing or recode it).
+
+mod column;
+mod design;
+mod frame;
+mod pass;
+mod read;
+mod sample;
+mod spline;
+
+pub use column::{Cell, Column};
+pub use design::{Design, DesignRows, Factor, Setting, Shape, Term, Transform, covariate_terms};
+pub use frame::{Frame, Kind, Role};
+pub use pass::{BLOCK, Block, DenseRows, Rows, map_rows, reduce};
+pub use read::ReadOptions;
+pub use sample::Sample;
+pub use spline::{rcs_basis, rcs_knots};
+
+/// A CSV file read into columns.
+#[derive(Debug, Clone)]
+pub struct Dataset {
+    source: String,
+    names: Vec<String>,
+    columns: Vec<Option<Column>>,
+    nrows: usize,
+}
+
+impl Dataset {
+    /// A dataset from numeric columns (NaN = missing), e.g. simulated data;
+    /// `source` names it in messages. Columns must have equal lengths.
+    pub fn from_columns(source: &str, columns: Vec<(String, Vec<f64>)>) -> crate::Result<Dataset> {
+        let nrows = columns.first().map_or(0, |c| c.1.len());
+        let mut names = Vec::with_capacity(columns.len());
+        let mut cols = Vec::with_capacity(columns.len());
+        for (name, values) in columns {
+            if values.len() != nrows {
+                return Err(crate::Error::input(format!(
+                    "{source}: column '{name}' has {} values, the first column {nrows}",
+                    values.len()
+                )));
+            }
+            if names.contains(&name) {
+                return Err(crate::Error::input(format!(
+                    "{source}: duplicate column name '{name}'"
+                )));
+            }
+            let first_infinite = values.iter().position(|v| v.is_infinite()).map(|i| Cell {
+                line: i as u64 + 2,
+                column: names.len() + 1,
+                text: format!("{}", values[i]),
+            });
+            names.push(name);
+            cols.push(Some(Column {
+                values,
+                first_infinite,
+                ..Column::default()
+            }));
+        }
+        Ok(Dataset {
+            source: source.to_string(),
+            names,
+            columns: cols,
+            nrows,
+        })
+    }
+
+    /// The name used for the file in messages (a path, or `<stdin>`).
+    pub fn source(&self) -> &str {
+        &self.source
+    }
+
+    /// Every header name, in file order (also those not kept).
+    pub fn names(&self) -> &[String] {
+        &self.names
+    }
+
+    /// Number of data rows.
+    pub fn nrows(&self) -> usize {
+        self.nrows
+    }
+
+    /// Is `name` a column header of the file?
+    pub fn has_column(&self, name: &str) -> bool {
+        self.names.iter().any(|n| n == name)
+    }
+
+    /// 1-based position of column `name` in the header.
+    pub fn position(&self, name: &str) -> Option<usize> {
+        self.names.iter().position(|n| n == name).map(|i| i + 1)
+    }
+
+    /// The stored column `name`; `None` when there is no such header or the
+    /// column was not kept (see [`ReadOptions::keep`]).
+    pub fn column(&self, name: &str) -> Option<&Column> {
+        let i = self.names.iter().position(|n| n == name)?;
+        self.columns[i].as_ref()
+    }
+
+    /// The column `name`, or an input error naming the file.
+    pub fn require(&self, name: &str) -> crate::Result<&Column> {
+        self.column(name).ok_or_else(|| {
+            crate::Error::input(format!(
+                "{}: no column '{name}' (columns are matched to names exactly, case-sensitive)",
+                self.source
+            ))
+        })
+    }
+}

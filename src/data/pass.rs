@@ -1,0 +1,127 @@
+//! Passes over the rows of a design in fixed blocks, in parallel (rayon),
+//! with partial results combined in block order so that results do not
+//! depend on the number of threads.
+
+use nalgebra::DMatrix;
+use rayon::prelude::*;
+
+/// Rows per block.
+pub const BLOCK: usize = 2048;
+/// Blocks summed one after another within a parallel task.
+const GROUP: usize = 16;
+
+/// A source of design rows, filled a block at a time.
+pub trait Rows: Sync {
+    /// Number of rows.
+    fn nrows(&self) -> usize;
+    /// Number of columns.
+    fn ncols(&self) -> usize;
+    /// Writes rows `start..start + len` into `out`, column-major with
+    /// leading dimension `len` (`out.len() == len * ncols()`).
+    fn fill(&self, start: usize, len: usize, out: &mut [f64]);
+}
+
+/// One block of rows, column-major.
+pub struct Block<'a> {
+    /// First row.
+    pub start: usize,
+    /// Number of rows.
+    pub len: usize,
+    /// Number of columns.
+    pub p: usize,
+    /// `len * p` values, column `j` at `j*len .. (j+1)*len`.
+    pub x: &'a mut [f64],
+}
+
+impl Block<'_> {
+    /// Column `j` of the block.
+    pub fn col(&self, j: usize) -> &[f64] {
+        &self.x[j * self.len..(j + 1) * self.len]
+    }
+
+    /// Row range of the block.
+    pub fn range(&self) -> std::ops::Range<usize> {
+        self.start..self.start + self.len
+    }
+}
+
+fn fill_block<'a, R: Rows + ?Sized>(rows: &R, b: usize, buf: &'a mut Vec<f64>) -> Block<'a> {
+    let n = rows.nrows();
+    let p = rows.ncols();
+    let start = b * BLOCK;
+    let len = BLOCK.min(n - start);
+    buf.resize(len * p, 0.0);
+    rows.fill(start, len, &mut buf[..len * p]);
+    Block {
+        start,
+        len,
+        p,
+        x: &mut buf[..len * p],
+    }
+}
+
+/// Folds every block into a `T`: `step` runs on consecutive blocks of a
+/// group, groups run in parallel, and `merge` joins the groups in order.
+pub fn reduce<R, T, I, S, M>(rows: &R, init: I, step: S, mut merge: M) -> T
+where
+    R: Rows + ?Sized,
+    T: Send,
+    I: Fn() -> T + Sync,
+    S: Fn(&mut T, &mut Block) + Sync,
+    M: FnMut(&mut T, T),
+{
+    let nblocks = rows.nrows().div_ceil(BLOCK);
+    let ngroups = nblocks.div_ceil(GROUP);
+    let parts: Vec<T> = (0..ngroups)
+        .into_par_iter()
+        .map_init(Vec::new, |buf, g| {
+            let mut acc = init();
+            for b in g * GROUP..((g + 1) * GROUP).min(nblocks) {
+                let mut block = fill_block(rows, b, buf);
+                step(&mut acc, &mut block);
+            }
+            acc
+        })
+        .collect();
+    let mut it = parts.into_iter();
+    let mut total = it.next().unwrap_or_else(&init);
+    for part in it {
+        merge(&mut total, part);
+    }
+    total
+}
+
+/// Calls `f` on every block with the matching slice of `out`
+/// (`out.len() == rows.nrows()`), in parallel.
+pub fn map_rows<R, F>(rows: &R, out: &mut [f64], f: F)
+where
+    R: Rows + ?Sized,
+    F: Fn(&Block, &mut [f64]) + Sync,
+{
+    assert_eq!(out.len(), rows.nrows(), "output length");
+    out.par_chunks_mut(BLOCK)
+        .enumerate()
+        .for_each_init(Vec::new, |buf, (b, chunk)| {
+            let block = fill_block(rows, b, buf);
+            f(&block, chunk);
+        });
+}
+
+/// Rows of a stored matrix (for tests and small problems).
+pub struct DenseRows(pub DMatrix<f64>);
+
+impl Rows for DenseRows {
+    fn nrows(&self) -> usize {
+        self.0.nrows()
+    }
+    fn ncols(&self) -> usize {
+        self.0.ncols()
+    }
+    fn fill(&self, start: usize, len: usize, out: &mut [f64]) {
+        for j in 0..self.0.ncols() {
+            for i in 0..len {
+                out[j * len + i] = self.0[(start + i, j)];
+            }
+        }
+    }
+}

@@ -1,0 +1,262 @@
+//! Diagnostics of the propensity model and the weights: the range of the
+//! scores by arm and how many units of one arm fall outside the other arm's
+//! range (common support); weight mean, minimum and maximum; Kish's
+//! effective sample size per arm, (sum w)^2 / sum w^2 (Kish, *Survey
+//! Sampling*, 1965); standardized mean differences of every adjustment
+//! term before and after weighting, with weighted means and variances in the
+//! weighted one (Austin & Stuart, Stat Med 2015;34:3661-3679, from memory);
+//! and warnings for extreme weights and scores near 0 or 1. The thresholds
+//! (scores below 0.01 or above 0.99; a unit carrying more than 5% of its
+//! arm's weight; a weight above 10 times the mean; |SMD| above 0.1 after
+//! weighting) are common practice, no source.
+
+use super::propensity::{Propensity, arm_weights};
+use super::{Estimand, Problem};
+use crate::Result;
+use crate::data::Setting;
+use serde::Serialize;
+
+/// Smallest and largest value.
+#[derive(Debug, Clone, Copy, Serialize)]
+pub struct Range {
+    /// Minimum.
+    pub min: f64,
+    /// Maximum.
+    pub max: f64,
+}
+
+/// Mean, minimum and maximum.
+#[derive(Debug, Clone, Copy, Serialize)]
+pub struct Summary {
+    /// Mean.
+    pub mean: f64,
+    /// Minimum.
+    pub min: f64,
+    /// Maximum.
+    pub max: f64,
+}
+
+/// Propensity-score block.
+#[derive(Debug, Clone, Serialize)]
+pub struct PropensityDiagnostics {
+    /// Smallest score (before clipping).
+    pub min: f64,
+    /// Largest score (before clipping).
+    pub max: f64,
+    /// Exposed units whose score lies outside the unexposed units' range.
+    pub treated_outside_control_range: usize,
+    /// Unexposed units whose score lies outside the exposed units' range.
+    pub control_outside_treated_range: usize,
+    /// Score range among the exposed.
+    pub treated: Range,
+    /// Score range among the unexposed.
+    pub control: Range,
+    /// Units with a score below 0.01 or above 0.99.
+    pub near_zero_or_one: usize,
+    /// Units whose score was clipped by `--trim`.
+    pub clipped: usize,
+}
+
+/// Weight block: the estimand's unnormalised weights.
+#[derive(Debug, Clone, Serialize)]
+pub struct WeightDiagnostics {
+    /// Mean weight over all units.
+    pub mean: f64,
+    /// Smallest weight.
+    pub min: f64,
+    /// Largest weight.
+    pub max: f64,
+    /// Kish effective sample size of the exposed arm.
+    pub ess_treated: f64,
+    /// Kish effective sample size of the unexposed arm.
+    pub ess_control: f64,
+    /// Largest share of its arm's total weight carried by one exposed unit.
+    pub max_share_treated: f64,
+    /// Largest share ... by one unexposed unit.
+    pub max_share_control: f64,
+    /// Stabilized weights P(A=a) / P(A=a | L) (ATE only).
+    pub stabilized: Option<Summary>,
+}
+
+/// Balance of one adjustment term.
+#[derive(Debug, Clone, Serialize)]
+pub struct Balance {
+    /// Term name.
+    pub covariate: String,
+    /// Standardized mean difference, exposed minus unexposed, unweighted.
+    pub smd_raw: f64,
+    /// The same after weighting.
+    pub smd_weighted: f64,
+}
+
+/// The `diagnostics` block.
+#[derive(Debug, Clone, Serialize)]
+pub struct Diagnostics {
+    /// Propensity scores.
+    pub propensity: PropensityDiagnostics,
+    /// Weights.
+    pub weights: WeightDiagnostics,
+    /// Covariate balance.
+    pub balance: Vec<Balance>,
+    /// Warnings for the report.
+    #[serde(skip)]
+    pub warnings: Vec<String>,
+}
+
+fn range(v: impl Iterator<Item = f64>) -> Range {
+    v.fold(
+        Range {
+            min: f64::INFINITY,
+            max: f64::NEG_INFINITY,
+        },
+        |r, x| Range {
+            min: r.min.min(x),
+            max: r.max.max(x),
+        },
+    )
+}
+
+/// Weighted mean and variance of `x` over `w`.
+fn moments(x: &[f64], w: &[f64]) -> (f64, f64) {
+    let sw: f64 = w.iter().sum();
+    let m = x.iter().zip(w).map(|(x, w)| x * w).sum::<f64>() / sw;
+    let v = x.iter().zip(w).map(|(x, w)| w * (x - m) * (x - m)).sum::<f64>() / sw;
+    (m, v)
+}
+
+fn smd(x: &[f64], w1: &[f64], w0: &[f64]) -> f64 {
+    let (m1, v1) = moments(x, w1);
+    let (m0, v0) = moments(x, w0);
+    let s = ((v1 + v0) / 2.0).sqrt();
+    if s > 0.0 { (m1 - m0) / s } else { 0.0 }
+}
+
+/// Computes the diagnostics on the full sample (binary exposure only).
+pub fn diagnostics(p: &Problem) -> Result<Diagnostics> {
+    p.require_binary_exposure("diagnostics")?;
+    let ps = Propensity::fit(p, None, None)?;
+    let (a, n) = (p.a(), p.n());
+    let treated = range((0..n).filter(|&i| a[i] == 1.0).map(|i| ps.raw[i]));
+    let control = range((0..n).filter(|&i| a[i] == 0.0).map(|i| ps.raw[i]));
+    let outside = |arm: f64, r: Range| {
+        (0..n)
+            .filter(|&i| a[i] == arm && (ps.raw[i] < r.min || ps.raw[i] > r.max))
+            .count()
+    };
+    let near = ps.raw.iter().filter(|&&e| !(0.01..=0.99).contains(&e)).count();
+    let clipped = (0..n).filter(|&i| ps.clipped(i)).count();
+    let propensity = PropensityDiagnostics {
+        min: treated.min.min(control.min),
+        max: treated.max.max(control.max),
+        treated_outside_control_range: outside(1.0, control),
+        control_outside_treated_range: outside(0.0, treated),
+        treated,
+        control,
+        near_zero_or_one: near,
+        clipped,
+    };
+    let h: Vec<(f64, f64)> = (0..n)
+        .map(|i| {
+            let (h1, h0, _, _) = arm_weights(p.spec.estimand, a[i], ps.e[i]);
+            (h1, h0)
+        })
+        .collect();
+    let h1: Vec<f64> = h.iter().map(|x| x.0).collect();
+    let h0: Vec<f64> = h.iter().map(|x| x.1).collect();
+    let w: Vec<f64> = h.iter().map(|x| x.0 + x.1).collect();
+    let wr = range(w.iter().copied());
+    let mean = w.iter().sum::<f64>() / n as f64;
+    let ess = |h: &[f64]| h.iter().sum::<f64>().powi(2) / h.iter().map(|x| x * x).sum::<f64>();
+    let share = |h: &[f64]| h.iter().fold(0.0f64, |m, &x| m.max(x)) / h.iter().sum::<f64>();
+    let stabilized = (p.spec.estimand == Estimand::Ate).then(|| {
+        let pa = a.iter().sum::<f64>() / n as f64;
+        let s: Vec<f64> = (0..n)
+            .map(|i| {
+                if a[i] == 1.0 {
+                    pa / ps.e[i]
+                } else {
+                    (1.0 - pa) / (1.0 - ps.e[i])
+                }
+            })
+            .collect();
+        let r = range(s.iter().copied());
+        Summary {
+            mean: s.iter().sum::<f64>() / n as f64,
+            min: r.min,
+            max: r.max,
+        }
+    });
+    let weights = WeightDiagnostics {
+        mean,
+        min: wr.min,
+        max: wr.max,
+        ess_treated: ess(&h1),
+        ess_control: ess(&h0),
+        max_share_treated: share(&h1),
+        max_share_control: share(&h0),
+        stabilized,
+    };
+    let balance = balance(p, &h1, &h0);
+    let mut warnings = Vec::new();
+    if propensity.treated_outside_control_range + propensity.control_outside_treated_range > 0 {
+        warnings.push(format!(
+            "common support: {} exposed units have propensity scores outside the unexposed units' \
+             range and {} unexposed units outside the exposed units' range",
+            propensity.treated_outside_control_range, propensity.control_outside_treated_range
+        ));
+    }
+    if near > 0 {
+        warnings.push(format!(
+            "{near} units have propensity scores below 0.01 or above 0.99 (positivity is in doubt)"
+        ));
+    }
+    let top = weights.max_share_treated.max(weights.max_share_control);
+    if top > 0.05 || weights.max > 10.0 * mean {
+        warnings.push(format!(
+            "extreme weights: the largest is {:.2} ({:.1}x the mean) and one unit carries {:.1}% of its \
+             arm's total weight",
+            weights.max,
+            weights.max / mean,
+            100.0 * top
+        ));
+    }
+    let poor: Vec<&str> = balance
+        .iter()
+        .filter(|b| b.smd_weighted.abs() > 0.1)
+        .map(|b| b.covariate.as_str())
+        .collect();
+    if !poor.is_empty() {
+        warnings.push(format!(
+            "after weighting, standardized mean differences above 0.1 remain for: {}",
+            poor.join(", ")
+        ));
+    }
+    Ok(Diagnostics {
+        propensity,
+        weights,
+        balance,
+        warnings,
+    })
+}
+
+fn balance(p: &Problem, h1: &[f64], h0: &[f64]) -> Vec<Balance> {
+    let a = p.a();
+    let r1: Vec<f64> = a.to_vec();
+    let r0: Vec<f64> = a.iter().map(|x| 1.0 - x).collect();
+    let rows = p.propensity.rows(&p.frame, Setting::Observed);
+    let n = p.n();
+    let mut col = vec![0.0; n];
+    let mut out = Vec::new();
+    for (j, t) in p.propensity.terms().iter().enumerate() {
+        if t.is_intercept() {
+            continue;
+        }
+        crate::data::map_rows(&rows, &mut col, |b, o| o.copy_from_slice(b.col(j)));
+        out.push(Balance {
+            covariate: t.name.clone(),
+            smd_raw: smd(&col, &r1, &r0),
+            smd_weighted: smd(&col, h1, h0),
+        });
+    }
+    out
+}

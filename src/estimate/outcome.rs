@@ -1,0 +1,87 @@
+//! The outcome model shared by regression (standardisation) and AIPW: least
+//! squares for a continuous outcome, logistic regression for a binary one,
+//! with the exposure term and any exposure products; predictions with the
+//! exposure set to a value; and the coefficients' influence on a linear
+//! functional.
+
+use super::Problem;
+use crate::data::{Design, Setting};
+use crate::model::{Chol, Logit, LogitOptions, Ols, Separation, expit, linear_predictor, weighted_sum};
+use crate::{Error, Result};
+use nalgebra::DVector;
+
+/// A fitted outcome model.
+pub(crate) struct OutcomeModel<'a> {
+    pub design: &'a Design,
+    pub coef: DVector<f64>,
+    pub binary: bool,
+    pub chol: Chol,
+    pub separation: Option<Separation>,
+}
+
+impl<'a> OutcomeModel<'a> {
+    /// Fits the problem's outcome design with frequency weights `w`.
+    pub fn fit(p: &'a Problem, w: Option<&[f64]>, warm: Option<&DVector<f64>>) -> Result<OutcomeModel<'a>> {
+        let design = &p.outcome_design;
+        let rows = design.rows(&p.frame, Setting::Observed);
+        let binary = p.binary_outcome();
+        let (coef, chol, separation) = if binary {
+            let f = Logit::fit(&rows, p.y(), w, warm, LogitOptions::default())?;
+            let c = f.chol().clone();
+            (f.coef, c, f.separation)
+        } else {
+            let (coef, chol) = Ols::coefficients(&rows, p.y(), w)?;
+            (coef, chol, None)
+        };
+        // Under separation the information matrix is near singular and a
+        // column may look aliased there while its coefficient is simply not
+        // updated; otherwise an aliased exposure (e.g. a replicate with no
+        // exposed rows) makes the fit meaningless.
+        let exposure_aliased = chol
+            .aliased()
+            .contains(&design.exposure_term().unwrap_or(usize::MAX));
+        if exposure_aliased && separation.is_none() {
+            return Err(Error::Numerical(
+                "the exposure term is aliased in the outcome model".into(),
+            ));
+        }
+        Ok(OutcomeModel {
+            design,
+            coef,
+            binary,
+            chol,
+            separation,
+        })
+    }
+
+    /// Mean outcome of every row with the exposure set by `setting`.
+    pub fn predict(&self, p: &Problem, setting: Setting) -> Vec<f64> {
+        let mut m = linear_predictor(&self.design.rows(&p.frame, setting), &self.coef);
+        if self.binary {
+            m.iter_mut().for_each(|x| *x = expit(*x));
+        }
+        m
+    }
+
+    /// d mean / d linear predictor at mean `mu`.
+    pub fn slope(&self, mu: f64) -> f64 {
+        if self.binary { mu * (1.0 - mu) } else { 1.0 }
+    }
+
+    /// `sum_i u_i slope(mu_i) x_i(setting)`: the gradient of `sum u_i mu_i`
+    /// in the coefficients.
+    pub fn gradient(&self, p: &Problem, setting: Setting, mu: &[f64], u: &[f64]) -> DVector<f64> {
+        let v: Vec<f64> = u.iter().zip(mu).map(|(a, &m)| a * self.slope(m)).collect();
+        weighted_sum(&self.design.rows(&p.frame, setting), &v)
+    }
+
+    /// Row i's influence on `k' (b - beta)`: `x_i' B^-1 k (y_i - mu_i)`.
+    pub fn influence(&self, p: &Problem, k: &DVector<f64>, mu_observed: &[f64]) -> Vec<f64> {
+        let c = self.chol.solve(k);
+        let mut d = linear_predictor(&self.design.rows(&p.frame, Setting::Observed), &c);
+        for ((d, y), m) in d.iter_mut().zip(p.y()).zip(mu_observed) {
+            *d *= y - m;
+        }
+        d
+    }
+}

@@ -1,0 +1,372 @@
+//! An estimation problem, prepared once: the complete-case frame, the coded
+//! exposure and outcome, and the three designs (propensity `A ~ L`,
+//! outcome `Y ~ A + L [+ A x L_j]`, and the no-product `Y ~ A + L` for
+//! sensitivity analysis). Aliased adjustment terms are dropped here, once,
+//! with a warning naming them.
+
+use super::{Estimand, Scale};
+use crate::data::{Dataset, Design, Frame, Kind, Role, Sample, Setting, Shape};
+use crate::model::{ALIAS_TOL, Chol, accumulate};
+use crate::{Error, Result};
+use nalgebra::DMatrix;
+
+/// What to estimate, from the analysis plan.
+#[derive(Debug, Clone)]
+pub struct Spec {
+    /// Exposure column.
+    pub exposure: String,
+    /// Outcome column.
+    pub outcome: String,
+    /// Adjustment set (backdoor strategy).
+    pub covariates: Vec<String>,
+    /// Front-door mediator set (front-door strategy).
+    pub mediators: Vec<String>,
+    /// Columns to treat as categorical.
+    pub categorical: Vec<String>,
+    /// How continuous covariates enter both models.
+    pub shape: Shape,
+    /// Covariates whose product with the exposure enters the outcome model.
+    pub interact: Vec<String>,
+    /// ATE, ATT or ATC.
+    pub estimand: Estimand,
+    /// Scale for a binary outcome.
+    pub scale: Scale,
+    /// Clip propensity scores to `[trim, 1 - trim]`.
+    pub trim: Option<f64>,
+    /// Confidence level.
+    pub level: f64,
+    /// For a continuous exposure: compare setting it to `.1` with `.0`.
+    /// `None`: the effect of a one-unit increase from the observed values.
+    pub contrast: Option<(f64, f64)>,
+}
+
+impl Default for Spec {
+    fn default() -> Self {
+        Spec {
+            exposure: String::new(),
+            outcome: String::new(),
+            covariates: Vec::new(),
+            mediators: Vec::new(),
+            categorical: Vec::new(),
+            shape: Shape::Linear,
+            interact: Vec::new(),
+            estimand: Estimand::Ate,
+            scale: Scale::Difference,
+            trim: None,
+            level: 0.95,
+            contrast: None,
+        }
+    }
+}
+
+/// A prepared problem; every method reads it, none changes it.
+#[derive(Debug, Clone)]
+pub struct Problem {
+    /// The specification.
+    pub spec: Spec,
+    /// Rows used and dropped.
+    pub sample: Sample,
+    /// Analysis columns over the used rows.
+    pub frame: Frame,
+    /// Frame column of the outcome (0/1 when binary).
+    pub outcome: usize,
+    /// Frame column of the exposure (0/1 when binary).
+    pub exposure: usize,
+    /// Frame columns of the adjustment set.
+    pub covariates: Vec<usize>,
+    /// Frame columns of the front-door mediators.
+    pub mediators: Vec<usize>,
+    /// Propensity design: intercept and adjustment terms.
+    pub propensity: Design,
+    /// Outcome design: intercept, exposure, adjustment terms, products.
+    pub outcome_design: Design,
+    /// Outcome design without the products (for sensitivity analysis).
+    pub adjusted: Design,
+    /// Warnings raised while preparing (dropped rows, aliased terms).
+    pub warnings: Vec<String>,
+}
+
+/// Aliased terms of `design`, taken in the order intercept, adjustment
+/// terms, exposure, exposure products: the exposure counts as aliased when
+/// the adjustment terms explain it, and a product when the terms before it
+/// do.
+fn aliased(design: &Design, frame: &Frame) -> Vec<usize> {
+    let c = accumulate(&design.rows(frame, Setting::Observed), None, |_, _| {
+        (1.0, 0.0, 0.0, 0.0)
+    });
+    let terms = design.terms();
+    let a = design.exposure_col();
+    let rank = |j: usize| {
+        let t = &terms[j];
+        match (t.is_intercept(), a.is_some_and(|a| t.uses(a)), t.factors.len()) {
+            (true, _, _) => 0,
+            (_, false, _) => 1,
+            (_, true, 1) => 2,
+            _ => 3,
+        }
+    };
+    let mut order: Vec<usize> = (0..terms.len()).collect();
+    order.sort_by_key(|&j| rank(j));
+    let permuted = DMatrix::from_fn(order.len(), order.len(), |i, k| c.xtx[(order[i], order[k])]);
+    let mut out: Vec<usize> = Chol::new(&permuted, ALIAS_TOL)
+        .aliased()
+        .iter()
+        .map(|&i| order[i])
+        .collect();
+    out.sort_unstable();
+    out
+}
+
+impl Problem {
+    /// Prepares `spec` on `data`: checks names and roles, takes complete
+    /// cases, codes the columns and builds the designs.
+    pub fn build(data: &Dataset, spec: &Spec) -> Result<Problem> {
+        check_spec(spec)?;
+        let mut used: Vec<&str> = vec![&spec.outcome, &spec.exposure];
+        used.extend(spec.covariates.iter().map(String::as_str));
+        used.extend(spec.mediators.iter().map(String::as_str));
+        let sample = data.complete_cases(&used)?;
+        let mut warnings = Vec::new();
+        if sample.used == 0 {
+            return Err(Error::input(format!(
+                "{}: no row is complete for the columns used ({})",
+                data.source(),
+                used.join(", ")
+            )));
+        }
+        if sample.dropped > 0 {
+            let by: Vec<String> = sample
+                .dropped_by_column
+                .iter()
+                .map(|(k, v)| format!("{k} {v}"))
+                .collect();
+            warnings.push(format!(
+                "{} of {} rows dropped for missing values (by column: {})",
+                sample.dropped,
+                sample.rows,
+                by.join(", ")
+            ));
+        }
+        let mut frame = Frame::new(sample.used);
+        let outcome = frame.push_from(data, &sample, &spec.outcome, Role::Number)?;
+        let exposure = frame.push_from(data, &sample, &spec.exposure, Role::Number)?;
+        let role = |n: &String| Role::Covariate {
+            categorical: spec.categorical.contains(n),
+        };
+        let mut covariates = Vec::new();
+        for c in &spec.covariates {
+            covariates.push(frame.push_from(data, &sample, c, role(c))?);
+        }
+        let mut mediators = Vec::new();
+        for m in &spec.mediators {
+            mediators.push(frame.push_from(data, &sample, m, role(m))?);
+        }
+        check_kinds(&frame, spec, outcome, exposure)?;
+        let interact: Vec<usize> = spec
+            .interact
+            .iter()
+            .map(|n| covariates[spec.covariates.iter().position(|c| c == n).unwrap_or(0)])
+            .collect();
+        let mut propensity = Design::build(&frame, None, &covariates, spec.shape, &[]);
+        let mut outcome_design = Design::build(&frame, Some(exposure), &covariates, spec.shape, &interact);
+        let mut adjusted = Design::build(&frame, Some(exposure), &covariates, spec.shape, &[]);
+        // Aliased adjustment terms: drop them from every design, once.
+        let drop = aliased(&propensity, &frame);
+        if !drop.is_empty() {
+            let names: Vec<String> = drop.iter().map(|&j| propensity.terms()[j].name.clone()).collect();
+            warnings.push(format!(
+                "adjustment terms dropped as constant or collinear with others: {}",
+                names.join(", ")
+            ));
+            propensity = propensity.without(&drop);
+            let by_name = |d: &Design| -> Vec<usize> { names.iter().filter_map(|n| d.position(n)).collect() };
+            outcome_design = outcome_design.without(&by_name(&outcome_design));
+            adjusted = adjusted.without(&by_name(&adjusted));
+        }
+        let drop = aliased(&outcome_design, &frame);
+        if drop.iter().any(|&j| Some(j) == outcome_design.exposure_term()) {
+            return Err(Error::input(format!(
+                "the exposure '{}' is constant or a linear combination of the adjustment terms in the \
+                 complete rows: its effect cannot be separated from theirs",
+                spec.exposure
+            )));
+        }
+        if !drop.is_empty() {
+            let names: Vec<String> = drop
+                .iter()
+                .map(|&j| outcome_design.terms()[j].name.clone())
+                .collect();
+            warnings.push(format!(
+                "outcome-model terms dropped as collinear with others: {}",
+                names.join(", ")
+            ));
+            outcome_design = outcome_design.without(&drop);
+            let a = aliased(&adjusted, &frame);
+            adjusted = adjusted.without(&a);
+        }
+        Ok(Problem {
+            spec: spec.clone(),
+            sample,
+            frame,
+            outcome,
+            exposure,
+            covariates,
+            mediators,
+            propensity,
+            outcome_design,
+            adjusted,
+            warnings,
+        })
+    }
+
+    /// Outcome values (0/1 when binary).
+    pub fn y(&self) -> &[f64] {
+        self.frame.col(self.outcome)
+    }
+
+    /// Exposure values (0/1 when binary).
+    pub fn a(&self) -> &[f64] {
+        self.frame.col(self.exposure)
+    }
+
+    /// Number of rows used.
+    pub fn n(&self) -> usize {
+        self.frame.nrows()
+    }
+
+    /// The coding of a binary exposure: (value coded 0, value coded 1 =
+    /// exposed); `None` for a continuous exposure.
+    pub fn exposure_levels(&self) -> Option<(f64, f64)> {
+        match self.frame.kind(self.exposure) {
+            Kind::Binary { low, high } => Some((*low, *high)),
+            _ => None,
+        }
+    }
+
+    /// The coding of a binary outcome: (value coded 0, value coded 1).
+    pub fn outcome_levels(&self) -> Option<(f64, f64)> {
+        match self.frame.kind(self.outcome) {
+            Kind::Binary { low, high } => Some((*low, *high)),
+            _ => None,
+        }
+    }
+
+    /// Is the exposure binary?
+    pub fn binary_exposure(&self) -> bool {
+        self.exposure_levels().is_some()
+    }
+
+    /// Is the outcome binary (fitted by logistic regression)?
+    pub fn binary_outcome(&self) -> bool {
+        self.outcome_levels().is_some()
+    }
+
+    /// The two exposure settings compared, (exposed, unexposed): 1 vs 0 for
+    /// a binary exposure; `contrast.1` vs `contrast.0`, or the observed
+    /// value plus one vs the observed value, for a continuous one.
+    pub fn settings(&self) -> (Setting, Setting) {
+        if self.binary_exposure() {
+            return (Setting::Fixed(1.0), Setting::Fixed(0.0));
+        }
+        match self.spec.contrast {
+            Some((a, b)) => (Setting::Fixed(b), Setting::Fixed(a)),
+            None => (Setting::Shift(1.0), Setting::Observed),
+        }
+    }
+
+    /// Row `i`'s membership of the estimand's population (1 or 0).
+    pub fn group(&self, i: usize) -> f64 {
+        match self.spec.estimand {
+            Estimand::Ate => 1.0,
+            Estimand::Att => self.a()[i],
+            Estimand::Atc => 1.0 - self.a()[i],
+        }
+    }
+
+    /// The refusal for weighting methods when the exposure is continuous.
+    pub(crate) fn require_binary_exposure(&self, method: &str) -> Result<()> {
+        if self.binary_exposure() {
+            return Ok(());
+        }
+        Err(Error::input(format!(
+            "--method {method} needs a binary exposure, but '{}' takes more than two values; \
+             use --method regression for a continuous exposure",
+            self.spec.exposure
+        )))
+    }
+}
+
+fn check_spec(spec: &Spec) -> Result<()> {
+    if !(spec.level > 0.0 && spec.level < 1.0) {
+        return Err(Error::input(format!(
+            "--level {}: must lie between 0 and 1",
+            spec.level
+        )));
+    }
+    if let Some(t) = spec.trim
+        && !(0.0..0.5).contains(&t)
+    {
+        return Err(Error::input(format!(
+            "--trim {t}: must be at least 0 and below 0.5"
+        )));
+    }
+    if spec.exposure == spec.outcome {
+        return Err(Error::input("the exposure and the outcome are the same column"));
+    }
+    for i in &spec.interact {
+        if !spec.covariates.contains(i) {
+            return Err(Error::input(format!(
+                "--interact '{i}' is not in the adjustment set ({})",
+                spec.covariates.join(", ")
+            )));
+        }
+    }
+    let mut all: Vec<&String> = spec.covariates.iter().chain(&spec.mediators).collect();
+    all.push(&spec.exposure);
+    all.push(&spec.outcome);
+    for (k, a) in all.iter().enumerate() {
+        if all[..k].contains(a) {
+            return Err(Error::input(format!("column '{a}' is named in two roles")));
+        }
+    }
+    Ok(())
+}
+
+fn check_kinds(frame: &Frame, spec: &Spec, outcome: usize, exposure: usize) -> Result<()> {
+    let binary = |j: usize| matches!(frame.kind(j), Kind::Binary { .. });
+    let constant = |j: usize| {
+        let v = frame.col(j);
+        v.iter().all(|&x| x == v[0])
+    };
+    if constant(exposure) {
+        return Err(Error::input(format!(
+            "the exposure '{}' takes a single value in the complete rows",
+            spec.exposure
+        )));
+    }
+    if constant(outcome) {
+        return Err(Error::input(format!(
+            "the outcome '{}' takes a single value in the complete rows",
+            spec.outcome
+        )));
+    }
+    if spec.scale != Scale::Difference && !binary(outcome) {
+        return Err(Error::input(format!(
+            "--scale {} needs a binary outcome; '{}' takes more than two values",
+            spec.scale, spec.outcome
+        )));
+    }
+    if spec.estimand != Estimand::Ate && !binary(exposure) {
+        return Err(Error::input(format!(
+            "--estimand {} needs a binary exposure; '{}' takes more than two values",
+            spec.estimand.to_string().to_lowercase(),
+            spec.exposure
+        )));
+    }
+    if spec.contrast.is_some() && binary(exposure) {
+        return Err(Error::input(
+            "a contrast of exposure values applies to a continuous exposure only",
+        ));
+    }
+    Ok(())
+}

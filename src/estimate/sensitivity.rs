@@ -1,0 +1,89 @@
+//! What sensitivity analysis needs from a linear outcome (Cinelli & Hazlett,
+//! JRSS-B 2020;82:39-67, sec. 4 and 6): the exposure coefficient of the
+//! least-squares fit `Y ~ A + L` with its classic standard error, t and
+//! residual degrees of freedom, the outcome's standard deviation, and for
+//! each adjustment term its t statistic in `Y ~ A + L` and in the
+//! least-squares fit `A ~ L`, from which partial R2 = t^2 / (t^2 + df) for
+//! benchmarking follows.
+
+use super::Problem;
+use crate::data::Setting;
+use crate::model::Ols;
+use crate::{Error, Result};
+use serde::Serialize;
+
+/// One adjustment term's t statistics.
+#[derive(Debug, Clone, Serialize)]
+pub struct TermStat {
+    /// Term name.
+    pub term: String,
+    /// t in the outcome fit `Y ~ A + L`.
+    pub t_outcome: f64,
+    /// t in the exposure fit `A ~ L`.
+    pub t_exposure: f64,
+}
+
+/// Inputs to the robustness value and bounds.
+#[derive(Debug, Clone, Serialize)]
+pub struct SensitivityInputs {
+    /// Exposure coefficient in `Y ~ A + L`.
+    pub estimate: f64,
+    /// Its classic standard error.
+    pub std_error: f64,
+    /// Its t statistic.
+    pub t: f64,
+    /// Residual degrees of freedom of `Y ~ A + L`.
+    pub df: f64,
+    /// Residual degrees of freedom of `A ~ L`.
+    pub df_exposure: f64,
+    /// Standard deviation of the outcome (n - 1 denominator).
+    pub outcome_sd: f64,
+    /// Per adjustment term.
+    pub terms: Vec<TermStat>,
+}
+
+impl SensitivityInputs {
+    /// Partial R2 of a t statistic with `df` degrees of freedom.
+    pub fn partial_r2(t: f64, df: f64) -> f64 {
+        t * t / (t * t + df)
+    }
+}
+
+/// The inputs, or `None` when the outcome is binary (no linear model).
+pub fn sensitivity_inputs(p: &Problem) -> Result<Option<SensitivityInputs>> {
+    if p.binary_outcome() {
+        return Ok(None);
+    }
+    let out = Ols::fit(&p.adjusted.rows(&p.frame, Setting::Observed), p.y(), None)?;
+    let exp = Ols::fit(&p.propensity.rows(&p.frame, Setting::Observed), p.a(), None)?;
+    let ja = p
+        .adjusted
+        .exposure_term()
+        .ok_or_else(|| Error::Numerical("no exposure term".into()))?;
+    let (to, te) = (out.t(), exp.t());
+    let terms = p
+        .propensity
+        .terms()
+        .iter()
+        .enumerate()
+        .filter(|(_, t)| !t.is_intercept())
+        .map(|(j, t)| TermStat {
+            term: t.name.clone(),
+            t_outcome: p.adjusted.position(&t.name).map_or(f64::NAN, |k| to[k]),
+            t_exposure: te[j],
+        })
+        .collect();
+    let y = p.y();
+    let n = y.len() as f64;
+    let m = y.iter().sum::<f64>() / n;
+    let sd = (y.iter().map(|v| (v - m) * (v - m)).sum::<f64>() / (n - 1.0)).sqrt();
+    Ok(Some(SensitivityInputs {
+        estimate: out.coef[ja],
+        std_error: out.se()[ja],
+        t: to[ja],
+        df: out.df,
+        df_exposure: exp.df,
+        outcome_sd: sd,
+        terms,
+    }))
+}

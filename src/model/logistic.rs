@@ -1,0 +1,178 @@
+//! Logistic regression for a 0/1 outcome with frequency weights, by
+//! Newton-Raphson (equivalently IRLS for the canonical logit link), with
+//! step-halving when the deviance rises, warm starts, and a check for
+//! separation (fitted probabilities numerically 0 or 1).
+
+use super::{ALIAS_TOL, Chol, accumulate, expit};
+use crate::data::Rows;
+use crate::{Error, Result};
+use nalgebra::{DMatrix, DVector};
+
+/// Iteration controls.
+#[derive(Debug, Clone, Copy)]
+pub struct LogitOptions {
+    /// Most Newton steps.
+    pub max_iter: usize,
+    /// Stop when the Newton decrement `g' H^-1 g` (about the deviance still
+    /// to gain) falls below `tol * (|deviance| + 1)`.
+    pub tol: f64,
+}
+
+impl Default for LogitOptions {
+    fn default() -> Self {
+        LogitOptions {
+            max_iter: 50,
+            tol: 1e-14,
+        }
+    }
+}
+
+/// Complete or quasi-complete separation: some fitted probabilities are
+/// numerically 0 or 1 and their coefficients diverge (Albert & Anderson 1984).
+#[derive(Debug, Clone, PartialEq)]
+pub struct Separation {
+    /// Rows with a fitted probability within 1e-10 of 0 or 1.
+    pub extreme_rows: usize,
+    /// Every row is fitted at 0 or 1 (complete separation).
+    pub complete: bool,
+}
+
+impl std::fmt::Display for Separation {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        let kind = if self.complete {
+            "complete"
+        } else {
+            "quasi-complete"
+        };
+        write!(
+            f,
+            "{kind} separation: {} rows have fitted probabilities of 0 or 1 and some coefficients diverge",
+            self.extreme_rows
+        )
+    }
+}
+
+/// A fitted logistic regression.
+#[derive(Debug, Clone)]
+pub struct Logit {
+    /// Coefficients (0 for aliased columns).
+    pub coef: DVector<f64>,
+    /// Inverse Fisher information, the classic covariance.
+    pub cov: DMatrix<f64>,
+    /// Deviance, -2 log-likelihood.
+    pub deviance: f64,
+    /// Newton steps taken.
+    pub iterations: usize,
+    /// Set when the data separate the outcome.
+    pub separation: Option<Separation>,
+    /// Aliased columns.
+    pub aliased: Vec<usize>,
+    chol: Chol,
+}
+
+/// log(1 + exp(x)) without overflow.
+fn softplus(x: f64) -> f64 {
+    x.max(0.0) + (-x.abs()).exp().ln_1p()
+}
+
+const EXTREME: f64 = 1e-10;
+
+impl Logit {
+    /// Fits `y` (0/1) on `rows`, from `warm` (or zeros). Fails with
+    /// [`Error::Numerical`] when the iterations do not converge and the data
+    /// show no separation; with separation the fit is returned with
+    /// [`Logit::separation`] set, for the caller to refuse or warn.
+    pub fn fit<R: Rows + ?Sized>(
+        rows: &R,
+        y: &[f64],
+        w: Option<&[f64]>,
+        warm: Option<&DVector<f64>>,
+        opts: LogitOptions,
+    ) -> Result<Logit> {
+        let p = rows.ncols();
+        let mut beta = warm.cloned().unwrap_or_else(|| DVector::zeros(p));
+        if beta.len() != p {
+            beta = DVector::zeros(p);
+        }
+        let mut prev: Option<(DVector<f64>, f64)> = None;
+        let mut halvings = 0;
+        let mut iterations = 0;
+        loop {
+            let c = accumulate(rows, Some(&beta), |i, eta| {
+                let wi = w.map_or(1.0, |w| w[i]);
+                let mu = expit(eta);
+                let dev = 2.0 * wi * if y[i] > 0.5 { softplus(-eta) } else { softplus(eta) };
+                let extreme = f64::from(u8::from(wi > 0.0 && !(EXTREME..=1.0 - EXTREME).contains(&mu)));
+                (wi * mu * (1.0 - mu), wi * (y[i] - mu), dev, extreme)
+            });
+            let (dev, extreme) = (c.s[0], c.s[1] as usize);
+            if let Some((b0, d0)) = &prev {
+                if !dev.is_finite() || dev > d0 + 1e-9 * (d0.abs() + 1.0) {
+                    halvings += 1;
+                    if halvings > 30 {
+                        return Err(Error::Numerical(
+                            "logistic regression: step-halving failed to lower the deviance".into(),
+                        ));
+                    }
+                    beta = (b0 + &beta) * 0.5;
+                    continue;
+                }
+            } else if !dev.is_finite() {
+                return Err(Error::Numerical(
+                    "logistic regression: non-finite deviance".into(),
+                ));
+            }
+            halvings = 0;
+            let chol = Chol::new(&c.xtx, ALIAS_TOL);
+            let delta = chol.solve(&c.xtu);
+            let decrement = c.xtu.dot(&delta);
+            let done = decrement < opts.tol * (dev.abs() + 1.0);
+            if done || iterations >= opts.max_iter {
+                let nrows_pos = (0..rows.nrows())
+                    .filter(|&i| w.is_none_or(|w| w[i] > 0.0))
+                    .count();
+                let separation = (extreme > 0).then_some(Separation {
+                    extreme_rows: extreme,
+                    complete: extreme == nrows_pos,
+                });
+                if !done && separation.is_none() {
+                    return Err(Error::Numerical(format!(
+                        "logistic regression did not converge in {} iterations",
+                        opts.max_iter
+                    )));
+                }
+                if done {
+                    beta += &delta;
+                }
+                return Ok(Logit {
+                    coef: beta,
+                    cov: chol.inverse(),
+                    deviance: dev,
+                    iterations,
+                    separation,
+                    aliased: chol.aliased(),
+                    chol,
+                });
+            }
+            prev = Some((beta.clone(), dev));
+            beta += &delta;
+            iterations += 1;
+        }
+    }
+
+    /// Standard errors from the inverse information.
+    pub fn se(&self) -> DVector<f64> {
+        self.cov.diagonal().map(f64::sqrt)
+    }
+
+    /// `H^-1 k` with `H = sum w mu (1 - mu) x x'`: `x_i' H^-1 k (y_i - mu_i)`
+    /// is row i's share of `k' (b - beta)`.
+    pub fn bread_solve(&self, k: &DVector<f64>) -> DVector<f64> {
+        self.chol.solve(k)
+    }
+
+    /// The factor of the bread matrix (`X'WX`, or the information).
+    pub fn chol(&self) -> &Chol {
+        &self.chol
+    }
+}

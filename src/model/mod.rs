@@ -1,0 +1,32 @@
+//! The model stage: weighted least squares and logistic regression over a
+//! design given as [`Rows`](crate::data::Rows), on nalgebra.
+//!
+//! Both fits accumulate the cross-product `X'WX` block by block
+//! ([`accumulate`]), so no `n x n` matrix and no copy of the `n x p` design
+//! is made. Aliased (collinear or constant) columns are found by a Cholesky
+//! factorisation that skips columns whose residual sum of squares, given the
+//! columns before them, is a negligible share of their own ([`Chol`]); their
+//! coefficients are 0.
+//!
+//! - [`Ols`]: least squares with frequency weights, classic and HC0
+//!   (White 1980, Econometrica 48:817-838) standard errors.
+//! - [`Logit`]: logistic regression by Newton-Raphson (iteratively
+//!   reweighted least squares; McCullagh & Nelder, *Generalized Linear
+//!   Models*, 2nd ed., 1989, sec. 4.4) with step-halving, warm starts, and
+//!   detection of complete or quasi-complete separation (Albert & Anderson,
+//!   Biometrika 1984;71:1-10) as a typed [`Separation`].
+
+mod chol;
+mod cross;
+mod logistic;
+mod ols;
+mod predict;
+
+pub use chol::Chol;
+pub use cross::{Cross, accumulate};
+pub use logistic::{Logit, LogitOptions, Separation};
+pub use ols::Ols;
+pub use predict::{expit, linear_predictor, weighted_sum};
+
+/// Relative residual sum of squares below which a column counts as aliased.
+pub const ALIAS_TOL: f64 = 1e-10;
