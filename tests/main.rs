@@ -12,7 +12,6 @@ mod estimate_frontdoor;
 mod estimate_nhefs;
 mod estimate_sim;
 mod graph_parse;
-mod graph_parse;
 mod graph_props;
 mod identify_dsep;
 mod identify_props;
