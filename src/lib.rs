@@ -20,6 +20,7 @@ pub mod graph;
 pub mod identify;
 pub mod infer;
 pub mod model;
+pub mod plan;
 pub mod report;
 pub mod sensitivity;
 pub mod simulate;

@@ -17,21 +17,35 @@ pub fn load_graph(path: &Path, quiet: bool) -> Result<Graph> {
     Ok(parsed.graph)
 }
 
-/// Splits a comma-separated flag value into trimmed, non-empty names.
-pub fn split_list(s: &str) -> Vec<String> {
-    s.split(',')
-        .map(|x| x.trim().to_string())
-        .filter(|x| !x.is_empty())
-        .collect()
+pub use causeway::plan::{node as resolve, split_list};
+
+/// The column names of a CSV file's header line; `-` reads standard input.
+pub fn header_of(path: &Path) -> Result<Vec<String>> {
+    let shown = path.display().to_string();
+    if shown == "-" {
+        return causeway::plan::read_header(std::io::stdin().lock(), "<stdin>");
+    }
+    let f = std::fs::File::open(path).map_err(|e| Error::io(path, e))?;
+    causeway::plan::read_header(f, &shown)
 }
 
-/// The node called `name`, or an error naming the flag.
-pub fn resolve(g: &Graph, name: &str, flag: &str) -> Result<usize> {
-    g.node(name).ok_or_else(|| {
-        Error::input(format!(
-            "{flag} '{name}' is not a node of the graph (nodes are matched to names exactly, case-sensitive)"
-        ))
-    })
+/// Writes `text` to standard output; a closed pipe is not an error.
+pub fn print_stdout(text: &str) -> Result<()> {
+    use std::io::Write;
+    let mut out = std::io::stdout().lock();
+    match out.write_all(text.as_bytes()).and_then(|()| out.flush()) {
+        Ok(()) => Ok(()),
+        Err(e) if e.kind() == std::io::ErrorKind::BrokenPipe => Ok(()),
+        Err(e) => Err(Error::io("standard output", e)),
+    }
+}
+
+/// Pretty JSON with a final newline.
+pub fn to_json<T: serde::Serialize>(value: &T) -> Result<String> {
+    let mut s = serde_json::to_string_pretty(value)
+        .map_err(|e| Error::Numerical(format!("cannot write the JSON: {e}")))?;
+    s.push('\n');
+    Ok(s)
 }
 
 /// Writes `text` to `path` through a temporary file in the same folder,

@@ -25,6 +25,35 @@ fn coef_text(c: &Coef) -> String {
 }
 
 impl Graph {
+    /// A path with its arrows, `x <- a -> y`; a latent node made by `a <-> b`
+    /// between its two nodes is written `a <-> b`.
+    pub fn path_text(&self, path: &[String]) -> String {
+        let g = self;
+        let nodes: Vec<Option<usize>> = path.iter().map(|n| g.node(n)).collect();
+        let mut out = quote(&path[0]);
+        let mut i = 1;
+        while i < path.len() {
+            let (a, b) = (nodes[i - 1], nodes[i]);
+            let pair = b.and_then(|b| g.bidirected_pair(b));
+            let next = nodes.get(i + 1).copied().flatten();
+            if let (Some((p, q)), Some(a), Some(c)) = (pair, a, next)
+                && ((p, q) == (a, c) || (q, p) == (a, c))
+            {
+                let _ = write!(out, " <-> {}", quote(&path[i + 1]));
+                i += 2;
+                continue;
+            }
+            let arrow = match (a, b) {
+                (Some(a), Some(b)) if g.has_edge(b, a) => "<-",
+                _ => "->",
+            };
+            let _ = write!(out, " {arrow} {}", quote(&path[i]));
+            i += 1;
+        }
+        out
+    }
+
+
     /// The graph as graph-file text: attributes and lone nodes in declaration
     /// order, then edges sorted by name, so equal graphs print the same.
     /// Latent nodes made by `a <-> b` are written back as `a <-> b`.

@@ -53,36 +53,10 @@ fn set_text(set: &[String]) -> String {
     }
 }
 
-/// A path with its arrows, `x <- a -> y`; a latent node made by `a <-> b`
-/// between its two nodes is written `a <-> b`.
-pub fn path_text(g: &Graph, path: &[String]) -> String {
-    let nodes: Vec<Option<usize>> = path.iter().map(|n| g.node(n)).collect();
-    let mut out = show(&path[0]);
-    let mut i = 1;
-    while i < path.len() {
-        let (a, b) = (nodes[i - 1], nodes[i]);
-        let pair = b.and_then(|b| g.bidirected_pair(b));
-        let next = nodes.get(i + 1).copied().flatten();
-        if let (Some((p, q)), Some(a), Some(c)) = (pair, a, next)
-            && ((p, q) == (a, c) || (q, p) == (a, c))
-        {
-            let _ = write!(out, " <-> {}", show(&path[i + 1]));
-            i += 2;
-            continue;
-        }
-        let arrow = match (a, b) {
-            (Some(a), Some(b)) if g.has_edge(b, a) => "<-",
-            _ => "->",
-        };
-        let _ = write!(out, " {arrow} {}", show(&path[i]));
-        i += 1;
-    }
-    out
-}
 
 fn paths_block(out: &mut String, g: &Graph, paths: &[Vec<String>], truncated: bool) {
     for p in paths {
-        let _ = writeln!(out, "    {}", path_text(g, p));
+        let _ = writeln!(out, "    {}", g.path_text(p));
     }
     if truncated {
         let _ = writeln!(
@@ -305,12 +279,12 @@ mod tests {
         let g = graph("A -> \"blood pressure\"\nA -> Y\n\"blood pressure\" <-> Y");
         let p = |v: &[&str]| v.iter().map(|s| s.to_string()).collect::<Vec<_>>();
         assert_eq!(
-            path_text(&g, &p(&["blood pressure", "A", "Y"])),
+            g.path_text(&p(&["blood pressure", "A", "Y"])),
             "\"blood pressure\" <- A -> Y"
         );
         let u = g.latent_nodes()[0];
         assert_eq!(
-            path_text(&g, &p(&["blood pressure", g.name(u), "Y"])),
+            g.path_text(&p(&["blood pressure", g.name(u), "Y"])),
             "\"blood pressure\" <-> Y"
         );
     }

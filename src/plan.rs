@@ -1,0 +1,281 @@
+//! The analysis plan: flags checked and names resolved before any model is
+//! fitted. A plan holds the graph with its unobserved nodes marked (nodes
+//! that are not columns of the data, and those named as latent), the
+//! exposure and outcome, the identification under the graph, and the set
+//! the estimate will use (adjustment set or front-door set).
+
+use crate::graph::{Graph, Node};
+use crate::identify::{Identification, Strategy, identify};
+use crate::{Error, Result};
+use std::io::Read;
+
+/// Which adjustment set to use under the backdoor strategy.
+#[derive(Debug, Clone, PartialEq, Eq, Default)]
+pub enum AdjustChoice {
+    /// The optimal set O when it is observed and valid, else the smallest
+    /// minimal set.
+    #[default]
+    Optimal,
+    /// The smallest minimal set (ties broken by name).
+    Minimal,
+    /// The analyst's own set.
+    Given(Vec<String>),
+}
+
+impl AdjustChoice {
+    /// Parses the `--adjust` value: `optimal`, `minimal`, or `A,B,C`.
+    pub fn parse(s: &str) -> AdjustChoice {
+        match s.trim() {
+            "optimal" => AdjustChoice::Optimal,
+            "minimal" => AdjustChoice::Minimal,
+            list => AdjustChoice::Given(split_list(list)),
+        }
+    }
+}
+
+/// Splits a comma-separated list into trimmed, non-empty names.
+pub fn split_list(s: &str) -> Vec<String> {
+    s.split(',').map(|x| x.trim().to_string()).filter(|x| !x.is_empty()).collect()
+}
+
+/// The column names of a CSV header line (a UTF-8 byte-order mark is
+/// dropped); `source` names the data in messages.
+pub fn read_header<R: Read>(reader: R, source: &str) -> Result<Vec<String>> {
+    let mut csv = csv::ReaderBuilder::new().has_headers(true).flexible(true).from_reader(reader);
+    let header =
+        csv.headers().map_err(|e| Error::input(format!("{source}: cannot read the CSV header line: {e}")))?;
+    let mut names: Vec<String> = header.iter().map(|h| h.trim().to_string()).collect();
+    if let Some(first) = names.first_mut()
+        && let Some(rest) = first.strip_prefix('\u{feff}')
+    {
+        *first = rest.to_string();
+    }
+    if names.iter().all(|n| n.is_empty()) {
+        return Err(Error::input(format!("{source}: the file is empty or its CSV header line is blank")));
+    }
+    Ok(names)
+}
+
+/// Why node `v` is unobserved, for messages.
+fn why_latent(g: &Graph, v: Node, marked: &[Node], data: Option<&str>) -> String {
+    if marked.contains(&v) {
+        "it is marked unobserved by --latent".to_string()
+    } else if g.bidirected_pair(v).is_some() {
+        "it is a latent node made by '<->'".to_string()
+    } else if let Some(d) = data {
+        format!("it is not a column of {d}")
+    } else {
+        "it is unobserved in the graph".to_string()
+    }
+}
+
+/// The graph's nodes that are observed, with the exposure and outcome
+/// resolved and checked.
+#[derive(Debug, Clone)]
+pub struct Roles {
+    /// The graph with unobserved nodes marked.
+    pub graph: Graph,
+    /// The exposure node.
+    pub exposure: Node,
+    /// The outcome node.
+    pub outcome: Node,
+}
+
+impl Roles {
+    /// Marks unobserved nodes (absent from `columns` when given, or named
+    /// in `latent`) and resolves the exposure and outcome; `data` names the
+    /// data file in messages.
+    pub fn resolve(
+        mut graph: Graph,
+        columns: Option<&[String]>,
+        data: Option<&str>,
+        latent: &[String],
+        exposure: &str,
+        outcome: &str,
+    ) -> Result<Roles> {
+        if let Some(cols) = columns {
+            for v in 0..graph.len() {
+                if !cols.iter().any(|c| c == graph.name(v)) {
+                    graph.set_latent(v, true);
+                }
+            }
+        }
+        let mut marked = Vec::new();
+        for name in latent {
+            let v = node(&graph, name, "--latent")?;
+            graph.set_latent(v, true);
+            marked.push(v);
+        }
+        let x = node(&graph, exposure, "--exposure")?;
+        let y = node(&graph, outcome, "--outcome")?;
+        if x == y {
+            return Err(Error::input(format!("--exposure and --outcome are the same node '{exposure}'")));
+        }
+        for (v, flag) in [(x, "--exposure"), (y, "--outcome")] {
+            if graph.is_latent(v) {
+                return Err(Error::input(format!(
+                    "{flag} '{}' is unobserved: {}",
+                    graph.name(v),
+                    why_latent(&graph, v, &marked, data)
+                )));
+            }
+        }
+        Ok(Roles {
+            graph,
+            exposure: x,
+            outcome: y,
+        })
+    }
+
+    /// Resolves an `--adjust` list to observed nodes other than the
+    /// exposure and outcome.
+    pub fn adjust_nodes(&self, names: &[String]) -> Result<Vec<Node>> {
+        let mut set = Vec::new();
+        for name in names {
+            let v = node(&self.graph, name, "--adjust")?;
+            if v == self.exposure || v == self.outcome {
+                return Err(Error::input(format!(
+                    "--adjust '{name}' is the exposure or the outcome; list other variables"
+                )));
+            }
+            if self.graph.is_latent(v) {
+                return Err(Error::input(format!(
+                    "--adjust '{name}' is unobserved, so it cannot be adjusted for"
+                )));
+            }
+            if !set.contains(&v) {
+                set.push(v);
+            }
+        }
+        Ok(set)
+    }
+}
+
+/// The node called `name`, or an input error naming the flag.
+pub fn node(g: &Graph, name: &str, flag: &str) -> Result<Node> {
+    g.node(name).ok_or_else(|| {
+        Error::input(format!(
+            "{flag} '{name}' is not a node of the graph (names are matched exactly, case-sensitive)"
+        ))
+    })
+}
+
+/// An analysis plan: what will be estimated and with which set.
+#[derive(Debug, Clone)]
+pub struct Plan {
+    /// Graph, exposure and outcome.
+    pub roles: Roles,
+    /// What the graph says about identification.
+    pub identification: Identification,
+    /// The strategy the estimate follows (backdoor, frontdoor or none).
+    pub strategy: Strategy,
+    /// The adjustment set used (backdoor), sorted by name.
+    pub adjustment_set: Option<Vec<String>>,
+    /// The front-door set used (frontdoor), sorted by name.
+    pub frontdoor_set: Option<Vec<String>>,
+    /// Why this set was chosen, in words.
+    pub reason: String,
+    /// Warnings (an invalid set used on request).
+    pub warnings: Vec<String>,
+}
+
+impl Plan {
+    /// Identifies the effect and chooses the set to use. An invalid
+    /// `--adjust` set is refused unless `force` is set, and then used with a
+    /// warning.
+    pub fn new(roles: Roles, adjust: &AdjustChoice, force: bool) -> Result<Plan> {
+        let g = &roles.graph;
+        let (x, y) = (roles.exposure, roles.outcome);
+        let given = match adjust {
+            AdjustChoice::Given(names) => Some(roles.adjust_nodes(names)?),
+            _ => None,
+        };
+        let id = identify(g, x, y, given.as_deref());
+        let mut warnings = Vec::new();
+        let mut strategy = id.strategy;
+        let (adjustment_set, frontdoor_set, reason) = match (&id.given_set, adjust) {
+            (Some(gs), _) if gs.valid => {
+                strategy = Strategy::Backdoor;
+                (Some(gs.set.clone()), None, "the set given with --adjust, which meets the backdoor criterion".into())
+            }
+            (Some(gs), _) => {
+                let why = given_set_problem(g, gs);
+                if !force {
+                    return Err(Error::input(format!(
+                        "--adjust {{{}}} does not meet the backdoor criterion: {why}. Use --adjust optimal or \
+                         minimal, or add --force-adjust to estimate with it anyway",
+                        gs.set.join(", ")
+                    )));
+                }
+                warnings.push(format!(
+                    "the adjustment set {{{}}} given with --adjust does not meet the backdoor criterion ({why}); \
+                     it was used because --force-adjust was given, so the estimate is biased under the graph",
+                    gs.set.join(", ")
+                ));
+                strategy = Strategy::Backdoor;
+                (Some(gs.set.clone()), None, "the set given with --adjust (forced; not valid under the graph)".into())
+            }
+            (None, _) => match id.strategy {
+                Strategy::Backdoor => {
+                    let minimal = smallest(&id.backdoor.minimal_sets);
+                    match (adjust, &id.backdoor.optimal_set) {
+                        (AdjustChoice::Optimal, Some(o)) => (
+                            Some(o.clone()),
+                            None,
+                            "the optimal adjustment set O (Henckel, Perković & Maathuis 2022)".into(),
+                        ),
+                        (AdjustChoice::Optimal, None) => (
+                            minimal,
+                            None,
+                            format!(
+                                "the smallest minimal adjustment set (the optimal set is not available: {})",
+                                id.backdoor.optimal_set_reason.clone().unwrap_or_else(|| "not valid".into())
+                            ),
+                        ),
+                        _ => (minimal, None, "the smallest minimal adjustment set".into()),
+                    }
+                }
+                Strategy::Frontdoor => {
+                    (None, smallest(&id.frontdoor.sets), "the smallest front-door set (Pearl 1995)".into())
+                }
+                Strategy::None => (None, None, String::new()),
+            },
+        };
+        Ok(Plan {
+            roles,
+            identification: id,
+            strategy,
+            adjustment_set,
+            frontdoor_set,
+            reason,
+            warnings,
+        })
+    }
+
+    /// Why the effect is not identified, in one sentence (strategy none).
+    pub fn not_identified_reason(&self) -> String {
+        let id = &self.identification;
+        let g = &self.roles.graph;
+        let fd = id.frontdoor.obstacle.clone().unwrap_or_else(|| "no set meets the front-door criterion".into());
+        format!(
+            "the effect of {} on {} is not identified under this graph: no set of observed variables meets \
+             the backdoor criterion, and {fd}",
+            g.name(self.roles.exposure),
+            g.name(self.roles.outcome)
+        )
+    }
+}
+
+fn smallest(sets: &[Vec<String>]) -> Option<Vec<String>> {
+    sets.iter().min_by(|a, b| a.len().cmp(&b.len()).then_with(|| a.cmp(b))).cloned()
+}
+
+fn given_set_problem(g: &Graph, gs: &crate::identify::GivenSet) -> String {
+    if !gs.descendants_of_exposure.is_empty() {
+        return format!("{} descends from the exposure", gs.descendants_of_exposure.join(", "));
+    }
+    match gs.open_paths.first() {
+        Some(p) => format!("the backdoor path {} stays open", g.path_text(p)),
+        None => "it does not block every backdoor path".into(),
+    }
+}
