@@ -12,6 +12,7 @@
 //! consistency, correctly specified models).
 #![warn(missing_docs)]
 
+pub mod analysis;
 pub mod check;
 pub mod data;
 pub mod error;

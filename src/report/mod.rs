@@ -7,6 +7,7 @@
 
 pub mod csv;
 pub mod doc;
+pub mod estimate_doc;
 pub mod graph_figure;
 pub mod identify_text;
 pub mod latex;

@@ -1,0 +1,391 @@
+//! The estimation pipeline that `estimate`, `compare` and `demo` share:
+//! from a [`Plan`] and a [`Dataset`] to every applicable method's estimate
+//! with analytic and (on request) bootstrap intervals, the propensity and
+//! balance diagnostics, and the sensitivity to unmeasured confounding.
+//!
+//! The result, [`Analysis`], serialises as the body of the `estimate` JSON
+//! of the command-line contract (the stamp is added by the caller).
+
+use crate::data::{Dataset, Shape};
+use crate::estimate::{
+    self, Diagnostics, Estimand, Estimate, Method, Problem, Scale, SensitivityInputs, Spec, Warm,
+};
+use crate::identify::Strategy;
+use crate::infer::bootstrap::{self, BootOpts, BootstrapBlock, IntervalKind};
+use crate::plan::Plan;
+use crate::sensitivity::evalue::{self, EValue};
+use crate::sensitivity::robustness::{self, BenchmarkTable, Coefficient, Covariate, RobustnessValue};
+use crate::sensitivity::SensitivityBlock;
+use crate::{Error, Result};
+use serde::Serialize;
+
+/// Settings of an analysis, from the estimation flags.
+#[derive(Debug, Clone)]
+pub struct Options {
+    /// Methods to run; `None`: every method that fits the strategy.
+    pub methods: Option<Vec<String>>,
+    /// Columns to treat as categorical.
+    pub categorical: Vec<String>,
+    /// How continuous covariates enter the models.
+    pub shape: Shape,
+    /// Covariates whose product with the exposure enters the outcome model.
+    pub interact: Vec<String>,
+    /// ATE, ATT or ATC.
+    pub estimand: Estimand,
+    /// Scale for a binary outcome.
+    pub scale: Scale,
+    /// Clip propensity scores to `[trim, 1 - trim]`.
+    pub trim: Option<f64>,
+    /// Confidence level.
+    pub level: f64,
+    /// For a continuous exposure: compare the second value with the first.
+    pub contrast: Option<(f64, f64)>,
+    /// Bootstrap replicates (0: none).
+    pub bootstrap: usize,
+    /// Which bootstrap interval goes into `ci`.
+    pub interval: IntervalKind,
+    /// Seed of the bootstrap streams.
+    pub seed: u64,
+    /// Worker threads (0: all cores).
+    pub threads: usize,
+    /// Show a progress bar (when stderr is a terminal).
+    pub progress: bool,
+}
+
+impl Default for Options {
+    fn default() -> Self {
+        Options {
+            methods: None,
+            categorical: Vec::new(),
+            shape: Shape::Linear,
+            interact: Vec::new(),
+            estimand: Estimand::Ate,
+            scale: Scale::Difference,
+            trim: None,
+            level: 0.95,
+            contrast: None,
+            bootstrap: 0,
+            interval: IntervalKind::Percentile,
+            seed: 1,
+            threads: 0,
+            progress: false,
+        }
+    }
+}
+
+/// The `identification` block of the JSON.
+#[derive(Debug, Clone, Serialize)]
+pub struct Identified {
+    /// backdoor, frontdoor or none.
+    pub strategy: Strategy,
+    /// The adjustment set used (backdoor).
+    pub adjustment_set: Option<Vec<String>>,
+    /// The front-door set used (frontdoor).
+    pub frontdoor_set: Option<Vec<String>>,
+    /// Why this set, in words.
+    #[serde(skip)]
+    pub reason: String,
+}
+
+/// One item of the `estimates` list.
+#[derive(Debug, Clone, Serialize)]
+pub struct Item {
+    /// The method's estimate; `ci` and `ci_method` are the recommended
+    /// interval (the bootstrap one when it ran).
+    #[serde(flatten)]
+    pub estimate: Estimate,
+    /// The bootstrap summary, when it ran.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub bootstrap: Option<BootstrapBlock>,
+    /// The analytic (sandwich) interval, kept when the bootstrap replaced it.
+    #[serde(skip)]
+    pub analytic_ci: [f64; 2],
+}
+
+/// Sensitivity details the text and figures need beyond the JSON block.
+#[derive(Debug, Clone, Default)]
+pub struct SensitivityDetails {
+    /// The method whose estimate the E-value describes.
+    pub evalue_method: Option<String>,
+    /// The linear-outcome coefficient behind the robustness value.
+    pub coefficient: Option<Coefficient>,
+    /// Benchmarks: a confounder k times as strong as each covariate.
+    pub benchmarks: Option<BenchmarkTable>,
+    /// The covariates' own partial R² (benchmark reference points).
+    pub covariates: Vec<Covariate>,
+    /// Why a part of the sensitivity analysis is missing.
+    pub notes: Vec<String>,
+}
+
+/// The result of one analysis under one graph.
+#[derive(Debug, Clone, Serialize)]
+pub struct Analysis {
+    /// Exposure column.
+    pub exposure: String,
+    /// Outcome column.
+    pub outcome: String,
+    /// ATE, ATT or ATC.
+    pub estimand: Estimand,
+    /// Strategy and set used.
+    pub identification: Identified,
+    /// Rows used and dropped.
+    pub sample: crate::data::Sample,
+    /// One item per method.
+    pub estimates: Vec<Item>,
+    /// Propensity, weight and balance diagnostics (binary exposure with an
+    /// adjustment set).
+    pub diagnostics: Option<Diagnostics>,
+    /// E-value and robustness value.
+    pub sensitivity: SensitivityBlock,
+    /// Everything the reader should know.
+    pub warnings: Vec<String>,
+    /// Details for the text report and figures.
+    #[serde(skip)]
+    pub details: SensitivityDetails,
+    /// The values of a binary exposure coded 0 and 1.
+    #[serde(skip)]
+    pub exposure_coding: Option<(f64, f64)>,
+    /// The outcome is binary.
+    #[serde(skip)]
+    pub binary_outcome: bool,
+    /// How each method was carried out, in words.
+    #[serde(skip)]
+    pub notes: Vec<String>,
+}
+
+/// The benchmark multipliers of Cinelli & Hazlett (2020), section 6.
+pub const BENCHMARK_KS: [f64; 3] = [1.0, 2.0, 3.0];
+
+/// The estimation spec for a plan.
+pub fn spec(plan: &Plan, opts: &Options) -> Spec {
+    let g = &plan.roles.graph;
+    Spec {
+        exposure: g.name(plan.roles.exposure).to_string(),
+        outcome: g.name(plan.roles.outcome).to_string(),
+        covariates: plan.adjustment_set.clone().unwrap_or_default(),
+        mediators: plan.frontdoor_set.clone().unwrap_or_default(),
+        categorical: opts.categorical.clone(),
+        shape: opts.shape,
+        interact: opts.interact.clone(),
+        estimand: opts.estimand,
+        scale: opts.scale,
+        trim: opts.trim,
+        level: opts.level,
+        contrast: opts.contrast,
+    }
+}
+
+/// The columns an analysis under `plan` reads.
+pub fn columns(plan: &Plan) -> Vec<String> {
+    let g = &plan.roles.graph;
+    let mut c = vec![g.name(plan.roles.exposure).to_string(), g.name(plan.roles.outcome).to_string()];
+    c.extend(plan.adjustment_set.iter().flatten().cloned());
+    c.extend(plan.frontdoor_set.iter().flatten().cloned());
+    c
+}
+
+/// Runs every requested method under `plan` on `data`.
+pub fn run(plan: &Plan, data: &Dataset, opts: &Options) -> Result<Analysis> {
+    if plan.strategy == Strategy::None {
+        return Err(Error::NotIdentified(plan.not_identified_reason()));
+    }
+    for name in &opts.interact {
+        if !plan.adjustment_set.iter().flatten().any(|c| c == name) {
+            return Err(Error::input(format!(
+                "--interact '{name}' is not in the adjustment set used ({}); products with the exposure \
+                 are formed with adjustment covariates only",
+                plan.adjustment_set.as_ref().map_or("none".to_string(), |s| format!("{{{}}}", s.join(", ")))
+            )));
+        }
+    }
+    let problem = Problem::build(data, &spec(plan, opts))?;
+    let names: Vec<String> = match &opts.methods {
+        Some(m) => m.clone(),
+        None => estimate::applicable(&problem).iter().map(|s| s.to_string()).collect(),
+    };
+    check_methods(plan, &names)?;
+    let methods: Vec<Box<dyn Method>> = names.iter().map(|n| estimate::method(n)).collect::<Result<_>>()?;
+    let mut warnings = plan.warnings.clone();
+    warnings.extend(problem.warnings.iter().cloned());
+    let mut notes = Vec::new();
+    let mut estimates = Vec::new();
+    for m in &methods {
+        let e = m.estimate(&problem)?;
+        warnings.extend(e.warnings.iter().map(|w| format!("{}: {w}", e.method)));
+        notes.extend(e.notes.iter().map(|n| format!("{}: {n}", e.method)));
+        estimates.push(Item {
+            analytic_ci: e.ci,
+            estimate: e,
+            bootstrap: None,
+        });
+    }
+    if opts.bootstrap > 0 {
+        warnings.extend(run_bootstrap(&problem, &methods, &mut estimates, opts)?);
+    }
+    let diagnostics = match (problem.binary_exposure(), plan.strategy) {
+        (true, Strategy::Backdoor) => {
+            let d = estimate::diagnostics(&problem)?;
+            warnings.extend(d.warnings.iter().cloned());
+            Some(d)
+        }
+        _ => None,
+    };
+    let (sensitivity, details) = sensitivity(&problem, &methods, &estimates, opts)?;
+    Ok(Analysis {
+        exposure: problem.spec.exposure.clone(),
+        outcome: problem.spec.outcome.clone(),
+        estimand: opts.estimand,
+        identification: Identified {
+            strategy: plan.strategy,
+            adjustment_set: plan.adjustment_set.clone(),
+            frontdoor_set: plan.frontdoor_set.clone(),
+            reason: plan.reason.clone(),
+        },
+        sample: problem.sample.clone(),
+        estimates,
+        diagnostics,
+        sensitivity,
+        warnings,
+        details,
+        exposure_coding: problem.exposure_levels(),
+        binary_outcome: problem.binary_outcome(),
+        notes,
+    })
+}
+
+/// Refuses methods that do not fit the strategy.
+fn check_methods(plan: &Plan, names: &[String]) -> Result<()> {
+    for n in names {
+        let fits = match plan.strategy {
+            Strategy::Frontdoor => n == "frontdoor",
+            _ => n != "frontdoor",
+        };
+        if !fits {
+            let strategy = if plan.strategy == Strategy::Frontdoor { "frontdoor" } else { "backdoor" };
+            return Err(Error::input(format!(
+                "--method {n} does not fit the {strategy} strategy of this graph (front-door: frontdoor; \
+                 backdoor: regression, ipw, ipw-ht, aipw)"
+            )));
+        }
+    }
+    Ok(())
+}
+
+/// Refits every method in each bootstrap replicate and puts the chosen
+/// interval into `ci`; returns warnings.
+fn run_bootstrap(
+    p: &Problem,
+    methods: &[Box<dyn Method>],
+    estimates: &mut [Item],
+    opts: &Options,
+) -> Result<Vec<String>> {
+    let warm: Vec<Warm> = estimates.iter().map(|e| e.estimate.warm.clone()).collect();
+    let boot = BootOpts {
+        replicates: opts.bootstrap,
+        seed: opts.seed,
+        threads: opts.threads,
+        level: opts.level,
+        progress: opts.progress,
+        bca: opts.interval == IntervalKind::Bca,
+    };
+    // A method that fails in a replicate gives NaN there: it is counted as
+    // failed for that method only.
+    let draws = bootstrap::run(p.n(), &boot, |w| {
+        Ok(methods.iter().zip(&warm).map(|(m, wm)| m.point(p, Some(w), Some(wm)).unwrap_or(f64::NAN)).collect())
+    })?;
+    let mut warnings = Vec::new();
+    for (j, item) in estimates.iter_mut().enumerate() {
+        let s = draws.summary_at(j, opts.level)?;
+        warnings.extend(s.warnings.iter().map(|w| format!("{} bootstrap: {w}", item.estimate.method)));
+        let block = s.block(opts.interval)?;
+        item.estimate.ci = block.ci;
+        item.estimate.ci_method = opts.interval.ci_method().to_string();
+        item.bootstrap = Some(block);
+    }
+    Ok(warnings)
+}
+
+/// The E-value of the first estimate and, for a linear outcome under the
+/// backdoor strategy, the robustness value with benchmark bounds.
+fn sensitivity(
+    p: &Problem,
+    methods: &[Box<dyn Method>],
+    estimates: &[Item],
+    opts: &Options,
+) -> Result<(SensitivityBlock, SensitivityDetails)> {
+    let mut details = SensitivityDetails::default();
+    let Some(first) = estimates.first() else {
+        return Ok((SensitivityBlock { evalue: None, robustness_value: None }, details));
+    };
+    let inputs = if p.binary_outcome() || p.mediators.len() > 0 { None } else { estimate::sensitivity_inputs(p)? };
+    let ev = match evalue_for(p, methods, first, inputs.as_ref(), opts) {
+        Ok(e) => {
+            details.evalue_method = Some(first.estimate.method.clone());
+            Some(e)
+        }
+        Err(e) => {
+            details.notes.push(format!("no E-value: {e}"));
+            None
+        }
+    };
+    let rv = match &inputs {
+        Some(s) => Some(robustness_for(s, opts, &mut details)?),
+        None => {
+            if !p.binary_outcome() && p.mediators.is_empty() {
+                details.notes.push("no robustness value: the outcome regression could not be formed".into());
+            }
+            None
+        }
+    };
+    Ok((SensitivityBlock { evalue: ev, robustness_value: rv }, details))
+}
+
+fn evalue_for(
+    p: &Problem,
+    methods: &[Box<dyn Method>],
+    first: &Item,
+    inputs: Option<&SensitivityInputs>,
+    opts: &Options,
+) -> Result<EValue> {
+    let e = &first.estimate;
+    let ci = (e.ci[0], e.ci[1]);
+    if p.binary_outcome() {
+        if e.scale == Scale::Ratio {
+            return evalue::risk_ratio(e.estimate, Some(ci));
+        }
+        // The risk ratio from the standardized risks, with its own interval.
+        let mut q = p.clone();
+        q.spec.scale = Scale::Ratio;
+        let rr = methods[0].estimate(&q)?;
+        return evalue::risk_ratio(rr.estimate, Some((rr.ci[0], rr.ci[1])));
+    }
+    let sd = match inputs {
+        Some(s) => s.outcome_sd,
+        None => sd(p.y()),
+    };
+    evalue::continuous(e.estimate, e.std_error, sd, opts.level)
+}
+
+fn sd(y: &[f64]) -> f64 {
+    let n = y.len() as f64;
+    let m = y.iter().sum::<f64>() / n;
+    (y.iter().map(|v| (v - m) * (v - m)).sum::<f64>() / (n - 1.0)).sqrt()
+}
+
+fn robustness_for(s: &SensitivityInputs, opts: &Options, details: &mut SensitivityDetails) -> Result<RobustnessValue> {
+    let alpha = 1.0 - opts.level;
+    let c = Coefficient::new(s.estimate, s.std_error, s.df)?;
+    let rv = robustness::robustness_value(&c, 1.0, alpha)?;
+    details.covariates = s
+        .terms
+        .iter()
+        .map(|t| Covariate {
+            name: t.term.clone(),
+            r2_exposure: robustness::partial_r2(t.t_exposure, s.df_exposure),
+            r2_outcome: robustness::partial_r2(t.t_outcome, s.df),
+        })
+        .collect();
+    details.benchmarks = Some(robustness::benchmark_table(&c, &details.covariates, &BENCHMARK_KS, alpha)?);
+    details.coefficient = Some(c);
+    Ok(rv)
+}

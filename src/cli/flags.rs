@@ -1,0 +1,242 @@
+//! The estimation flags that `estimate`, `compare` and `demo` share, and
+//! the steps they share: reading the data, planning under a graph, running
+//! the analysis and stamping the output.
+
+use super::common::load_graph;
+use causeway::analysis::{self, Analysis, Options};
+use causeway::data::{Dataset, ReadOptions, Shape};
+use causeway::estimate::{Estimand, Scale};
+use causeway::graph::Graph;
+use causeway::infer::bootstrap::IntervalKind;
+use causeway::plan::{AdjustChoice, Plan, Roles, split_list};
+use causeway::report::doc::{FileStamp, Stamp, ToolInfo};
+use causeway::{Error, Result};
+use std::path::{Path, PathBuf};
+
+/// Flags of an analysis (the estimation flags of the command-line contract).
+#[derive(clap::Args, Debug, Clone)]
+pub struct EstimateFlags {
+    /// The exposure (treatment) column.
+    #[arg(long, value_name = "NAME")]
+    pub exposure: String,
+    /// The outcome column.
+    #[arg(long, value_name = "NAME")]
+    pub outcome: String,
+    /// Methods, comma-separated: regression, ipw, ipw-ht, aipw, frontdoor.
+    /// Default: every method that fits the strategy.
+    #[arg(long, value_name = "LIST")]
+    pub method: Option<String>,
+    /// ate, att or atc.
+    #[arg(long, default_value = "ate", value_name = "WHICH")]
+    pub estimand: String,
+    /// optimal, minimal, or a comma-separated set to adjust for.
+    #[arg(long, default_value = "optimal", value_name = "SET")]
+    pub adjust: String,
+    /// Estimate with an --adjust set that fails the backdoor criterion
+    /// (with a warning).
+    #[arg(long)]
+    pub force_adjust: bool,
+    /// Columns to treat as categorical (dummies; the lowest level is the reference).
+    #[arg(long, value_name = "A,B")]
+    pub categorical: Option<String>,
+    /// How continuous covariates enter both models: linear, quadratic or spline.
+    #[arg(long, default_value = "linear", value_name = "SHAPE")]
+    pub shape: String,
+    /// Covariates whose product with the exposure enters the outcome model.
+    #[arg(long, value_name = "A,B")]
+    pub interact: Option<String>,
+    /// Scale for a binary outcome: difference, ratio or odds.
+    #[arg(long, default_value = "difference", value_name = "SCALE")]
+    pub scale: String,
+    /// Bootstrap replicates (0: analytic intervals only).
+    #[arg(long, default_value_t = 0, value_name = "N")]
+    pub bootstrap: usize,
+    /// Bootstrap interval put in `ci`: percentile, bca or normal.
+    #[arg(long, default_value = "percentile", value_name = "KIND")]
+    pub interval: String,
+    /// Confidence level, in (0, 1).
+    #[arg(long, default_value_t = 0.95, value_name = "LEVEL")]
+    pub level: f64,
+    /// Clip propensity scores to [EPS, 1-EPS]; EPS in [0, 0.5).
+    #[arg(long, value_name = "EPS")]
+    pub trim: Option<f64>,
+    /// For a continuous exposure: compare the value B with the value A.
+    #[arg(long, value_name = "A,B")]
+    pub contrast: Option<String>,
+    /// Columns to treat as unobserved, comma-separated.
+    #[arg(long, value_name = "A,B")]
+    pub latent: Option<String>,
+    /// Seed of the bootstrap's random streams.
+    #[arg(long, default_value_t = 1, value_name = "N")]
+    pub seed: u64,
+    /// Worker threads for the bootstrap (0: all cores). Results do not depend on it.
+    #[arg(long, default_value_t = 0, value_name = "N")]
+    pub threads: usize,
+    /// Print no progress bar and no warnings on stderr.
+    #[arg(long)]
+    pub quiet: bool,
+}
+
+fn list(s: &Option<String>) -> Vec<String> {
+    s.as_deref().map(split_list).unwrap_or_default()
+}
+
+impl EstimateFlags {
+    /// Checks the flags and turns them into analysis options.
+    pub fn options(&self) -> Result<Options> {
+        if !(self.level > 0.0 && self.level < 1.0) {
+            return Err(Error::input(format!("--level {}: expected a number strictly between 0 and 1", self.level)));
+        }
+        if let Some(t) = self.trim
+            && !(0.0..0.5).contains(&t)
+        {
+            return Err(Error::input(format!("--trim {t}: expected a number at least 0 and below 0.5")));
+        }
+        let shape = match self.shape.as_str() {
+            "linear" => Shape::Linear,
+            "quadratic" => Shape::Quadratic,
+            "spline" => Shape::Spline,
+            s => return Err(Error::input(format!("--shape '{s}': expected linear, quadratic or spline"))),
+        };
+        let contrast = match &self.contrast {
+            None => None,
+            Some(c) => {
+                let v: Vec<f64> = split_list(c).iter().filter_map(|x| x.parse().ok()).collect();
+                match v.as_slice() {
+                    [a, b] if a.is_finite() && b.is_finite() && a != b => Some((*a, *b)),
+                    _ => return Err(Error::input(format!("--contrast '{c}': expected two different numbers, A,B"))),
+                }
+            }
+        };
+        let methods = self.method.as_ref().map(|m| split_list(m));
+        if let Some(ms) = &methods {
+            if ms.is_empty() {
+                return Err(Error::input("--method: expected at least one method name"));
+            }
+            for m in ms {
+                causeway::estimate::method(m)?;
+            }
+        }
+        Ok(Options {
+            methods,
+            categorical: list(&self.categorical),
+            shape,
+            interact: list(&self.interact),
+            estimand: self.estimand.parse::<Estimand>()?,
+            scale: self.scale.parse::<Scale>()?,
+            trim: self.trim.filter(|&t| t > 0.0),
+            level: self.level,
+            contrast,
+            bootstrap: self.bootstrap,
+            interval: IntervalKind::parse(&self.interval)
+                .map_err(|_| Error::input(format!("--interval '{}': expected percentile, bca or normal", self.interval)))?,
+            seed: self.seed,
+            threads: self.threads,
+            progress: !self.quiet,
+        })
+    }
+
+    /// The plan under one graph, given the data's column names.
+    pub fn plan(&self, graph: Graph, columns: &[String], data: &str) -> Result<Plan> {
+        let roles = Roles::resolve(graph, Some(columns), Some(data), &list(&self.latent), &self.exposure, &self.outcome)?;
+        Plan::new(roles, &AdjustChoice::parse(&self.adjust), self.force_adjust)
+    }
+}
+
+/// A data file (or standard input) and what the stamp needs of it.
+pub struct DataSource {
+    /// The path as given (`-` for standard input).
+    pub path: PathBuf,
+    /// The name used in messages.
+    pub shown: String,
+    /// Standard input, read once and kept.
+    stdin: Option<Vec<u8>>,
+}
+
+impl DataSource {
+    /// Opens `path`; `-` reads all of standard input now.
+    pub fn open(path: &Path) -> Result<DataSource> {
+        let shown = path.display().to_string();
+        if shown == "-" {
+            let mut bytes = Vec::new();
+            std::io::Read::read_to_end(&mut std::io::stdin().lock(), &mut bytes)
+                .map_err(|e| Error::io("<stdin>", e))?;
+            return Ok(DataSource {
+                path: path.to_path_buf(),
+                shown: "<stdin>".into(),
+                stdin: Some(bytes),
+            });
+        }
+        if !path.is_file() {
+            return Err(Error::input(format!("--data {shown}: no such file")));
+        }
+        Ok(DataSource {
+            path: path.to_path_buf(),
+            shown,
+            stdin: None,
+        })
+    }
+
+    /// An in-memory data file (the embedded demo).
+    pub fn from_bytes(name: &str, bytes: &[u8]) -> DataSource {
+        DataSource {
+            path: PathBuf::from(name),
+            shown: name.to_string(),
+            stdin: Some(bytes.to_vec()),
+        }
+    }
+
+    /// The column names of the header line.
+    pub fn header(&self) -> Result<Vec<String>> {
+        match &self.stdin {
+            Some(b) => causeway::plan::read_header(&b[..], &self.shown),
+            None => {
+                let f = std::fs::File::open(&self.path).map_err(|e| Error::io(&self.path, e))?;
+                causeway::plan::read_header(f, &self.shown)
+            }
+        }
+    }
+
+    /// Reads the columns in `keep`.
+    pub fn load(&self, keep: Vec<String>) -> Result<Dataset> {
+        let opts = ReadOptions { keep: Some(keep) };
+        match &self.stdin {
+            Some(b) => Dataset::read(&b[..], &self.shown, &opts),
+            None => Dataset::open(&self.path, &opts),
+        }
+    }
+
+    /// The SHA-256 stamp of the bytes.
+    pub fn stamp(&self) -> Result<FileStamp> {
+        match &self.stdin {
+            Some(b) => Ok(FileStamp::of(&self.shown, b)),
+            None => file_stamp(&self.path),
+        }
+    }
+}
+
+/// The SHA-256 stamp of a file.
+pub fn file_stamp(path: &Path) -> Result<FileStamp> {
+    let bytes = std::fs::read(path).map_err(|e| Error::io(path, e))?;
+    Ok(FileStamp::of(&path.display().to_string(), &bytes))
+}
+
+/// The reproducibility stamp of a run.
+pub fn stamp(seed: u64, files: Vec<FileStamp>) -> Stamp {
+    Stamp {
+        tool: ToolInfo::default(),
+        command: super::common::command_line(),
+        seed,
+        files,
+    }
+}
+
+/// A graph with its parse warnings printed.
+pub fn graph(path: &Path, quiet: bool) -> Result<Graph> {
+    load_graph(path, quiet)
+}
+
+/// Plans and runs one analysis.
+pub fn analyse(plan: &Plan, data: &Dataset, opts: &Options) -> Result<Analysis> {
+    analysis::run(plan, data, opts)
+}

@@ -1,0 +1,278 @@
+//! Lays out an [`Analysis`] as document blocks: the question, the
+//! identification, the sample, the estimates table, diagnostics with the
+//! balance table, sensitivity, warnings and notes. `estimate`, `compare`
+//! and `demo` share these pieces.
+
+use super::doc::{Align, Block, Table};
+use super::sensitivity_text::{pct, sig};
+use crate::analysis::Analysis;
+use crate::identify::Strategy;
+use crate::sensitivity::evalue::EValue;
+
+/// A number for a table: 4 significant digits, at least 2 decimals below 100.
+pub fn num(v: f64) -> String {
+    if !v.is_finite() {
+        return "-".into();
+    }
+    if v.abs() >= 100.0 {
+        return format!("{v:.1}");
+    }
+    let s = sig(v, 4);
+    if s.contains('.') || v == 0.0 { s } else { format!("{v:.2}") }
+}
+
+/// `[lo, hi]` as "lo to hi".
+pub fn interval(ci: [f64; 2]) -> String {
+    format!("{} to {}", num(ci[0]), num(ci[1]))
+}
+
+/// A set as `{a, b}`; "none" for the empty set.
+pub fn set_text(set: &[String]) -> String {
+    if set.is_empty() { "{} (none needed)".into() } else { format!("{{{}}}", set.join(", ")) }
+}
+
+/// The strategy and set in a few words.
+pub fn strategy_text(a: &Analysis) -> String {
+    let id = &a.identification;
+    match id.strategy {
+        Strategy::Backdoor => format!("backdoor, adjusting for {}", set_text(id.adjustment_set.as_deref().unwrap_or(&[]))),
+        Strategy::Frontdoor => format!("front-door through {}", set_text(id.frontdoor_set.as_deref().unwrap_or(&[]))),
+        Strategy::None => "not identified".into(),
+    }
+}
+
+/// The E-value cell: "point (interval limit)".
+pub fn evalue_cell(e: Option<&EValue>) -> String {
+    match e {
+        Some(e) => match e.ci_limit {
+            Some(l) => format!("{} ({})", sig(e.point, 3), sig(l, 3)),
+            None => sig(e.point, 3),
+        },
+        None => "-".into(),
+    }
+}
+
+fn method_label(m: &str) -> &str {
+    match m {
+        "regression" => "regression (standardization)",
+        "ipw" => "IPW (normalized weights)",
+        "ipw-ht" => "IPW (Horvitz-Thompson)",
+        "aipw" => "AIPW (doubly robust)",
+        "frontdoor" => "front-door formula",
+        other => other,
+    }
+}
+
+fn ci_label(m: &str) -> &str {
+    match m {
+        "sandwich" => "sandwich",
+        "bootstrap-percentile" => "bootstrap percentile",
+        "bootstrap-bca" => "bootstrap BCa",
+        "bootstrap-normal" => "bootstrap normal",
+        other => other,
+    }
+}
+
+/// The estimates table of one analysis.
+pub fn estimates_table(a: &Analysis) -> Table {
+    let level = a.estimates.first().map_or(0.95, |e| e.estimate.level);
+    let ci_head = format!("{:.0}% interval", 100.0 * level);
+    let mut t = Table::new(
+        &format!("Effect of {} on {}", a.exposure, a.outcome),
+        &["method", "estimand", "scale", "estimate", "std. error", &ci_head, "interval from"],
+    )
+    .align(1, Align::Left)
+    .align(2, Align::Left)
+    .align(6, Align::Left);
+    for it in &a.estimates {
+        let e = &it.estimate;
+        t.row(vec![
+            method_label(&e.method).into(),
+            e.estimand.to_string(),
+            e.scale.to_string(),
+            num(e.estimate),
+            num(e.std_error),
+            interval(e.ci),
+            ci_label(&e.ci_method).into(),
+        ]);
+        if let Some(b) = &it.bootstrap {
+            let failed = if b.failed > 0 { format!(", {} failed", b.failed) } else { String::new() };
+            t.notes.push(format!(
+                "{}: {} bootstrap replicates{failed}; sandwich interval {}.",
+                e.method,
+                b.replicates,
+                interval(it.analytic_ci)
+            ));
+        }
+    }
+    t
+}
+
+/// The question in one sentence.
+pub fn question(a: &Analysis) -> String {
+    let coding = match a.exposure_coding {
+        Some((lo, hi)) => format!(" ({} = {} against {} = {})", a.exposure, sig(hi, 6), a.exposure, sig(lo, 6)),
+        None => " (a continuous exposure)".into(),
+    };
+    let kind = if a.binary_outcome { "binary outcome" } else { "continuous outcome" };
+    format!(
+        "What is the average effect ({}) of {}{coding} on {} ({kind})?",
+        a.estimand, a.exposure, a.outcome
+    )
+}
+
+/// The sample in one sentence.
+pub fn sample_text(a: &Analysis) -> String {
+    let s = &a.sample;
+    let mut t = format!("{} rows read, {} used", s.rows, s.used);
+    if s.dropped > 0 {
+        let by: Vec<String> = s.dropped_by_column.iter().map(|(k, v)| format!("{k}: {v}")).collect();
+        t.push_str(&format!(", {} dropped for missing values (missing by column: {})", s.dropped, by.join(", ")));
+    } else {
+        t.push_str(", none dropped");
+    }
+    t.push('.');
+    t
+}
+
+/// Diagnostics: propensity ranges, weights and the balance table.
+pub fn diagnostics_blocks(a: &Analysis) -> Vec<Block> {
+    let Some(d) = &a.diagnostics else { return Vec::new() };
+    let p = &d.propensity;
+    let w = &d.weights;
+    let mut b = vec![Block::Para(format!(
+        "Propensity scores range from {} to {} (exposed {} to {}; unexposed {} to {}); {} exposed units lie \
+         outside the unexposed range and {} unexposed units outside the exposed range; {} are within 0.01 of 0 or 1.",
+        num(p.min),
+        num(p.max),
+        num(p.treated.min),
+        num(p.treated.max),
+        num(p.control.min),
+        num(p.control.max),
+        p.treated_outside_control_range,
+        p.control_outside_treated_range,
+        p.near_zero_or_one
+    ))];
+    let mut text = format!(
+        "Inverse probability weights: mean {}, min {}, max {}; effective sample size {} exposed, {} unexposed.",
+        num(w.mean),
+        num(w.min),
+        num(w.max),
+        sig(w.ess_treated, 5),
+        sig(w.ess_control, 5)
+    );
+    if let Some(s) = &w.stabilized {
+        text.push_str(&format!(" Stabilized weights: mean {}, min {}, max {}.", num(s.mean), num(s.min), num(s.max)));
+    }
+    b.push(Block::Para(text));
+    if !d.balance.is_empty() {
+        let mut t = Table::new(
+            "Covariate balance (standardized mean differences)",
+            &["term", "before weighting", "after weighting"],
+        );
+        for r in &d.balance {
+            t.row(vec![r.covariate.clone(), num(r.smd_raw), num(r.smd_weighted)]);
+        }
+        t.notes.push("Absolute differences below 0.1 are commonly read as adequate balance (common practice).".into());
+        b.push(Block::Table(t));
+    }
+    b
+}
+
+/// Sensitivity: the E-value and, for a linear outcome, robustness values
+/// with benchmark bounds.
+pub fn sensitivity_blocks(a: &Analysis) -> Vec<Block> {
+    let mut b = Vec::new();
+    if let (Some(e), Some(m)) = (&a.sensitivity.evalue, &a.details.evalue_method) {
+        let limit = match e.ci_limit {
+            Some(l) if l <= 1.0 => " The interval already includes the null, so its E-value is 1.".to_string(),
+            Some(l) => format!(" To move the interval to include the null, {} each would suffice.", sig(l, 3)),
+            None => String::new(),
+        };
+        b.push(Block::Para(format!(
+            "E-value ({}, from the {m} estimate; scale: {}): an unmeasured confounder associated with both {} and {} \
+             by a risk ratio of {} each, beyond the adjustment, could explain the estimate away; weaker confounding \
+             could not.{limit}",
+            "VanderWeele & Ding 2017",
+            e.scale,
+            a.exposure,
+            a.outcome,
+            sig(e.point, 3)
+        )));
+    }
+    if let (Some(rv), Some(c)) = (&a.sensitivity.robustness_value, &a.details.coefficient) {
+        b.push(Block::Para(format!(
+            "Robustness value (Cinelli & Hazlett 2020), for the exposure coefficient {} (s.e. {}) of the linear \
+             outcome model without products: the exposure explains {} of the outcome's residual variance; a \
+             confounder explaining {} of the residual variance of both exposure and outcome would bring the \
+             estimate to zero, and one explaining {} of both would make the {:.0}% interval reach zero.",
+            num(c.estimate),
+            num(c.se),
+            pct(rv.partial_r2_exposure),
+            pct(rv.rv),
+            pct(rv.rv_alpha),
+            100.0 * (1.0 - rv.alpha)
+        )));
+    }
+    if let Some(t) = &a.details.benchmarks {
+        let mut tab = Table::new(
+            "Bounds on a confounder k times as strong as an observed covariate",
+            &["covariate", "k", "R² with exposure", "R² with outcome", "adjusted estimate", "adjusted interval"],
+        );
+        for r in &t.rows {
+            tab.row(vec![
+                r.covariate.clone(),
+                sig(r.k, 2),
+                pct(r.r2_exposure),
+                pct(r.r2_outcome),
+                num(r.estimate),
+                interval(r.ci),
+            ]);
+        }
+        for s in &t.skipped {
+            tab.notes.push(s.clone());
+        }
+        if !tab.rows.is_empty() {
+            b.push(Block::Table(tab));
+        }
+    }
+    for n in &a.details.notes {
+        b.push(Block::Para(format!("Sensitivity: {n}.")));
+    }
+    b.push(Block::Para(
+        "These numbers say how strong confounding left out of the graph would have to be to change the conclusion; \
+         they cannot show that there is none."
+            .into(),
+    ));
+    b
+}
+
+/// Every section of one analysis, in reading order.
+pub fn analysis_blocks(a: &Analysis) -> Vec<Block> {
+    let mut b = vec![
+        Block::Heading("Question".into()),
+        Block::Para(question(a)),
+        Block::Heading("Identification".into()),
+        Block::Para(format!("Strategy: {}. Chosen because it is {}.", strategy_text(a), a.identification.reason)),
+        Block::Heading("Sample".into()),
+        Block::Para(sample_text(a)),
+        Block::Heading("Estimates".into()),
+        Block::Table(estimates_table(a)),
+    ];
+    let diag = diagnostics_blocks(a);
+    if !diag.is_empty() {
+        b.push(Block::Heading("Diagnostics".into()));
+        b.extend(diag);
+    }
+    b.push(Block::Heading("Sensitivity to unmeasured confounding".into()));
+    b.extend(sensitivity_blocks(a));
+    if !a.warnings.is_empty() {
+        b.push(Block::Heading("Warnings".into()));
+        b.extend(a.warnings.iter().map(|w| Block::Warning(w.clone())));
+    }
+    if !a.notes.is_empty() {
+        b.push(Block::Heading("How the estimates were made".into()));
+        b.push(Block::List(a.notes.clone()));
+    }
+    b
+}
