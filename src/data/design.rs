@@ -268,6 +268,46 @@ impl Design {
         }
     }
 
+    /// A copy without the terms that involve the exposure and without the
+    /// exposure itself (the adjustment terms only), same centring.
+    pub fn without_exposure(&self) -> Design {
+        let Some(a) = self.exposure else {
+            return self.clone();
+        };
+        let drop: Vec<usize> = (0..self.terms.len()).filter(|&j| self.terms[j].uses(a)).collect();
+        let mut d = self.without(&drop);
+        d.exposure = None;
+        d
+    }
+
+    /// A copy without the exposure products (terms of two or more factors
+    /// one of which is the exposure), same centring.
+    pub fn without_products(&self) -> Design {
+        let Some(a) = self.exposure else {
+            return self.clone();
+        };
+        let drop: Vec<usize> = (0..self.terms.len())
+            .filter(|&j| self.terms[j].uses(a) && self.terms[j].factors.len() > 1)
+            .collect();
+        self.without(&drop)
+    }
+
+    /// Starting coefficients for a logistic fit: the intercept at the logit
+    /// of the weighted mean of `y`, the rest 0. With centred columns this
+    /// is the intercept-only maximum-likelihood fit.
+    pub fn logit_start(&self, y: &[f64], w: Option<&[f64]>) -> DVector<f64> {
+        let (s, t) = (0..y.len()).fold((0.0, 0.0), |(s, t), i| {
+            let wi = w.map_or(1.0, |w| w[i]);
+            (s + wi * y[i], t + wi)
+        });
+        let m = (s / t).clamp(1e-6, 1.0 - 1e-6);
+        let mut b = DVector::zeros(self.terms.len());
+        if let Some(i0) = self.terms.iter().position(Term::is_intercept) {
+            b[i0] = (m / (1.0 - m)).ln();
+        }
+        b
+    }
+
     /// Rows of this design over `frame`, with the exposure set by `setting`.
     pub fn rows<'a>(&'a self, frame: &'a Frame, setting: Setting) -> DesignRows<'a> {
         DesignRows {

@@ -152,9 +152,20 @@ fn code_numeric(mut v: Vec<f64>) -> (Vec<f64>, Kind) {
 
 /// Levels of a numeric column named categorical, in numeric order.
 fn code_numeric_levels(mut v: Vec<f64>) -> (Vec<f64>, Vec<String>) {
-    let mut distinct = v.clone();
-    distinct.sort_by(f64::total_cmp);
-    distinct.dedup();
+    // Few levels: a sorted list grown in place; many: sort a copy.
+    let mut distinct: Vec<f64> = Vec::new();
+    for &x in &v {
+        let k = distinct.partition_point(|d| *d < x);
+        if distinct.get(k) != Some(&x) {
+            if distinct.len() >= 1024 {
+                distinct = v.clone();
+                distinct.sort_by(f64::total_cmp);
+                distinct.dedup_by(|a, b| a == b);
+                break;
+            }
+            distinct.insert(k, x);
+        }
+    }
     for x in v.iter_mut() {
         *x = distinct.partition_point(|d| d < x) as f64;
     }

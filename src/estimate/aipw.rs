@@ -21,7 +21,7 @@ pub struct Aipw;
 
 struct Fits<'a> {
     om: OutcomeModel<'a>,
-    ps: Propensity,
+    ps: std::borrow::Cow<'a, Propensity>,
     m1: Vec<f64>,
     m0: Vec<f64>,
 }
@@ -74,34 +74,48 @@ impl Method for Aipw {
         let f = self.fits(p, None, None)?;
         let n = p.n();
         let nf = n as f64;
-        let t: Vec<(f64, f64)> = (0..n).map(|i| Aipw::terms(p, &f, i)).collect();
-        let mu1 = t.iter().map(|x| x.0).sum::<f64>() / nf;
-        let mu0 = t.iter().map(|x| x.1).sum::<f64>() / nf;
+        let (s1, s0) = (0..n).fold((0.0, 0.0), |(s1, s0), i| {
+            let (t1, t0) = Aipw::terms(p, &f, i);
+            (s1 + t1, s0 + t0)
+        });
+        let (mu1, mu0) = (s1 / nf, s0 / nf);
         let observed = f.om.predict(p, Setting::Observed);
         let (a, y, e) = (p.a(), p.y(), &f.ps.e);
         let de = |i: usize| if f.ps.clipped(i) { 0.0 } else { e[i] * (1.0 - e[i]) };
         let prop_rows = p.propensity.rows(&p.frame, Setting::Observed);
-        // Arm 1: d/d beta = (1 - A/e) dm1; d/d e = -A (Y - m1) / e^2.
-        let u1: Vec<f64> = (0..n).map(|i| (1.0 - a[i] / e[i]) / nf).collect();
-        let kb1 = f.om.gradient(p, Setting::Fixed(1.0), &f.m1, &u1);
-        let g1: Vec<f64> = (0..n)
-            .map(|i| -a[i] * (y[i] - f.m1[i]) / (e[i] * e[i]) * de(i) / nf)
-            .collect();
-        let kg1 = weighted_sum(&prop_rows, &g1);
-        // Arm 0: d/d beta = (1 - (1-A)/(1-e)) dm0; d/d e = (1-A)(Y - m0)/(1-e)^2.
-        let u0: Vec<f64> = (0..n).map(|i| (1.0 - (1.0 - a[i]) / (1.0 - e[i])) / nf).collect();
-        let kb0 = f.om.gradient(p, Setting::Fixed(0.0), &f.m0, &u0);
-        let g0: Vec<f64> = (0..n)
-            .map(|i| (1.0 - a[i]) * (y[i] - f.m0[i]) / ((1.0 - e[i]) * (1.0 - e[i])) * de(i) / nf)
-            .collect();
-        let kg0 = weighted_sum(&prop_rows, &g0);
-        let (ib1, ig1) = (f.om.influence(p, &kb1, &observed), f.ps.influence(p, &kg1));
-        let (ib0, ig0) = (f.om.influence(p, &kb0, &observed), f.ps.influence(p, &kg0));
+        // Influence of arm `arm` (1 or 0), given the augmented terms `t`:
+        // d/d beta = (1 - R/q) dm, d/d e = -/+ R (Y - m) / q^2 with
+        // R = 1{A = arm} and q = P(A = arm | L).
+        let arm = |arm: usize, mu: f64| -> Vec<f64> {
+            let (m, setting) = if arm == 1 {
+                (&f.m1, Setting::Fixed(1.0))
+            } else {
+                (&f.m0, Setting::Fixed(0.0))
+            };
+            let r = |i: usize| if arm == 1 { a[i] } else { 1.0 - a[i] };
+            let q = |i: usize| if arm == 1 { e[i] } else { 1.0 - e[i] };
+            let sign = if arm == 1 { -1.0 } else { 1.0 };
+            let u: Vec<f64> = (0..n).map(|i| (1.0 - r(i) / q(i)) / nf).collect();
+            let kb = f.om.gradient(p, setting, m, &u);
+            drop(u);
+            let g: Vec<f64> = (0..n)
+                .map(|i| sign * r(i) * (y[i] - m[i]) / (q(i) * q(i)) * de(i) / nf)
+                .collect();
+            let kg = weighted_sum(&prop_rows, &g);
+            drop(g);
+            let mut phi = f.om.influence(p, &kb, &observed);
+            let ig = f.ps.influence(p, &kg);
+            for (i, v) in phi.iter_mut().enumerate() {
+                let t = m[i] + r(i) * (y[i] - m[i]) / q(i);
+                *v += (t - mu) / nf + ig[i];
+            }
+            phi
+        };
         let arms = Arms {
             mu1,
             mu0,
-            phi1: (0..n).map(|i| (t[i].0 - mu1) / nf + ib1[i] + ig1[i]).collect(),
-            phi0: (0..n).map(|i| (t[i].1 - mu0) / nf + ib0[i] + ig0[i]).collect(),
+            phi1: arm(1, mu1),
+            phi0: arm(0, mu0),
         };
         let (estimate, std_error, ci) = interval(p.spec.scale, &arms, p.spec.level)?;
         let mut warnings = Vec::new();

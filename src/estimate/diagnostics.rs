@@ -136,14 +136,14 @@ pub fn diagnostics(p: &Problem) -> Result<Diagnostics> {
     p.require_binary_exposure("diagnostics")?;
     let ps = Propensity::fit(p, None, None)?;
     let (a, n) = (p.a(), p.n());
-    let treated = range((0..n).filter(|&i| a[i] == 1.0).map(|i| ps.raw[i]));
-    let control = range((0..n).filter(|&i| a[i] == 0.0).map(|i| ps.raw[i]));
+    let treated = range((0..n).filter(|&i| a[i] == 1.0).map(|i| ps.raw(i)));
+    let control = range((0..n).filter(|&i| a[i] == 0.0).map(|i| ps.raw(i)));
     let outside = |arm: f64, r: Range| {
         (0..n)
-            .filter(|&i| a[i] == arm && (ps.raw[i] < r.min || ps.raw[i] > r.max))
+            .filter(|&i| a[i] == arm && (ps.raw(i) < r.min || ps.raw(i) > r.max))
             .count()
     };
-    let near = ps.raw.iter().filter(|&&e| !(0.01..=0.99).contains(&e)).count();
+    let near = (0..n).filter(|&i| !(0.01..=0.99).contains(&ps.raw(i))).count();
     let clipped = (0..n).filter(|&i| ps.clipped(i)).count();
     let propensity = PropensityDiagnostics {
         min: treated.min.min(control.min),

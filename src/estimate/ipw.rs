@@ -71,40 +71,39 @@ impl Method for Ipw {
         let ps = Propensity::fit(p, None, None)?;
         let (mu1, mu0) = self.means(p, &ps, None)?;
         let (a, y, est, n) = (p.a(), p.y(), p.spec.estimand, p.n());
-        let w: Vec<(f64, f64, f64, f64)> = (0..n).map(|i| arm_weights(est, a[i], ps.e[i])).collect();
-        let norm = |arm: usize| -> f64 {
-            if self.horvitz_thompson {
-                (0..n).map(|i| population(est, a[i])).sum()
-            } else {
-                w.iter().map(|h| if arm == 1 { h.0 } else { h.1 }).sum()
-            }
-        };
+        let ht = self.horvitz_thompson;
+        let pop: f64 = (0..n).map(|i| population(est, a[i])).sum();
         let arm = |arm: usize, mu: f64| -> Vec<f64> {
-            let s = norm(arm);
-            // Estimating-function value, and its derivative in the score.
-            let term = |i: usize| -> (f64, f64) {
-                let (h, dh) = if arm == 1 {
-                    (w[i].0, w[i].2)
-                } else {
-                    (w[i].1, w[i].3)
-                };
-                let r = if self.horvitz_thompson { y[i] } else { y[i] - mu };
-                let u = if self.horvitz_thompson {
-                    h * y[i] - population(est, a[i]) * mu
-                } else {
-                    h * r
-                };
-                let de = if ps.clipped(i) {
-                    0.0
-                } else {
-                    ps.e[i] * (1.0 - ps.e[i])
-                };
-                (u, dh * de * r)
+            // Row i's weight in this arm and its derivative in the score.
+            let h = |i: usize| {
+                let (h1, h0, d1, d0) = arm_weights(est, a[i], ps.e[i]);
+                if arm == 1 { (h1, d1) } else { (h0, d0) }
             };
-            let k_rows: Vec<f64> = (0..n).map(|i| term(i).1).collect();
+            let s = if ht { pop } else { (0..n).map(|i| h(i).0).sum() };
+            // Derivative of the estimating function in the coefficients.
+            let k_rows: Vec<f64> = (0..n)
+                .map(|i| {
+                    let de = if ps.clipped(i) {
+                        0.0
+                    } else {
+                        ps.e[i] * (1.0 - ps.e[i])
+                    };
+                    let r = if ht { y[i] } else { y[i] - mu };
+                    h(i).1 * de * r
+                })
+                .collect();
             let k = weighted_sum(&p.propensity.rows(&p.frame, Setting::Observed), &k_rows);
-            let infl = ps.influence(p, &k);
-            (0..n).map(|i| (term(i).0 + infl[i]) / s).collect()
+            drop(k_rows);
+            let mut phi = ps.influence(p, &k);
+            for (i, f) in phi.iter_mut().enumerate() {
+                let u = if ht {
+                    h(i).0 * y[i] - population(est, a[i]) * mu
+                } else {
+                    h(i).0 * (y[i] - mu)
+                };
+                *f = (u + *f) / s;
+            }
+            phi
         };
         let arms = Arms {
             mu1,

@@ -10,6 +10,14 @@ use crate::model::{Chol, Logit, LogitOptions, Ols, Separation, expit, linear_pre
 use crate::{Error, Result};
 use nalgebra::DVector;
 
+/// The coefficients of a fitted outcome model and the factor of its bread.
+#[derive(Debug, Clone)]
+pub(crate) struct OutcomeFit {
+    coef: DVector<f64>,
+    chol: Chol,
+    separation: Option<Separation>,
+}
+
 /// A fitted outcome model.
 pub(crate) struct OutcomeModel<'a> {
     pub design: &'a Design,
@@ -20,13 +28,33 @@ pub(crate) struct OutcomeModel<'a> {
 }
 
 impl<'a> OutcomeModel<'a> {
-    /// Fits the problem's outcome design with frequency weights `w`.
+    /// Fits the problem's outcome design with frequency weights `w`; the
+    /// full-sample fit (`w` = None) is made once per problem and shared.
     pub fn fit(p: &'a Problem, w: Option<&[f64]>, warm: Option<&DVector<f64>>) -> Result<OutcomeModel<'a>> {
+        let f = match (w, p.cache.outcome.get()) {
+            (None, Some(f)) => f.clone(),
+            (None, None) => {
+                let f = OutcomeModel::compute(p, None, warm)?;
+                let _ = p.cache.outcome.set(f.clone());
+                f
+            }
+            (Some(_), _) => OutcomeModel::compute(p, w, warm)?,
+        };
+        Ok(OutcomeModel {
+            design: &p.outcome_design,
+            coef: f.coef,
+            binary: p.binary_outcome(),
+            chol: f.chol,
+            separation: f.separation,
+        })
+    }
+
+    fn compute(p: &Problem, w: Option<&[f64]>, warm: Option<&DVector<f64>>) -> Result<OutcomeFit> {
         let design = &p.outcome_design;
         let rows = design.rows(&p.frame, Setting::Observed);
-        let binary = p.binary_outcome();
-        let (coef, chol, separation) = if binary {
-            let f = Logit::fit(&rows, p.y(), w, warm, LogitOptions::default())?;
+        let (coef, chol, separation) = if p.binary_outcome() {
+            let start = warm.cloned().unwrap_or_else(|| design.logit_start(p.y(), w));
+            let f = Logit::fit(&rows, p.y(), w, Some(&start), LogitOptions::default())?;
             let c = f.chol().clone();
             (f.coef, c, f.separation)
         } else {
@@ -45,10 +73,8 @@ impl<'a> OutcomeModel<'a> {
                 "the exposure term is aliased in the outcome model".into(),
             ));
         }
-        Ok(OutcomeModel {
-            design,
+        Ok(OutcomeFit {
             coef,
-            binary,
             chol,
             separation,
         })

@@ -9,6 +9,10 @@ use crate::data::{Dataset, Design, Frame, Kind, Role, Sample, Setting, Shape};
 use crate::model::{ALIAS_TOL, Chol, accumulate};
 use crate::{Error, Result};
 use nalgebra::DMatrix;
+use std::sync::OnceLock;
+
+use super::outcome::OutcomeFit;
+use super::propensity::Propensity;
 
 /// What to estimate, from the analysis plan.
 #[derive(Debug, Clone)]
@@ -84,6 +88,15 @@ pub struct Problem {
     pub adjusted: Design,
     /// Warnings raised while preparing (dropped rows, aliased terms).
     pub warnings: Vec<String>,
+    /// Full-sample model fits, shared by the methods.
+    pub(crate) cache: Cache,
+}
+
+/// Full-sample fits, made once on first use.
+#[derive(Debug, Clone, Default)]
+pub(crate) struct Cache {
+    pub propensity: OnceLock<Propensity>,
+    pub outcome: OnceLock<OutcomeFit>,
 }
 
 /// Aliased terms of `design`, taken in the order intercept, adjustment
@@ -167,43 +180,40 @@ impl Problem {
             .iter()
             .map(|n| covariates[spec.covariates.iter().position(|c| c == n).unwrap_or(0)])
             .collect();
-        let mut propensity = Design::build(&frame, None, &covariates, spec.shape, &[]);
-        let mut outcome_design = Design::build(&frame, Some(exposure), &covariates, spec.shape, &interact);
-        let mut adjusted = Design::build(&frame, Some(exposure), &covariates, spec.shape, &[]);
-        // Aliased adjustment terms: drop them from every design, once.
-        let drop = aliased(&propensity, &frame);
-        if !drop.is_empty() {
-            let names: Vec<String> = drop.iter().map(|&j| propensity.terms()[j].name.clone()).collect();
-            warnings.push(format!(
-                "adjustment terms dropped as constant or collinear with others: {}",
-                names.join(", ")
-            ));
-            propensity = propensity.without(&drop);
-            let by_name = |d: &Design| -> Vec<usize> { names.iter().filter_map(|n| d.position(n)).collect() };
-            outcome_design = outcome_design.without(&by_name(&outcome_design));
-            adjusted = adjusted.without(&by_name(&adjusted));
-        }
-        let drop = aliased(&outcome_design, &frame);
-        if drop.iter().any(|&j| Some(j) == outcome_design.exposure_term()) {
+        // One design, centred and checked once; the others are its subsets.
+        let full = Design::build(&frame, Some(exposure), &covariates, spec.shape, &interact);
+        let drop = aliased(&full, &frame);
+        if drop.iter().any(|&j| Some(j) == full.exposure_term()) {
             return Err(Error::input(format!(
                 "the exposure '{}' is constant or a linear combination of the adjustment terms in the \
                  complete rows: its effect cannot be separated from theirs",
                 spec.exposure
             )));
         }
-        if !drop.is_empty() {
-            let names: Vec<String> = drop
-                .iter()
-                .map(|&j| outcome_design.terms()[j].name.clone())
-                .collect();
+        let names = |pick: &dyn Fn(&crate::data::Term) -> bool| -> Vec<String> {
+            drop.iter()
+                .map(|&j| &full.terms()[j])
+                .filter(|t| pick(t))
+                .map(|t| t.name.clone())
+                .collect()
+        };
+        let covs = names(&|t| !t.uses(exposure));
+        if !covs.is_empty() {
+            warnings.push(format!(
+                "adjustment terms dropped as constant or collinear with others: {}",
+                covs.join(", ")
+            ));
+        }
+        let prods = names(&|t| t.uses(exposure));
+        if !prods.is_empty() {
             warnings.push(format!(
                 "outcome-model terms dropped as collinear with others: {}",
-                names.join(", ")
+                prods.join(", ")
             ));
-            outcome_design = outcome_design.without(&drop);
-            let a = aliased(&adjusted, &frame);
-            adjusted = adjusted.without(&a);
         }
+        let outcome_design = full.without(&drop);
+        let propensity = outcome_design.without_exposure();
+        let adjusted = outcome_design.without_products();
         Ok(Problem {
             spec: spec.clone(),
             sample,
@@ -216,6 +226,7 @@ impl Problem {
             outcome_design,
             adjusted,
             warnings,
+            cache: Cache::default(),
         })
     }
 

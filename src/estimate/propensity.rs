@@ -7,25 +7,50 @@
 
 use super::{Estimand, Problem};
 use crate::data::Setting;
-use crate::model::{Logit, LogitOptions, linear_predictor};
+use crate::model::{Logit, LogitOptions, expit, linear_predictor};
 use crate::{Error, Result};
 use nalgebra::DVector;
+use std::borrow::Cow;
 
 /// A fitted propensity model.
+#[derive(Debug, Clone)]
 pub(crate) struct Propensity {
     pub fit: Logit,
     /// Scores after clipping.
     pub e: Vec<f64>,
-    /// Scores before clipping.
-    pub raw: Vec<f64>,
+    /// Scores before clipping, when clipping changed any.
+    raw: Option<Vec<f64>>,
 }
 
 impl Propensity {
-    /// Fits; refuses (an error) when the exposure is separated, since the
-    /// weights would be unbounded.
-    pub fn fit(p: &Problem, w: Option<&[f64]>, warm: Option<&DVector<f64>>) -> Result<Propensity> {
+    /// Fits with frequency weights `w`; the full-sample fit (`w` = None) is
+    /// made once per problem and shared. Refuses (an error) when the
+    /// exposure is separated, since the weights would be unbounded.
+    pub fn fit<'a>(
+        p: &'a Problem,
+        w: Option<&[f64]>,
+        warm: Option<&DVector<f64>>,
+    ) -> Result<Cow<'a, Propensity>> {
+        if w.is_none() {
+            if let Some(c) = p.cache.propensity.get() {
+                return Ok(Cow::Borrowed(c));
+            }
+            let fitted = Propensity::compute(p, None, warm)?;
+            let _ = p.cache.propensity.set(fitted);
+            if let Some(c) = p.cache.propensity.get() {
+                return Ok(Cow::Borrowed(c));
+            }
+        }
+        Ok(Cow::Owned(Propensity::compute(p, w, warm)?))
+    }
+
+    fn compute(p: &Problem, w: Option<&[f64]>, warm: Option<&DVector<f64>>) -> Result<Propensity> {
         let rows = p.propensity.rows(&p.frame, Setting::Observed);
-        let fit = Logit::fit(&rows, p.a(), w, warm, LogitOptions::default())?;
+        let start = match warm {
+            Some(b) => b.clone(),
+            None => p.propensity.logit_start(p.a(), w),
+        };
+        let fit = Logit::fit(&rows, p.a(), w, Some(&start), LogitOptions::default())?;
         if let Some(s) = &fit.separation {
             return Err(Error::Numerical(format!(
                 "propensity model for '{}': {s}; some units have no chance of the other exposure \
@@ -34,28 +59,35 @@ impl Propensity {
                 p.spec.exposure
             )));
         }
-        let raw: Vec<f64> = linear_predictor(&rows, &fit.coef)
-            .into_iter()
-            .map(crate::model::expit)
-            .collect();
-        let e = match p.spec.trim {
-            Some(t) if t > 0.0 => raw.iter().map(|&x| x.clamp(t, 1.0 - t)).collect(),
-            _ => raw.clone(),
+        let mut e = linear_predictor(&rows, &fit.coef);
+        e.iter_mut().for_each(|x| *x = expit(*x));
+        let raw = match p.spec.trim {
+            Some(t) if t > 0.0 && e.iter().any(|&x| x < t || x > 1.0 - t) => {
+                let raw = e.clone();
+                e.iter_mut().for_each(|x| *x = x.clamp(t, 1.0 - t));
+                Some(raw)
+            }
+            _ => None,
         };
         Ok(Propensity { fit, e, raw })
     }
 
+    /// Row i's score before clipping.
+    pub fn raw(&self, i: usize) -> f64 {
+        self.raw.as_ref().map_or(self.e[i], |r| r[i])
+    }
+
     /// Was row i's score clipped (its derivative in the coefficients is 0)?
     pub fn clipped(&self, i: usize) -> bool {
-        self.e[i] != self.raw[i]
+        self.raw.as_ref().is_some_and(|r| r[i] != self.e[i])
     }
 
     /// Row i's influence on `k' (gamma_hat - gamma)`: `z_i' I^-1 k (A_i - e_i)`.
     pub fn influence(&self, p: &Problem, k: &DVector<f64>) -> Vec<f64> {
         let c = self.fit.bread_solve(k);
         let mut d = linear_predictor(&p.propensity.rows(&p.frame, Setting::Observed), &c);
-        for ((d, a), e) in d.iter_mut().zip(p.a()).zip(&self.raw) {
-            *d *= a - e;
+        for (i, (d, a)) in d.iter_mut().zip(p.a()).enumerate() {
+            *d *= a - self.raw(i);
         }
         d
     }

@@ -31,7 +31,7 @@ impl Default for LogitOptions {
 /// numerically 0 or 1 and their coefficients diverge (Albert & Anderson 1984).
 #[derive(Debug, Clone, PartialEq)]
 pub struct Separation {
-    /// Rows with a fitted probability within 1e-10 of 0 or 1.
+    /// Rows with a fitted probability within 1e-8 of 0 or 1.
     pub extreme_rows: usize,
     /// Every row is fitted at 0 or 1 (complete separation).
     pub complete: bool,
@@ -75,7 +75,7 @@ fn softplus(x: f64) -> f64 {
     x.max(0.0) + (-x.abs()).exp().ln_1p()
 }
 
-const EXTREME: f64 = 1e-10;
+const EXTREME: f64 = 1e-8;
 
 impl Logit {
     /// Fits `y` (0/1) on `rows`, from `warm` (or zeros). Fails with
@@ -174,5 +174,54 @@ impl Logit {
     /// The factor of the bread matrix (`X'WX`, or the information).
     pub fn chol(&self) -> &Chol {
         &self.chol
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::data::DenseRows;
+
+    fn design(x: &[f64]) -> DenseRows {
+        DenseRows(DMatrix::from_fn(
+            x.len(),
+            2,
+            |i, j| if j == 0 { 1.0 } else { x[i] },
+        ))
+    }
+
+    #[test]
+    fn binary_covariate_gives_the_group_log_odds() {
+        // Saturated model: the MLE reproduces each group's log odds (closed
+        // form; 1e-10 for the iterations' tolerance).
+        let x = [0.0, 0.0, 0.0, 0.0, 1.0, 1.0, 1.0, 1.0, 1.0];
+        let y = [1.0, 0.0, 0.0, 0.0, 1.0, 1.0, 1.0, 0.0, 0.0];
+        let f = Logit::fit(&design(&x), &y, None, None, LogitOptions::default()).unwrap();
+        let logit = |p: f64| (p / (1.0 - p)).ln();
+        assert!((f.coef[0] - logit(0.25)).abs() < 1e-10);
+        assert!((f.coef[1] - (logit(0.6) - logit(0.25))).abs() < 1e-10);
+        assert!(f.separation.is_none());
+        // Var of a group log odds is 1/(n p (1-p)) (closed form).
+        assert!((f.cov[(0, 0)] - 1.0 / (4.0 * 0.25 * 0.75)).abs() < 1e-9);
+        // Frequency weights equal repeated rows.
+        let w = [2.0, 1.0, 1.0, 1.0, 1.0, 1.0, 1.0, 1.0, 1.0];
+        let g = Logit::fit(&design(&x), &y, Some(&w), None, LogitOptions::default()).unwrap();
+        assert!((g.coef[0] - logit(0.4)).abs() < 1e-10);
+    }
+
+    #[test]
+    fn separation_is_reported_as_a_condition() {
+        // y = 1 exactly when x > 2.5: complete separation (Albert & Anderson 1984).
+        let x = [1.0, 2.0, 3.0, 4.0, 2.2, 2.7];
+        let y = [0.0, 0.0, 1.0, 1.0, 0.0, 1.0];
+        let f = Logit::fit(&design(&x), &y, None, None, LogitOptions::default()).unwrap();
+        let s = f.separation.expect("separation");
+        assert!(s.complete, "{s:?}");
+        // Quasi-complete: one x value holds both outcomes.
+        let x = [1.0, 2.0, 3.0, 3.0, 4.0, 5.0];
+        let y = [0.0, 0.0, 0.0, 1.0, 1.0, 1.0];
+        let f = Logit::fit(&design(&x), &y, None, None, LogitOptions::default()).unwrap();
+        let s = f.separation.expect("separation");
+        assert!(!s.complete && s.extreme_rows == 4, "{s:?}");
     }
 }

@@ -111,3 +111,29 @@ impl Ols {
         &self.chol
     }
 }
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::data::DenseRows;
+
+    #[test]
+    fn simple_regression_closed_form() {
+        // y on (1, x): slope = Sxy / Sxx, se = sqrt(s^2 / Sxx) (closed form,
+        // 1e-12); HC0 = sqrt(sum (x - xbar)^2 e^2) / Sxx.
+        let x = [1.0, 2.0, 3.0, 4.0, 5.0];
+        let y = [1.0, 3.0, 2.0, 5.0, 4.0];
+        let rows = DenseRows(DMatrix::from_fn(5, 2, |i, j| if j == 0 { 1.0 } else { x[i] }));
+        let f = Ols::fit(&rows, &y, None).unwrap();
+        let (sxx, sxy) = (10.0, 8.0);
+        let slope = sxy / sxx;
+        assert!((f.coef[1] - slope).abs() < 1e-12);
+        assert!((f.coef[0] - (3.0 - slope * 3.0)).abs() < 1e-12);
+        let e: Vec<f64> = (0..5).map(|i| y[i] - f.coef[0] - slope * x[i]).collect();
+        let rss: f64 = e.iter().map(|v| v * v).sum();
+        assert!((f.rss - rss).abs() < 1e-12 && f.df == 3.0);
+        assert!((f.se()[1] - (rss / 3.0 / sxx).sqrt()).abs() < 1e-12);
+        let hc0 = (0..5).map(|i| ((x[i] - 3.0) * e[i]).powi(2)).sum::<f64>().sqrt() / sxx;
+        assert!((f.se_hc0()[1] - hc0).abs() < 1e-12);
+    }
+}

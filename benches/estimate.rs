@@ -1,0 +1,158 @@
+//! Benchmark of the data, model and estimate stages on 1,000,000 rows.
+//!
+//! Writes a seeded CSV (20 covariates: 10 continuous, 5 binary, 5
+//! categorical with 4 levels; a binary exposure; a continuous outcome) to
+//! the target folder, then times (1) parsing it, and (2) preparing the
+//! problem and running regression, ipw and aipw with analytic intervals.
+//! Peak memory is the process's VmHWM (reset before parsing where the
+//! kernel allows). Targets: whole run within 3x the parse time; peak memory
+//! within 3x the used columns as f64.
+//!
+//! Run: `cargo bench --bench estimate` (set `CAUSEWAY_BENCH_ROWS` for
+//! another size).
+
+use causeway::data::{Dataset, ReadOptions};
+use causeway::estimate::{Problem, Spec, method};
+use rand::{RngExt, SeedableRng};
+use rand_chacha::ChaCha8Rng;
+use std::io::Write;
+use std::path::Path;
+use std::time::Instant;
+
+const CONT: usize = 10;
+const BIN: usize = 5;
+const CAT: usize = 5;
+
+fn generate(path: &Path, rows: usize) {
+    let f = std::fs::File::create(path).expect("create bench data");
+    let mut w = std::io::BufWriter::with_capacity(1 << 20, f);
+    let mut r = ChaCha8Rng::seed_from_u64(20261201);
+    let mut header: Vec<String> = (1..=CONT).map(|j| format!("c{j}")).collect();
+    header.extend((1..=BIN).map(|j| format!("b{j}")));
+    header.extend((1..=CAT).map(|j| format!("k{j}")));
+    header.push("a".into());
+    header.push("y".into());
+    writeln!(w, "{}", header.join(",")).unwrap();
+    let expit = |x: f64| 1.0 / (1.0 + (-x).exp());
+    let mut line = String::with_capacity(256);
+    for _ in 0..rows {
+        line.clear();
+        let mut lin = 0.0;
+        let mut out = 0.0;
+        for j in 0..CONT {
+            let v: f64 = r.sample(rand_distr::StandardNormal);
+            lin += 0.1 * v * if j % 2 == 0 { 1.0 } else { -1.0 };
+            out += 0.3 * v;
+            line.push_str(&format!("{v:.4},"));
+        }
+        for j in 0..BIN {
+            let v = u8::from(r.random::<f64>() < 0.3 + 0.05 * j as f64);
+            lin += 0.2 * f64::from(v);
+            out += 0.5 * f64::from(v);
+            line.push_str(if v == 1 { "1," } else { "0," });
+        }
+        for _ in 0..CAT {
+            let v = 1 + (r.random::<f64>() * 4.0) as u32;
+            lin += 0.1 * f64::from(v);
+            out += 0.2 * f64::from(v);
+            line.push_str(&format!("{v},"));
+        }
+        let a = u8::from(r.random::<f64>() < expit(-0.8 + lin));
+        let e: f64 = r.sample(rand_distr::StandardNormal);
+        let y = 1.0 + 2.0 * f64::from(a) + out + e;
+        line.push_str(&format!("{a},{y:.4}"));
+        writeln!(w, "{line}").unwrap();
+    }
+    w.flush().unwrap();
+}
+
+/// VmHWM (peak resident memory) in bytes.
+fn peak_bytes() -> Option<u64> {
+    let s = std::fs::read_to_string("/proc/self/status").ok()?;
+    let line = s.lines().find(|l| l.starts_with("VmHWM:"))?;
+    let kb: u64 = line.split_whitespace().nth(1)?.parse().ok()?;
+    Some(kb * 1024)
+}
+
+fn main() {
+    let rows: usize = std::env::var("CAUSEWAY_BENCH_ROWS")
+        .ok()
+        .and_then(|v| v.parse().ok())
+        .unwrap_or(1_000_000);
+    let dir = Path::new(env!("CARGO_TARGET_TMPDIR"));
+    let path = dir.join(format!("estimate-bench-{rows}.csv"));
+    if !path.exists() {
+        let t = Instant::now();
+        generate(&path, rows);
+        println!(
+            "generated {} ({rows} rows) in {:.2?}",
+            path.display(),
+            t.elapsed()
+        );
+    }
+    let size = std::fs::metadata(&path).map(|m| m.len()).unwrap_or(0);
+    // Forget the generator's peak (Linux >= 4.0); harmless elsewhere.
+    let reset = std::fs::write("/proc/self/clear_refs", "5").is_ok();
+
+    let t0 = Instant::now();
+    let data = Dataset::open(&path, &ReadOptions::default()).expect("parse");
+    let parse = t0.elapsed();
+    let peak_parse = peak_bytes();
+
+    let covariates: Vec<String> = data.names()[..CONT + BIN + CAT].to_vec();
+    let spec = Spec {
+        exposure: "a".into(),
+        outcome: "y".into(),
+        categorical: covariates[CONT + BIN..].to_vec(),
+        covariates,
+        ..Spec::default()
+    };
+    let t1 = Instant::now();
+    let problem = Problem::build(&data, &spec).expect("problem");
+    let build = t1.elapsed();
+    let mut times = Vec::new();
+    for name in ["regression", "ipw", "aipw"] {
+        let t = Instant::now();
+        let e = method(name).unwrap().estimate(&problem).expect("estimate");
+        times.push((name, t.elapsed()));
+        println!(
+            "{name:>10}: {:.4} (SE {:.4}, CI {:.4} to {:.4})",
+            e.estimate, e.std_error, e.ci[0], e.ci[1]
+        );
+    }
+    let whole = t0.elapsed();
+    let peak = peak_bytes();
+    let used = (spec.covariates.len() + 2) as f64 * rows as f64 * 8.0;
+
+    println!(
+        "rows {rows}, file {:.1} MB, threads {}",
+        size as f64 / 1e6,
+        rayon::current_num_threads()
+    );
+    println!("parse             {parse:.2?}");
+    println!("prepare problem   {build:.2?}");
+    for (name, t) in &times {
+        println!("{name:<17} {t:.2?}");
+    }
+    println!("whole run         {whole:.2?}");
+    println!(
+        "whole / parse     {:.2}  (target <= 3)",
+        whole.as_secs_f64() / parse.as_secs_f64()
+    );
+    println!("used columns      {:.1} MB as f64", used / 1e6);
+    if let (Some(pp), Some(p)) = (peak_parse, peak) {
+        println!("peak after parse  {:.1} MB", pp as f64 / 1e6);
+        println!(
+            "peak memory       {:.1} MB = {:.2}x the used columns (target <= 3){}",
+            p as f64 / 1e6,
+            p as f64 / used,
+            if reset {
+                ""
+            } else {
+                " [peak not reset: includes the generator]"
+            }
+        );
+    }
+    drop(problem);
+    drop(data);
+}
