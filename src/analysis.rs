@@ -13,9 +13,9 @@ use crate::estimate::{
 use crate::identify::Strategy;
 use crate::infer::bootstrap::{self, BootOpts, BootstrapBlock, IntervalKind};
 use crate::plan::Plan;
+use crate::sensitivity::SensitivityBlock;
 use crate::sensitivity::evalue::{self, EValue};
 use crate::sensitivity::robustness::{self, BenchmarkTable, Coefficient, Covariate, RobustnessValue};
-use crate::sensitivity::SensitivityBlock;
 use crate::{Error, Result};
 use serde::Serialize;
 
@@ -178,7 +178,10 @@ pub fn spec(plan: &Plan, opts: &Options) -> Spec {
 /// The columns an analysis under `plan` reads.
 pub fn columns(plan: &Plan) -> Vec<String> {
     let g = &plan.roles.graph;
-    let mut c = vec![g.name(plan.roles.exposure).to_string(), g.name(plan.roles.outcome).to_string()];
+    let mut c = vec![
+        g.name(plan.roles.exposure).to_string(),
+        g.name(plan.roles.outcome).to_string(),
+    ];
     c.extend(plan.adjustment_set.iter().flatten().cloned());
     c.extend(plan.frontdoor_set.iter().flatten().cloned());
     c
@@ -194,14 +197,19 @@ pub fn run(plan: &Plan, data: &Dataset, opts: &Options) -> Result<Analysis> {
             return Err(Error::input(format!(
                 "--interact '{name}' is not in the adjustment set used ({}); products with the exposure \
                  are formed with adjustment covariates only",
-                plan.adjustment_set.as_ref().map_or("none".to_string(), |s| format!("{{{}}}", s.join(", ")))
+                plan.adjustment_set
+                    .as_ref()
+                    .map_or("none".to_string(), |s| format!("{{{}}}", s.join(", ")))
             )));
         }
     }
     let problem = Problem::build(data, &spec(plan, opts))?;
     let names: Vec<String> = match &opts.methods {
         Some(m) => m.clone(),
-        None => estimate::applicable(&problem).iter().map(|s| s.to_string()).collect(),
+        None => estimate::applicable(&problem)
+            .iter()
+            .map(|s| s.to_string())
+            .collect(),
     };
     check_methods(plan, &names)?;
     let methods: Vec<Box<dyn Method>> = names.iter().map(|n| estimate::method(n)).collect::<Result<_>>()?;
@@ -261,7 +269,11 @@ fn check_methods(plan: &Plan, names: &[String]) -> Result<()> {
             _ => n != "frontdoor",
         };
         if !fits {
-            let strategy = if plan.strategy == Strategy::Frontdoor { "frontdoor" } else { "backdoor" };
+            let strategy = if plan.strategy == Strategy::Frontdoor {
+                "frontdoor"
+            } else {
+                "backdoor"
+            };
             return Err(Error::input(format!(
                 "--method {n} does not fit the {strategy} strategy of this graph (front-door: frontdoor; \
                  backdoor: regression, ipw, ipw-ht, aipw)"
@@ -291,12 +303,20 @@ fn run_bootstrap(
     // A method that fails in a replicate gives NaN there: it is counted as
     // failed for that method only.
     let draws = bootstrap::run(p.n(), &boot, |w| {
-        Ok(methods.iter().zip(&warm).map(|(m, wm)| m.point(p, Some(w), Some(wm)).unwrap_or(f64::NAN)).collect())
+        Ok(methods
+            .iter()
+            .zip(&warm)
+            .map(|(m, wm)| m.point(p, Some(w), Some(wm)).unwrap_or(f64::NAN))
+            .collect())
     })?;
     let mut warnings = Vec::new();
     for (j, item) in estimates.iter_mut().enumerate() {
         let s = draws.summary_at(j, opts.level)?;
-        warnings.extend(s.warnings.iter().map(|w| format!("{} bootstrap: {w}", item.estimate.method)));
+        warnings.extend(
+            s.warnings
+                .iter()
+                .map(|w| format!("{} bootstrap: {w}", item.estimate.method)),
+        );
         let block = s.block(opts.interval)?;
         item.estimate.ci = block.ci;
         item.estimate.ci_method = opts.interval.ci_method().to_string();
@@ -315,9 +335,19 @@ fn sensitivity(
 ) -> Result<(SensitivityBlock, SensitivityDetails)> {
     let mut details = SensitivityDetails::default();
     let Some(first) = estimates.first() else {
-        return Ok((SensitivityBlock { evalue: None, robustness_value: None }, details));
+        return Ok((
+            SensitivityBlock {
+                evalue: None,
+                robustness_value: None,
+            },
+            details,
+        ));
     };
-    let inputs = if p.binary_outcome() || p.mediators.len() > 0 { None } else { estimate::sensitivity_inputs(p)? };
+    let inputs = if p.binary_outcome() || p.mediators.len() > 0 {
+        None
+    } else {
+        estimate::sensitivity_inputs(p)?
+    };
     let ev = match evalue_for(p, methods, first, inputs.as_ref(), opts) {
         Ok(e) => {
             details.evalue_method = Some(first.estimate.method.clone());
@@ -332,12 +362,20 @@ fn sensitivity(
         Some(s) => Some(robustness_for(s, opts, &mut details)?),
         None => {
             if !p.binary_outcome() && p.mediators.is_empty() {
-                details.notes.push("no robustness value: the outcome regression could not be formed".into());
+                details
+                    .notes
+                    .push("no robustness value: the outcome regression could not be formed".into());
             }
             None
         }
     };
-    Ok((SensitivityBlock { evalue: ev, robustness_value: rv }, details))
+    Ok((
+        SensitivityBlock {
+            evalue: ev,
+            robustness_value: rv,
+        },
+        details,
+    ))
 }
 
 fn evalue_for(
@@ -372,7 +410,11 @@ fn sd(y: &[f64]) -> f64 {
     (y.iter().map(|v| (v - m) * (v - m)).sum::<f64>() / (n - 1.0)).sqrt()
 }
 
-fn robustness_for(s: &SensitivityInputs, opts: &Options, details: &mut SensitivityDetails) -> Result<RobustnessValue> {
+fn robustness_for(
+    s: &SensitivityInputs,
+    opts: &Options,
+    details: &mut SensitivityDetails,
+) -> Result<RobustnessValue> {
     let alpha = 1.0 - opts.level;
     let c = Coefficient::new(s.estimate, s.std_error, s.df)?;
     let rv = robustness::robustness_value(&c, 1.0, alpha)?;
@@ -385,7 +427,12 @@ fn robustness_for(s: &SensitivityInputs, opts: &Options, details: &mut Sensitivi
             r2_outcome: robustness::partial_r2(t.t_outcome, s.df),
         })
         .collect();
-    details.benchmarks = Some(robustness::benchmark_table(&c, &details.covariates, &BENCHMARK_KS, alpha)?);
+    details.benchmarks = Some(robustness::benchmark_table(
+        &c,
+        &details.covariates,
+        &BENCHMARK_KS,
+        alpha,
+    )?);
     details.coefficient = Some(c);
     Ok(rv)
 }

@@ -35,15 +35,22 @@ impl AdjustChoice {
 
 /// Splits a comma-separated list into trimmed, non-empty names.
 pub fn split_list(s: &str) -> Vec<String> {
-    s.split(',').map(|x| x.trim().to_string()).filter(|x| !x.is_empty()).collect()
+    s.split(',')
+        .map(|x| x.trim().to_string())
+        .filter(|x| !x.is_empty())
+        .collect()
 }
 
 /// The column names of a CSV header line (a UTF-8 byte-order mark is
 /// dropped); `source` names the data in messages.
 pub fn read_header<R: Read>(reader: R, source: &str) -> Result<Vec<String>> {
-    let mut csv = csv::ReaderBuilder::new().has_headers(true).flexible(true).from_reader(reader);
-    let header =
-        csv.headers().map_err(|e| Error::input(format!("{source}: cannot read the CSV header line: {e}")))?;
+    let mut csv = csv::ReaderBuilder::new()
+        .has_headers(true)
+        .flexible(true)
+        .from_reader(reader);
+    let header = csv
+        .headers()
+        .map_err(|e| Error::input(format!("{source}: cannot read the CSV header line: {e}")))?;
     let mut names: Vec<String> = header.iter().map(|h| h.trim().to_string()).collect();
     if let Some(first) = names.first_mut()
         && let Some(rest) = first.strip_prefix('\u{feff}')
@@ -51,7 +58,9 @@ pub fn read_header<R: Read>(reader: R, source: &str) -> Result<Vec<String>> {
         *first = rest.to_string();
     }
     if names.iter().all(|n| n.is_empty()) {
-        return Err(Error::input(format!("{source}: the file is empty or its CSV header line is blank")));
+        return Err(Error::input(format!(
+            "{source}: the file is empty or its CSV header line is blank"
+        )));
     }
     Ok(names)
 }
@@ -109,7 +118,9 @@ impl Roles {
         let x = node(&graph, exposure, "--exposure")?;
         let y = node(&graph, outcome, "--outcome")?;
         if x == y {
-            return Err(Error::input(format!("--exposure and --outcome are the same node '{exposure}'")));
+            return Err(Error::input(format!(
+                "--exposure and --outcome are the same node '{exposure}'"
+            )));
         }
         for (v, flag) in [(x, "--exposure"), (y, "--outcome")] {
             if graph.is_latent(v) {
@@ -196,7 +207,11 @@ impl Plan {
         let (adjustment_set, frontdoor_set, reason) = match (&id.given_set, adjust) {
             (Some(gs), _) if gs.valid => {
                 strategy = Strategy::Backdoor;
-                (Some(gs.set.clone()), None, "the set given with --adjust, which meets the backdoor criterion".into())
+                (
+                    Some(gs.set.clone()),
+                    None,
+                    "the set given with --adjust, which meets the backdoor criterion".into(),
+                )
             }
             (Some(gs), _) => {
                 let why = given_set_problem(g, gs);
@@ -213,7 +228,11 @@ impl Plan {
                     gs.set.join(", ")
                 ));
                 strategy = Strategy::Backdoor;
-                (Some(gs.set.clone()), None, "the set given with --adjust (forced; not valid under the graph)".into())
+                (
+                    Some(gs.set.clone()),
+                    None,
+                    "the set given with --adjust (forced; not valid under the graph)".into(),
+                )
             }
             (None, _) => match id.strategy {
                 Strategy::Backdoor => {
@@ -229,15 +248,20 @@ impl Plan {
                             None,
                             format!(
                                 "the smallest minimal adjustment set (the optimal set is not available: {})",
-                                id.backdoor.optimal_set_reason.clone().unwrap_or_else(|| "not valid".into())
+                                id.backdoor
+                                    .optimal_set_reason
+                                    .clone()
+                                    .unwrap_or_else(|| "not valid".into())
                             ),
                         ),
                         _ => (minimal, None, "the smallest minimal adjustment set".into()),
                     }
                 }
-                Strategy::Frontdoor => {
-                    (None, smallest(&id.frontdoor.sets), "the smallest front-door set (Pearl 1995)".into())
-                }
+                Strategy::Frontdoor => (
+                    None,
+                    smallest(&id.frontdoor.sets),
+                    "the smallest front-door set (Pearl 1995)".into(),
+                ),
                 Strategy::None => (None, None, String::new()),
             },
         };
@@ -256,7 +280,11 @@ impl Plan {
     pub fn not_identified_reason(&self) -> String {
         let id = &self.identification;
         let g = &self.roles.graph;
-        let fd = id.frontdoor.obstacle.clone().unwrap_or_else(|| "no set meets the front-door criterion".into());
+        let fd = id
+            .frontdoor
+            .obstacle
+            .clone()
+            .unwrap_or_else(|| "no set meets the front-door criterion".into());
         format!(
             "the effect of {} on {} is not identified under this graph: no set of observed variables meets \
              the backdoor criterion, and {fd}",
@@ -267,12 +295,17 @@ impl Plan {
 }
 
 fn smallest(sets: &[Vec<String>]) -> Option<Vec<String>> {
-    sets.iter().min_by(|a, b| a.len().cmp(&b.len()).then_with(|| a.cmp(b))).cloned()
+    sets.iter()
+        .min_by(|a, b| a.len().cmp(&b.len()).then_with(|| a.cmp(b)))
+        .cloned()
 }
 
 fn given_set_problem(g: &Graph, gs: &crate::identify::GivenSet) -> String {
     if !gs.descendants_of_exposure.is_empty() {
-        return format!("{} descends from the exposure", gs.descendants_of_exposure.join(", "));
+        return format!(
+            "{} descends from the exposure",
+            gs.descendants_of_exposure.join(", ")
+        );
     }
     match gs.open_paths.first() {
         Some(p) => format!("the backdoor path {} stays open", g.path_text(p)),

@@ -128,3 +128,22 @@ pub fn command_line() -> String {
         .collect::<Vec<_>>()
         .join(" ")
 }
+
+/// Writes the files of a report bundle under `dir` (created if needed),
+/// each through a temporary file; refuses to write over any input.
+pub fn write_bundle(dir: &Path, files: &[causeway::report::bundle::File], inputs: &[&Path]) -> Result<()> {
+    for f in files {
+        let path = dir.join(&f.path);
+        if let Some(parent) = path.parent() {
+            std::fs::create_dir_all(parent).map_err(|e| {
+                Error::input(format!(
+                    "--out {}: cannot create the folder {}: {e}",
+                    dir.display(),
+                    parent.display()
+                ))
+            })?;
+        }
+        write_atomic(&path, &f.bytes, inputs)?;
+    }
+    Ok(())
+}

@@ -3,7 +3,7 @@
 //! the analysis and stamping the output.
 
 use super::common::load_graph;
-use causeway::analysis::{self, Analysis, Options};
+use causeway::analysis::Options;
 use causeway::data::{Dataset, ReadOptions, Shape};
 use causeway::estimate::{Estimand, Scale};
 use causeway::graph::Graph;
@@ -85,18 +85,27 @@ impl EstimateFlags {
     /// Checks the flags and turns them into analysis options.
     pub fn options(&self) -> Result<Options> {
         if !(self.level > 0.0 && self.level < 1.0) {
-            return Err(Error::input(format!("--level {}: expected a number strictly between 0 and 1", self.level)));
+            return Err(Error::input(format!(
+                "--level {}: expected a number strictly between 0 and 1",
+                self.level
+            )));
         }
         if let Some(t) = self.trim
             && !(0.0..0.5).contains(&t)
         {
-            return Err(Error::input(format!("--trim {t}: expected a number at least 0 and below 0.5")));
+            return Err(Error::input(format!(
+                "--trim {t}: expected a number at least 0 and below 0.5"
+            )));
         }
         let shape = match self.shape.as_str() {
             "linear" => Shape::Linear,
             "quadratic" => Shape::Quadratic,
             "spline" => Shape::Spline,
-            s => return Err(Error::input(format!("--shape '{s}': expected linear, quadratic or spline"))),
+            s => {
+                return Err(Error::input(format!(
+                    "--shape '{s}': expected linear, quadratic or spline"
+                )));
+            }
         };
         let contrast = match &self.contrast {
             None => None,
@@ -104,7 +113,11 @@ impl EstimateFlags {
                 let v: Vec<f64> = split_list(c).iter().filter_map(|x| x.parse().ok()).collect();
                 match v.as_slice() {
                     [a, b] if a.is_finite() && b.is_finite() && a != b => Some((*a, *b)),
-                    _ => return Err(Error::input(format!("--contrast '{c}': expected two different numbers, A,B"))),
+                    _ => {
+                        return Err(Error::input(format!(
+                            "--contrast '{c}': expected two different numbers, A,B"
+                        )));
+                    }
                 }
             }
         };
@@ -128,8 +141,12 @@ impl EstimateFlags {
             level: self.level,
             contrast,
             bootstrap: self.bootstrap,
-            interval: IntervalKind::parse(&self.interval)
-                .map_err(|_| Error::input(format!("--interval '{}': expected percentile, bca or normal", self.interval)))?,
+            interval: IntervalKind::parse(&self.interval).map_err(|_| {
+                Error::input(format!(
+                    "--interval '{}': expected percentile, bca or normal",
+                    self.interval
+                ))
+            })?,
             seed: self.seed,
             threads: self.threads,
             progress: !self.quiet,
@@ -138,7 +155,14 @@ impl EstimateFlags {
 
     /// The plan under one graph, given the data's column names.
     pub fn plan(&self, graph: Graph, columns: &[String], data: &str) -> Result<Plan> {
-        let roles = Roles::resolve(graph, Some(columns), Some(data), &list(&self.latent), &self.exposure, &self.outcome)?;
+        let roles = Roles::resolve(
+            graph,
+            Some(columns),
+            Some(data),
+            &list(&self.latent),
+            &self.exposure,
+            &self.outcome,
+        )?;
         Plan::new(roles, &AdjustChoice::parse(&self.adjust), self.force_adjust)
     }
 }
@@ -234,9 +258,4 @@ pub fn stamp(seed: u64, files: Vec<FileStamp>) -> Stamp {
 /// A graph with its parse warnings printed.
 pub fn graph(path: &Path, quiet: bool) -> Result<Graph> {
     load_graph(path, quiet)
-}
-
-/// Plans and runs one analysis.
-pub fn analyse(plan: &Plan, data: &Dataset, opts: &Options) -> Result<Analysis> {
-    analysis::run(plan, data, opts)
 }

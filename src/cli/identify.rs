@@ -58,7 +58,14 @@ pub fn run(a: Args) -> Result<i32> {
     };
     let shown = a.data.as_ref().map(|d| d.display().to_string());
     let latent = a.latent.as_deref().map(split_list).unwrap_or_default();
-    let roles = Roles::resolve(g, columns.as_deref(), shown.as_deref(), &latent, &a.exposure, &a.outcome)?;
+    let roles = Roles::resolve(
+        g,
+        columns.as_deref(),
+        shown.as_deref(),
+        &latent,
+        &a.exposure,
+        &a.outcome,
+    )?;
     let given = match a.adjust.as_deref() {
         Some(list) => Some(roles.adjust_nodes(&split_list(list))?),
         None => None,

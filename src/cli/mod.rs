@@ -8,6 +8,8 @@ use std::io::Write;
 
 mod common;
 mod draw;
+mod estimate;
+mod flags;
 mod identify;
 mod sensitivity;
 mod simulate;
@@ -30,6 +32,7 @@ struct Cli {
 #[derive(Subcommand)]
 enum Command {
     Draw(draw::Args),
+    Estimate(estimate::Args),
     Simulate(simulate::Args),
     Sensitivity(sensitivity::Args),
     Identify(identify::Args),
@@ -53,6 +56,7 @@ pub fn main() -> i32 {
     }));
     let outcome = std::panic::catch_unwind(move || match cli.command {
         Command::Draw(a) => draw::run(a),
+        Command::Estimate(a) => estimate::run(a),
         Command::Simulate(a) => simulate::run(a),
         Command::Sensitivity(a) => sensitivity::run(a),
         Command::Identify(a) => identify::run(a),

@@ -5,10 +5,9 @@ use super::common::{split_list, write_atomic};
 use causeway::report::sensitivity_text::{
     CAUTION, adjusted_section, evalue_section, robustness_section, wrap,
 };
-use causeway::report::tipping_figure::{self, R2Panel, Reference, ReferenceKind, RrPanel};
+use causeway::report::tipping_figure::{self, Reference, ReferenceKind};
 use causeway::sensitivity::SensitivityBlock;
 use causeway::sensitivity::evalue::{self, EValue};
-use causeway::sensitivity::frontier::{r2_axis_max, r2_frontiers, rr_frontiers};
 use causeway::sensitivity::robustness::{Adjusted, Coefficient, RobustnessValue, adjust, robustness_value};
 use causeway::{Error, Result};
 use serde::Serialize;
@@ -296,36 +295,19 @@ fn text(ev: Option<&EValue>, reg: Option<&Regression>) -> String {
 }
 
 fn figure(ev: Option<&EValue>, reg: Option<&Regression>) -> Result<String> {
-    const POINTS: usize = 240;
-    let rr = match ev {
-        Some(e) => Some(RrPanel {
-            frontiers: rr_frontiers(e, &[], POINTS)?,
-            references: Vec::new(),
-        }),
-        None => None,
-    };
-    let r2 = match reg {
-        Some(r) => {
-            let refs: Vec<Reference> = r
-                .adjusted
-                .iter()
-                .flatten()
-                .map(|a| Reference {
-                    label: format!("{:.0}%, {:.0}%", 100.0 * a.r2_exposure, 100.0 * a.r2_outcome),
-                    x: a.r2_exposure,
-                    y: a.r2_outcome,
-                    kind: ReferenceKind::Hypothesised,
-                })
-                .collect();
-            let pts: Vec<(f64, f64)> = refs.iter().map(|p| (p.x, p.y)).collect();
-            let max = r2_axis_max(r.rv.rv, &pts);
-            Some(R2Panel {
-                frontiers: r2_frontiers(&r.coef, r.rv.q, r.rv.alpha, max, POINTS)?,
-                robustness: r.rv.clone(),
-                references: refs,
+    let r2 = reg.map(|r| {
+        let refs: Vec<Reference> = r
+            .adjusted
+            .iter()
+            .flatten()
+            .map(|a| Reference {
+                label: format!("{:.0}%, {:.0}%", 100.0 * a.r2_exposure, 100.0 * a.r2_outcome),
+                x: a.r2_exposure,
+                y: a.r2_outcome,
+                kind: ReferenceKind::Hypothesised,
             })
-        }
-        None => None,
-    };
-    tipping_figure::svg(rr.as_ref(), r2.as_ref())
+            .collect();
+        (&r.coef, &r.rv, refs)
+    });
+    tipping_figure::figure(ev, r2)
 }

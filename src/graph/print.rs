@@ -53,7 +53,6 @@ impl Graph {
         out
     }
 
-
     /// The graph as graph-file text: attributes and lone nodes in declaration
     /// order, then edges sorted by name, so equal graphs print the same.
     /// Latent nodes made by `a <-> b` are written back as `a <-> b`.

@@ -18,7 +18,20 @@ pub fn num(v: f64) -> String {
         return format!("{v:.1}");
     }
     let s = sig(v, 4);
-    if s.contains('.') || v == 0.0 { s } else { format!("{v:.2}") }
+    if s.contains('.') || v == 0.0 {
+        s
+    } else {
+        format!("{v:.2}")
+    }
+}
+
+/// A data value as written: whole numbers without decimals.
+pub fn value(v: f64) -> String {
+    if v.fract() == 0.0 && v.abs() < 1e15 {
+        format!("{v:.0}")
+    } else {
+        format!("{v}")
+    }
 }
 
 /// `[lo, hi]` as "lo to hi".
@@ -28,15 +41,25 @@ pub fn interval(ci: [f64; 2]) -> String {
 
 /// A set as `{a, b}`; "none" for the empty set.
 pub fn set_text(set: &[String]) -> String {
-    if set.is_empty() { "{} (none needed)".into() } else { format!("{{{}}}", set.join(", ")) }
+    if set.is_empty() {
+        "{} (none needed)".into()
+    } else {
+        format!("{{{}}}", set.join(", "))
+    }
 }
 
 /// The strategy and set in a few words.
 pub fn strategy_text(a: &Analysis) -> String {
     let id = &a.identification;
     match id.strategy {
-        Strategy::Backdoor => format!("backdoor, adjusting for {}", set_text(id.adjustment_set.as_deref().unwrap_or(&[]))),
-        Strategy::Frontdoor => format!("front-door through {}", set_text(id.frontdoor_set.as_deref().unwrap_or(&[]))),
+        Strategy::Backdoor => format!(
+            "backdoor, adjusting for {}",
+            set_text(id.adjustment_set.as_deref().unwrap_or(&[]))
+        ),
+        Strategy::Frontdoor => format!(
+            "front-door through {}",
+            set_text(id.frontdoor_set.as_deref().unwrap_or(&[]))
+        ),
         Strategy::None => "not identified".into(),
     }
 }
@@ -79,7 +102,15 @@ pub fn estimates_table(a: &Analysis) -> Table {
     let ci_head = format!("{:.0}% interval", 100.0 * level);
     let mut t = Table::new(
         &format!("Effect of {} on {}", a.exposure, a.outcome),
-        &["method", "estimand", "scale", "estimate", "std. error", &ci_head, "interval from"],
+        &[
+            "method",
+            "estimand",
+            "scale",
+            "estimate",
+            "std. error",
+            &ci_head,
+            "interval from",
+        ],
     )
     .align(1, Align::Left)
     .align(2, Align::Left)
@@ -96,7 +127,11 @@ pub fn estimates_table(a: &Analysis) -> Table {
             ci_label(&e.ci_method).into(),
         ]);
         if let Some(b) = &it.bootstrap {
-            let failed = if b.failed > 0 { format!(", {} failed", b.failed) } else { String::new() };
+            let failed = if b.failed > 0 {
+                format!(", {} failed", b.failed)
+            } else {
+                String::new()
+            };
             t.notes.push(format!(
                 "{}: {} bootstrap replicates{failed}; sandwich interval {}.",
                 e.method,
@@ -111,10 +146,20 @@ pub fn estimates_table(a: &Analysis) -> Table {
 /// The question in one sentence.
 pub fn question(a: &Analysis) -> String {
     let coding = match a.exposure_coding {
-        Some((lo, hi)) => format!(" ({} = {} against {} = {})", a.exposure, sig(hi, 6), a.exposure, sig(lo, 6)),
+        Some((lo, hi)) => format!(
+            " ({} = {} against {} = {})",
+            a.exposure,
+            value(hi),
+            a.exposure,
+            value(lo)
+        ),
         None => " (a continuous exposure)".into(),
     };
-    let kind = if a.binary_outcome { "binary outcome" } else { "continuous outcome" };
+    let kind = if a.binary_outcome {
+        "binary outcome"
+    } else {
+        "continuous outcome"
+    };
     format!(
         "What is the average effect ({}) of {}{coding} on {} ({kind})?",
         a.estimand, a.exposure, a.outcome
@@ -126,8 +171,16 @@ pub fn sample_text(a: &Analysis) -> String {
     let s = &a.sample;
     let mut t = format!("{} rows read, {} used", s.rows, s.used);
     if s.dropped > 0 {
-        let by: Vec<String> = s.dropped_by_column.iter().map(|(k, v)| format!("{k}: {v}")).collect();
-        t.push_str(&format!(", {} dropped for missing values (missing by column: {})", s.dropped, by.join(", ")));
+        let by: Vec<String> = s
+            .dropped_by_column
+            .iter()
+            .map(|(k, v)| format!("{k}: {v}"))
+            .collect();
+        t.push_str(&format!(
+            ", {} dropped for missing values (missing by column: {})",
+            s.dropped,
+            by.join(", ")
+        ));
     } else {
         t.push_str(", none dropped");
     }
@@ -137,7 +190,9 @@ pub fn sample_text(a: &Analysis) -> String {
 
 /// Diagnostics: propensity ranges, weights and the balance table.
 pub fn diagnostics_blocks(a: &Analysis) -> Vec<Block> {
-    let Some(d) = &a.diagnostics else { return Vec::new() };
+    let Some(d) = &a.diagnostics else {
+        return Vec::new();
+    };
     let p = &d.propensity;
     let w = &d.weights;
     let mut b = vec![Block::Para(format!(
@@ -162,7 +217,12 @@ pub fn diagnostics_blocks(a: &Analysis) -> Vec<Block> {
         sig(w.ess_control, 5)
     );
     if let Some(s) = &w.stabilized {
-        text.push_str(&format!(" Stabilized weights: mean {}, min {}, max {}.", num(s.mean), num(s.min), num(s.max)));
+        text.push_str(&format!(
+            " Stabilized weights: mean {}, min {}, max {}.",
+            num(s.mean),
+            num(s.min),
+            num(s.max)
+        ));
     }
     b.push(Block::Para(text));
     if !d.balance.is_empty() {
@@ -173,7 +233,9 @@ pub fn diagnostics_blocks(a: &Analysis) -> Vec<Block> {
         for r in &d.balance {
             t.row(vec![r.covariate.clone(), num(r.smd_raw), num(r.smd_weighted)]);
         }
-        t.notes.push("Absolute differences below 0.1 are commonly read as adequate balance (common practice).".into());
+        t.notes.push(
+            "Absolute differences below 0.1 are commonly read as adequate balance (common practice).".into(),
+        );
         b.push(Block::Table(t));
     }
     b
@@ -185,8 +247,13 @@ pub fn sensitivity_blocks(a: &Analysis) -> Vec<Block> {
     let mut b = Vec::new();
     if let (Some(e), Some(m)) = (&a.sensitivity.evalue, &a.details.evalue_method) {
         let limit = match e.ci_limit {
-            Some(l) if l <= 1.0 => " The interval already includes the null, so its E-value is 1.".to_string(),
-            Some(l) => format!(" To move the interval to include the null, {} each would suffice.", sig(l, 3)),
+            Some(l) if l <= 1.0 => {
+                " The interval already includes the null, so its E-value is 1.".to_string()
+            }
+            Some(l) => format!(
+                " To move the interval to include the null, {} each would suffice.",
+                sig(l, 3)
+            ),
             None => String::new(),
         };
         b.push(Block::Para(format!(
@@ -217,7 +284,14 @@ pub fn sensitivity_blocks(a: &Analysis) -> Vec<Block> {
     if let Some(t) = &a.details.benchmarks {
         let mut tab = Table::new(
             "Bounds on a confounder k times as strong as an observed covariate",
-            &["covariate", "k", "R² with exposure", "R² with outcome", "adjusted estimate", "adjusted interval"],
+            &[
+                "covariate",
+                "k",
+                "R² with exposure",
+                "R² with outcome",
+                "adjusted estimate",
+                "adjusted interval",
+            ],
         );
         for r in &t.rows {
             tab.row(vec![
@@ -247,25 +321,111 @@ pub fn sensitivity_blocks(a: &Analysis) -> Vec<Block> {
     b
 }
 
-/// Every section of one analysis, in reading order.
-pub fn analysis_blocks(a: &Analysis) -> Vec<Block> {
+/// File names of the figures of one analysis in a report bundle, all
+/// starting with `prefix` (e.g. `figures/`).
+pub fn figure_paths(prefix: &str) -> [String; 3] {
+    [
+        format!("{prefix}graph.svg"),
+        format!("{prefix}balance.svg"),
+        format!("{prefix}tipping-point.svg"),
+    ]
+}
+
+/// A methods paragraph an author can adapt, citing the methods used.
+pub fn methods_paragraph(a: &Analysis) -> String {
+    let id = &a.identification;
+    let mut s = match id.strategy {
+        Strategy::Backdoor => format!(
+            "Under the declared causal graph, the effect of {} on {} was identified by the backdoor criterion              (Pearl 2009, Def. 3.3.1), adjusting for {} ({}).",
+            a.exposure,
+            a.outcome,
+            set_text(id.adjustment_set.as_deref().unwrap_or(&[])),
+            id.reason
+        ),
+        Strategy::Frontdoor => format!(
+            "Under the declared causal graph, no measured set satisfied the backdoor criterion; the effect of {} on {}              was identified by the front-door criterion through {} (Pearl 1995).",
+            a.exposure,
+            a.outcome,
+            set_text(id.frontdoor_set.as_deref().unwrap_or(&[]))
+        ),
+        Strategy::None => "The effect was not identified under the declared graph.".into(),
+    };
+    for it in &a.estimates {
+        let m = it.estimate.method.as_str();
+        s.push(' ');
+        s.push_str(match m {
+            "regression" => "The outcome model was standardized over the sample (the parametric g-formula; Robins 1986), with delta-method standard errors.",
+            "ipw" => "Inverse probability weights with normalized (Hajek) weights used a logistic propensity model; standard errors come from the M-estimation sandwich that accounts for the estimated propensity scores (Lunceford & Davidian 2004).",
+            "ipw-ht" => "Horvitz-Thompson inverse probability weighting used a logistic propensity model, with sandwich standard errors (Lunceford & Davidian 2004).",
+            "aipw" => "The augmented inverse probability weighted (doubly robust) estimator combined both models (Robins, Rotnitzky & Zhao 1994), with influence-function standard errors.",
+            "frontdoor" => "The front-door formula was applied by plug-in, with delta-method standard errors (Pearl 1995).",
+            _ => "",
+        });
+    }
+    if let Some(b) = a.estimates.iter().find_map(|e| e.bootstrap.as_ref()) {
+        s.push_str(&format!(
+            " Intervals are nonparametric bootstrap {} intervals from {} replicates refitting every model (Efron 1987).",
+            b.interval, b.replicates
+        ));
+    }
+    if a.sensitivity.evalue.is_some() {
+        s.push_str(
+            " Sensitivity to unmeasured confounding is summarized by the E-value (VanderWeele & Ding 2017)",
+        );
+        s.push_str(if a.sensitivity.robustness_value.is_some() {
+            " and by robustness values with benchmark bounds (Cinelli & Hazlett 2020)."
+        } else {
+            "."
+        });
+    }
+    s.push_str(" Analyses used causeway.");
+    s
+}
+
+/// Every section of one analysis, in reading order; with `figures` (a file
+/// name prefix) the report's figures are placed beside their sections.
+pub fn analysis_blocks(a: &Analysis, figures: Option<&str>) -> Vec<Block> {
+    let figs = figures.map(figure_paths);
+    let fig = |i: usize, caption: &str| {
+        figs.as_ref().map(|f| Block::Figure {
+            path: f[i].clone(),
+            caption: caption.to_string(),
+        })
+    };
     let mut b = vec![
         Block::Heading("Question".into()),
         Block::Para(question(a)),
         Block::Heading("Identification".into()),
-        Block::Para(format!("Strategy: {}. Chosen because it is {}.", strategy_text(a), a.identification.reason)),
+    ];
+    b.extend(fig(
+        0,
+        "The declared causal graph, with the exposure, outcome, the set used and unobserved nodes marked",
+    ));
+    b.extend([
+        Block::Para(format!(
+            "Strategy: {}. Chosen because it is {}.",
+            strategy_text(a),
+            a.identification.reason
+        )),
         Block::Heading("Sample".into()),
         Block::Para(sample_text(a)),
         Block::Heading("Estimates".into()),
         Block::Table(estimates_table(a)),
-    ];
+    ]);
     let diag = diagnostics_blocks(a);
     if !diag.is_empty() {
         b.push(Block::Heading("Diagnostics".into()));
         b.extend(diag);
+        b.extend(fig(
+            1,
+            "Covariate balance: absolute standardized mean differences before and after weighting",
+        ));
     }
     b.push(Block::Heading("Sensitivity to unmeasured confounding".into()));
     b.extend(sensitivity_blocks(a));
+    if a.sensitivity.evalue.is_some() || a.sensitivity.robustness_value.is_some() {
+        b.extend(fig(2, "Tipping points: confounder strengths that would bring the estimate, or its interval, to the null"));
+    }
     if !a.warnings.is_empty() {
         b.push(Block::Heading("Warnings".into()));
         b.extend(a.warnings.iter().map(|w| Block::Warning(w.clone())));
@@ -273,6 +433,10 @@ pub fn analysis_blocks(a: &Analysis) -> Vec<Block> {
     if !a.notes.is_empty() {
         b.push(Block::Heading("How the estimates were made".into()));
         b.push(Block::List(a.notes.clone()));
+    }
+    if figures.is_some() {
+        b.push(Block::Heading("Methods paragraph (adapt as needed)".into()));
+        b.push(Block::Para(methods_paragraph(a)));
     }
     b
 }

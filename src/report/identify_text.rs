@@ -53,7 +53,6 @@ fn set_text(set: &[String]) -> String {
     }
 }
 
-
 fn paths_block(out: &mut String, g: &Graph, paths: &[Vec<String>], truncated: bool) {
     for p in paths {
         let _ = writeln!(out, "    {}", g.path_text(p));

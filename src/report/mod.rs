@@ -5,6 +5,8 @@
 //! file implementing [`doc::Exporter`]. JSON is the serde form of the
 //! command's result struct.
 
+pub mod balance_figure;
+pub mod bundle;
 pub mod csv;
 pub mod doc;
 pub mod estimate_doc;

@@ -14,8 +14,11 @@
 
 use super::sensitivity_text::{pct, wrap};
 use super::svg::{Shape, Svg, ink, text_width};
-use crate::sensitivity::frontier::{Polyline, R2Frontiers, RrFrontiers, nice_ceiling};
-use crate::sensitivity::robustness::RobustnessValue;
+use crate::sensitivity::evalue::EValue;
+use crate::sensitivity::frontier::{
+    Polyline, R2Frontiers, RrFrontiers, nice_ceiling, r2_axis_max, r2_frontiers, rr_frontiers,
+};
+use crate::sensitivity::robustness::{Coefficient, RobustnessValue};
 use crate::{Error, Result};
 
 /// What a reference point stands for (decides its marker).
@@ -647,4 +650,37 @@ mod tests {
     fn no_panel_is_an_error() {
         assert!(svg(None, None).is_err());
     }
+}
+
+/// Points sampled along each frontier.
+const FRONTIER_POINTS: usize = 240;
+
+/// The tipping-point figure for an E-value and (for a linear-regression
+/// coefficient) its robustness value, with reference points on the
+/// partial-R² panel; frontiers are computed here from the sensitivity
+/// results.
+pub fn figure(
+    ev: Option<&EValue>,
+    r2: Option<(&Coefficient, &RobustnessValue, Vec<Reference>)>,
+) -> Result<String> {
+    let rr = match ev {
+        Some(e) => Some(RrPanel {
+            frontiers: rr_frontiers(e, &[], FRONTIER_POINTS)?,
+            references: Vec::new(),
+        }),
+        None => None,
+    };
+    let r2 = match r2 {
+        Some((coef, rv, refs)) => {
+            let pts: Vec<(f64, f64)> = refs.iter().map(|p| (p.x, p.y)).collect();
+            let max = r2_axis_max(rv.rv, &pts);
+            Some(R2Panel {
+                frontiers: r2_frontiers(coef, rv.q, rv.alpha, max, FRONTIER_POINTS)?,
+                robustness: rv.clone(),
+                references: refs,
+            })
+        }
+        None => None,
+    };
+    svg(rr.as_ref(), r2.as_ref())
 }
