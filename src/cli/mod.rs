@@ -7,6 +7,8 @@ use clap::{Parser, Subcommand};
 use std::io::Write;
 
 mod common;
+mod compare;
+mod demo;
 mod draw;
 mod estimate;
 mod flags;
@@ -31,6 +33,8 @@ struct Cli {
 
 #[derive(Subcommand)]
 enum Command {
+    Compare(compare::Args),
+    Demo(demo::Args),
     Draw(draw::Args),
     Estimate(estimate::Args),
     Simulate(simulate::Args),
@@ -55,6 +59,8 @@ pub fn main() -> i32 {
         eprintln!("causeway: internal error (please report it): {info}");
     }));
     let outcome = std::panic::catch_unwind(move || match cli.command {
+        Command::Compare(a) => compare::run(a),
+        Command::Demo(a) => demo::run(a),
         Command::Draw(a) => draw::run(a),
         Command::Estimate(a) => estimate::run(a),
         Command::Simulate(a) => simulate::run(a),
