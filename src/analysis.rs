@@ -343,10 +343,11 @@ fn sensitivity(
             details,
         ));
     };
-    let inputs = if p.binary_outcome() || p.mediators.len() > 0 {
-        None
-    } else {
+    let linear = !p.binary_outcome() && p.mediators.is_empty();
+    let inputs = if linear {
         estimate::sensitivity_inputs(p)?
+    } else {
+        None
     };
     let ev = match evalue_for(p, methods, first, inputs.as_ref(), opts) {
         Ok(e) => {
@@ -361,7 +362,7 @@ fn sensitivity(
     let rv = match &inputs {
         Some(s) => Some(robustness_for(s, opts, &mut details)?),
         None => {
-            if !p.binary_outcome() && p.mediators.is_empty() {
+            if linear {
                 details
                     .notes
                     .push("no robustness value: the outcome regression could not be formed".into());

@@ -4,7 +4,9 @@
 mod helpers;
 
 mod bootstrap;
+mod cli_compare;
 mod cli_draw;
+mod cli_estimate;
 mod cli_identify;
 mod data_csv;
 mod estimate_cases;

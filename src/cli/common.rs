@@ -115,18 +115,18 @@ impl From<FormatArg> for causeway::report::Format {
     }
 }
 
-/// The full command line, for the reproducibility stamp.
+/// The full command line, for the reproducibility stamp: `causeway`
+/// followed by the arguments, quoted where a shell would need it.
 pub fn command_line() -> String {
-    std::env::args()
-        .map(|a| {
-            if a.is_empty() || a.contains(|c: char| c.is_whitespace() || "'\"$;&|<>()*?".contains(c)) {
-                format!("'{}'", a.replace('\'', "'\\''"))
-            } else {
-                a
-            }
-        })
-        .collect::<Vec<_>>()
-        .join(" ")
+    let mut parts = vec!["causeway".to_string()];
+    parts.extend(std::env::args().skip(1).map(|a| {
+        if a.is_empty() || a.contains(|c: char| c.is_whitespace() || "'\"$;&|<>()*?`\\".contains(c)) {
+            format!("'{}'", a.replace('\'', "'\\''"))
+        } else {
+            a
+        }
+    }));
+    parts.join(" ")
 }
 
 /// Writes the files of a report bundle under `dir` (created if needed),

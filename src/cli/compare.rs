@@ -260,20 +260,17 @@ impl Comparison {
     }
 }
 
-/// Prints a comparison (and writes its bundle) in the requested format.
+/// Prints a comparison laid out as `blocks` (and writes its bundle) in the
+/// requested format.
 pub fn output(
     c: &Comparison,
     title: String,
-    before: Vec<Block>,
-    extra: Vec<Block>,
+    blocks: Vec<Block>,
     format: FormatArg,
     out: Option<&PathBuf>,
     inputs: &[&std::path::Path],
     level: f64,
 ) -> Result<()> {
-    let mut blocks = before;
-    blocks.extend(c.blocks(level));
-    blocks.extend(extra);
     let doc = Doc {
         title,
         blocks,
@@ -313,8 +310,7 @@ pub fn run(a: Args) -> Result<i32> {
     output(
         &c,
         title,
-        Vec::new(),
-        Vec::new(),
+        c.blocks(a.flags.level),
         a.format,
         a.out.as_ref(),
         &paths,

@@ -142,6 +142,9 @@ pub fn run(a: Args) -> Result<i32> {
          days with lower-back pain in the next quarter (pain_days)? The same analysis is run under three graphs."
             .into(),
     )];
-    compare::output(&c, title, before, extra, a.format, a.out.as_ref(), &[], 0.95)?;
+    let mut blocks = before;
+    blocks.extend(c.blocks(0.95));
+    blocks.extend(extra);
+    compare::output(&c, title, blocks, a.format, a.out.as_ref(), &[], 0.95)?;
     Ok(0)
 }

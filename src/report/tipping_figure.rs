@@ -627,31 +627,6 @@ pub fn svg(rr: Option<&RrPanel>, r2: Option<&R2Panel>) -> Result<String> {
     Ok(doc.finish("Tipping-point frontiers for unmeasured confounding"))
 }
 
-#[cfg(test)]
-mod tests {
-    use super::*;
-
-    #[test]
-    fn ticks_are_round_and_span_the_range() {
-        let t = ticks(0.0, 0.5);
-        let want = [0.0, 0.1, 0.2, 0.3, 0.4, 0.5];
-        assert_eq!(t.len(), want.len());
-        assert!(t.iter().zip(want).all(|(a, b)| (a - b).abs() < 1e-12));
-        let t = ticks(1.0, 10.0);
-        assert_eq!(t.first(), Some(&1.0));
-        assert_eq!(t.last(), Some(&10.0));
-        assert!(t.contains(&2.0) && t.contains(&8.0));
-        assert_eq!(fmt_tick(0.25, true), "25%");
-        assert_eq!(fmt_tick(0.025, true), "2.5%");
-        assert_eq!(fmt_tick(2.5, false), "2.5");
-    }
-
-    #[test]
-    fn no_panel_is_an_error() {
-        assert!(svg(None, None).is_err());
-    }
-}
-
 /// Points sampled along each frontier.
 const FRONTIER_POINTS: usize = 240;
 
@@ -683,4 +658,29 @@ pub fn figure(
         None => None,
     };
     svg(rr.as_ref(), r2.as_ref())
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn ticks_are_round_and_span_the_range() {
+        let t = ticks(0.0, 0.5);
+        let want = [0.0, 0.1, 0.2, 0.3, 0.4, 0.5];
+        assert_eq!(t.len(), want.len());
+        assert!(t.iter().zip(want).all(|(a, b)| (a - b).abs() < 1e-12));
+        let t = ticks(1.0, 10.0);
+        assert_eq!(t.first(), Some(&1.0));
+        assert_eq!(t.last(), Some(&10.0));
+        assert!(t.contains(&2.0) && t.contains(&8.0));
+        assert_eq!(fmt_tick(0.25, true), "25%");
+        assert_eq!(fmt_tick(0.025, true), "2.5%");
+        assert_eq!(fmt_tick(2.5, false), "2.5");
+    }
+
+    #[test]
+    fn no_panel_is_an_error() {
+        assert!(svg(None, None).is_err());
+    }
 }
