@@ -2,8 +2,9 @@
 //! summary numbers alone (an estimate reported elsewhere).
 
 use super::common::{split_list, write_atomic};
+use causeway::report::doc::CAUTION;
 use causeway::report::sensitivity_text::{
-    CAUTION, adjusted_section, evalue_section, robustness_section, wrap,
+    LIMITS, adjusted_section, evalue_section, robustness_section, wrap,
 };
 use causeway::report::tipping_figure::{self, Reference, ReferenceKind};
 use causeway::sensitivity::SensitivityBlock;
@@ -290,7 +291,7 @@ fn text(ev: Option<&EValue>, reg: Option<&Regression>) -> String {
             s.push('\n');
         }
     }
-    s.push_str(&wrap(CAUTION, 78, ""));
+    s.push_str(&wrap(&format!("Caution: {LIMITS} {CAUTION}"), 78, ""));
     s
 }
 

@@ -4,7 +4,7 @@
 //! and `demo` share these pieces.
 
 use super::doc::{Align, Block, Table};
-use super::sensitivity_text::{pct, sig};
+use super::sensitivity_text::{LIMITS, pct, sig};
 use crate::analysis::Analysis;
 use crate::identify::Strategy;
 use crate::sensitivity::evalue::EValue;
@@ -313,11 +313,7 @@ pub fn sensitivity_blocks(a: &Analysis) -> Vec<Block> {
     for n in &a.details.notes {
         b.push(Block::Para(format!("Sensitivity: {n}.")));
     }
-    b.push(Block::Para(
-        "These numbers say how strong confounding left out of the graph would have to be to change the conclusion; \
-         they cannot show that there is none."
-            .into(),
-    ));
+    b.push(Block::Para(LIMITS.into()));
     b
 }
 

@@ -4,15 +4,10 @@
 //! own set. Only lays out an [`Identification`]; the graph is used to draw
 //! each path's arrows.
 
+use super::doc::CAUTION;
 use crate::graph::{Graph, quote};
 use crate::identify::{Identification, OPEN_PATH_CAP, SET_CAP, Strategy};
 use std::fmt::Write;
-
-/// The closing caution of the identification report.
-pub const CAUTION: &str = "Caution: these answers are only as valid as the declared graph and the usual \
-assumptions (no unmeasured confounding beyond the graph, positivity, consistency, correctly specified \
-models). They do not replace study design review, subject-matter and clinical judgement, or the ethics \
-and reporting rules that apply locally.";
 
 /// A node name as written in a graph file (quoted when needed).
 fn show(name: &str) -> String {
@@ -109,7 +104,7 @@ pub fn identify_text(id: &Identification, g: &Graph) -> String {
     backdoor(&mut out, id, g, &x);
     frontdoor(&mut out, id, &x, &y);
     given(&mut out, id, g, &x);
-    para(&mut out, "", "", CAUTION);
+    para(&mut out, "", "", &format!("Caution: {CAUTION}"));
     out
 }
 

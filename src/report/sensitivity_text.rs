@@ -7,13 +7,10 @@ use crate::sensitivity::evalue::{EValue, SCALE_HR_RARE, SCALE_OR_RARE, SCALE_RR}
 use crate::sensitivity::robustness::{Adjusted, BenchmarkTable, Coefficient, RobustnessValue};
 use std::fmt::Write;
 
-/// The caution printed with every sensitivity result.
-pub const CAUTION: &str = "Caution: these numbers say how strong confounding left out of the \
-analysis would have to be to change the conclusion; they cannot show that there is none. An \
-estimate is only as valid as its causal graph and the usual assumptions (no unmeasured \
-confounding beyond the graph, positivity, consistency, correctly specified models). This does \
-not replace study design review, subject-matter and clinical judgement, or the ethics and \
-reporting rules that apply locally.";
+/// What a sensitivity analysis can and cannot say; printed before the
+/// general caution ([`super::doc::CAUTION`]).
+pub const LIMITS: &str = "These numbers say how strong confounding left out of the analysis would \
+have to be to change the conclusion; they cannot show that there is none.";
 
 /// `v` with `digits` significant digits, without an exponent for the
 /// magnitudes met in practice.
@@ -40,26 +37,9 @@ pub fn pct(v: f64) -> String {
 }
 
 /// Wraps `text` to lines of at most `width` characters, each starting with
-/// `indent`.
+/// `indent` (the text exporter's wrapping, argument order kept for callers).
 pub fn wrap(text: &str, width: usize, indent: &str) -> String {
-    let mut out = String::new();
-    let mut line = String::from(indent);
-    for word in text.split_whitespace() {
-        if line.len() > indent.len() && line.len() + 1 + word.len() > width {
-            out.push_str(line.trim_end());
-            out.push('\n');
-            line = String::from(indent);
-        }
-        if line.len() > indent.len() {
-            line.push(' ');
-        }
-        line.push_str(word);
-    }
-    if line.len() > indent.len() {
-        out.push_str(&line);
-        out.push('\n');
-    }
-    out
+    super::text::wrap(text, indent, width)
 }
 
 /// The E-value section: the numbers, the conversion used and a reading.
@@ -302,8 +282,8 @@ mod tests {
 
     #[test]
     fn wrap_keeps_lines_short() {
-        let w = wrap(CAUTION, 78, "");
+        let w = wrap(LIMITS, 78, "");
         assert!(w.lines().all(|l| l.len() <= 78));
-        assert!(w.contains("ethics"));
+        assert!(w.contains("none."));
     }
 }
