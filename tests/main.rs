@@ -4,6 +4,7 @@
 mod helpers;
 
 mod bootstrap;
+mod check_ci;
 mod cli_draw;
 mod cli_identify;
 mod data_csv;
