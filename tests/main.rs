@@ -5,6 +5,8 @@ mod helpers;
 
 mod bootstrap;
 mod check_ci;
+mod check_implications;
+mod check_sim;
 mod cli_draw;
 mod cli_identify;
 mod data_csv;

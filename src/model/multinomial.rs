@@ -222,8 +222,7 @@ fn information<R: Rows + ?Sized>(
         });
         info.view_mut((k * p, k * p), (p, p)).copy_from(&c.xtx);
         score.rows_mut(k * p, p).copy_from(&c.xtu);
-        for l in 0..k {
-            let ml = &mu[l];
+        for (l, ml) in mu.iter().enumerate().take(k) {
             let c = accumulate(rows, None, |i, _| (weight(i) * mk[i] * ml[i], 0.0, 0.0, 0.0));
             let block = -c.xtx;
             info.view_mut((k * p, l * p), (p, p)).copy_from(&block);

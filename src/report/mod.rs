@@ -5,6 +5,7 @@
 //! file implementing [`doc::Exporter`]. JSON is the serde form of the
 //! command's result struct.
 
+pub mod check_text;
 pub mod csv;
 pub mod doc;
 pub mod graph_figure;
