@@ -4,6 +4,9 @@
 mod helpers;
 
 mod bootstrap;
+mod check_ci;
+mod check_implications;
+mod check_sim;
 mod cli_compare;
 mod cli_draw;
 mod cli_estimate;

@@ -6,6 +6,7 @@ use causeway::Error;
 use clap::{Parser, Subcommand};
 use std::io::Write;
 
+mod check;
 mod common;
 mod compare;
 mod demo;
@@ -40,6 +41,7 @@ enum Command {
     Simulate(simulate::Args),
     Sensitivity(sensitivity::Args),
     Identify(identify::Args),
+    Check(check::Args),
 }
 
 /// Runs the command line and returns the process exit code.
@@ -66,6 +68,7 @@ pub fn main() -> i32 {
         Command::Simulate(a) => simulate::run(a),
         Command::Sensitivity(a) => sensitivity::run(a),
         Command::Identify(a) => identify::run(a),
+        Command::Check(a) => check::run(a),
     });
     match outcome {
         Ok(Ok(code)) => code,

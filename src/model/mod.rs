@@ -15,16 +15,20 @@
 //!   Models*, 2nd ed., 1989, sec. 4.4) with step-halving, warm starts, and
 //!   detection of complete or quasi-complete separation (Albert & Anderson,
 //!   Biometrika 1984;71:1-10) as a typed [`Separation`].
+//! - [`Multinomial`]: baseline-category logistic regression for a response
+//!   with more than two levels, by the same Newton scheme.
 
 mod chol;
 mod cross;
 mod logistic;
+mod multinomial;
 mod ols;
 mod predict;
 
 pub use chol::Chol;
 pub use cross::{Cross, accumulate};
 pub use logistic::{Logit, LogitOptions, Separation};
+pub use multinomial::Multinomial;
 pub use ols::Ols;
 pub use predict::{expit, linear_predictor, weighted_sum};
 

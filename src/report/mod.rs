@@ -7,6 +7,7 @@
 
 pub mod balance_figure;
 pub mod bundle;
+pub mod check_text;
 pub mod compare_doc;
 pub mod csv;
 pub mod doc;

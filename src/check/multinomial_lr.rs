@@ -1,0 +1,63 @@
+//! The likelihood-ratio test between nested multinomial logistic
+//! regressions, for two categorical variables with more than two levels:
+//! one is regressed (baseline-category logit, [`Multinomial`]) on the
+//! conditioning set's design terms with and without the other's dummies, and
+//! the deviance drop is compared with the chi-square distribution with
+//! `(K - 1) q` degrees of freedom, `K` the response's levels and `q` the
+//! added dummies (Wilks 1938; Agresti, *Categorical Data Analysis*, 3rd ed.,
+//! 2013, sec. 8.1).
+
+use super::pair::{CiTest, Outcome, conditioning_design, extended_design, separation_note};
+use crate::Result;
+use crate::data::{Frame, Kind, Setting};
+use crate::infer::dist::chi_square_sf;
+use crate::model::{LogitOptions, Multinomial};
+use nalgebra::DMatrix;
+
+/// The test's name in output.
+pub const NAME: &str = "likelihood ratio (multinomial logistic)";
+
+/// Tests the categorical frame column `response` for independence of the
+/// categorical column `other` given the columns `given`.
+pub fn multinomial_lr(frame: &Frame, response: usize, other: usize, given: &[usize]) -> Result<Outcome> {
+    let levels = match frame.kind(response) {
+        Kind::Categorical { levels } => levels.len(),
+        _ => 2,
+    };
+    let y: Vec<usize> = frame.col(response).iter().map(|&c| c as usize).collect();
+    let d0 = conditioning_design(frame, given);
+    let d1 = extended_design(frame, given, other);
+    let opts = LogitOptions::default();
+    let m0 = Multinomial::fit(&d0.rows(frame, Setting::Observed), &y, levels, None, None, opts)?;
+    let mut warm = DMatrix::zeros(d1.ncols(), levels - 1);
+    warm.view_mut((0, 0), (d0.ncols(), levels - 1))
+        .copy_from(&m0.coef);
+    let m1 = Multinomial::fit(
+        &d1.rows(frame, Setting::Observed),
+        &y,
+        levels,
+        None,
+        Some(&warm),
+        opts,
+    )?;
+    let df = m1.rank().saturating_sub(m0.rank());
+    if df == 0 {
+        return Ok(Outcome::NotTested(format!(
+            "the dummies of '{}' are collinear with the conditioning set over the {} complete rows",
+            frame.name(other),
+            frame.nrows()
+        )));
+    }
+    let lr = (m0.deviance - m1.deviance).max(0.0);
+    let note = separation_note(frame.name(response), [&m0.separation, &m1.separation]);
+    Ok(Outcome::Tested(CiTest {
+        test: NAME,
+        statistic: lr,
+        p_value: chi_square_sf(lr, df as f64),
+        df: Some(df),
+        df_denominator: None,
+        response: Some(frame.name(response).to_string()),
+        partial_correlation: None,
+        note,
+    }))
+}
