@@ -77,6 +77,40 @@ fn softplus(x: f64) -> f64 {
 
 const EXTREME: f64 = 1e-8;
 
+/// Below this share of X'X's curvature in some direction, the information
+/// counts as singular there (separation). At convergence under separation
+/// the separated rows' weights are below about 1e-13; at a finite MLE the
+/// share is that of the bulk of the rows, rarely below 1e-3 (common practice
+/// of reading a near-singular information as separation, no source).
+const SEPARATION_CURVATURE: f64 = 1e-8;
+
+/// The smallest ratio `d'Hd / d'Gd` over directions `d` in the span of the
+/// columns `g` does not alias (the smallest generalised eigenvalue of the
+/// pair). 0 when `h` is singular there or not finite.
+fn relative_curvature(h: &DMatrix<f64>, g: &DMatrix<f64>) -> f64 {
+    let aliased = Chol::new(g, ALIAS_TOL).aliased();
+    let keep: Vec<usize> = (0..g.nrows()).filter(|j| !aliased.contains(j)).collect();
+    if keep.is_empty() {
+        return 1.0;
+    }
+    let sub = |m: &DMatrix<f64>| DMatrix::from_fn(keep.len(), keep.len(), |i, j| m[(keep[i], keep[j])]);
+    let Some(chol) = nalgebra::Cholesky::new(sub(g)) else {
+        return 1.0;
+    };
+    let l = chol.l();
+    let Some(a) = l.solve_lower_triangular(&sub(h)) else {
+        return 0.0;
+    };
+    let Some(m) = l.solve_lower_triangular(&a.transpose()) else {
+        return 0.0;
+    };
+    let m = (&m + m.transpose()) * 0.5;
+    if m.iter().any(|v| !v.is_finite()) {
+        return 0.0;
+    }
+    m.symmetric_eigenvalues().min()
+}
+
 impl Logit {
     /// Fits `y` (0/1) on `rows`, from `warm` (or zeros). Fails with
     /// [`Error::Numerical`] when the iterations do not converge and the data
@@ -131,7 +165,16 @@ impl Logit {
                 let nrows_pos = (0..rows.nrows())
                     .filter(|&i| w.is_none_or(|w| w[i] > 0.0))
                     .count();
-                let separation = (extreme > 0).then_some(Separation {
+                // Fitted probabilities near 0 or 1 alone do not mean
+                // separation: a finite MLE can have them (a strong
+                // predictor, an outlying row). Under separation the weights
+                // mu (1 - mu) vanish along the separating direction, so the
+                // information is singular there relative to X'X.
+                let separated = extreme > 0 && {
+                    let g = accumulate(rows, None, |i, _| (w.map_or(1.0, |w| w[i]), 0.0, 0.0, 0.0));
+                    relative_curvature(&c.xtx, &g.xtx) < SEPARATION_CURVATURE
+                };
+                let separation = separated.then_some(Separation {
                     extreme_rows: extreme,
                     complete: extreme == nrows_pos,
                 });
@@ -223,5 +266,27 @@ mod tests {
         let f = Logit::fit(&design(&x), &y, None, None, LogitOptions::default()).unwrap();
         let s = f.separation.expect("separation");
         assert!(!s.complete && s.extreme_rows == 4, "{s:?}");
+    }
+
+    #[test]
+    fn extreme_fitted_probabilities_without_separation_are_not_separation() {
+        // The classes overlap (x = 0.5 and 1 hold both outcomes), so the
+        // MLE is finite (Albert & Anderson 1984), yet the rows at the ends
+        // lie far enough out to be fitted within 1e-8 of 0 or 1.
+        let x = [
+            -9.0, -8.5, -8.0, 0.0, 0.5, 0.5, 1.0, 1.0, 1.5, 2.0, 9.0, 9.5, 10.0,
+        ];
+        let y = [0.0, 0.0, 0.0, 0.0, 0.0, 1.0, 1.0, 0.0, 1.0, 1.0, 1.0, 1.0, 1.0];
+        let f = Logit::fit(&design(&x), &y, None, None, LogitOptions::default()).unwrap();
+        assert!(f.separation.is_none(), "{:?}", f.separation);
+        let mu = |xi: f64| expit(f.coef[0] + f.coef[1] * xi);
+        assert!(mu(-9.0) < 1e-8 && mu(10.0) > 1.0 - 1e-8, "{:?}", f.coef);
+        // A finite MLE solves the score equations sum (y - mu) x = 0
+        // (closed form; 1e-8 for the Newton tolerance).
+        let (g0, g1) = x.iter().zip(&y).fold((0.0, 0.0), |(a, b), (&xi, &yi)| {
+            (a + yi - mu(xi), b + (yi - mu(xi)) * xi)
+        });
+        assert!(g0.abs() < 1e-8 && g1.abs() < 1e-8, "{g0} {g1}");
+        assert!(f.coef.iter().all(|c| c.abs() < 10.0), "{:?}", f.coef);
     }
 }
