@@ -6,6 +6,7 @@
 //! The result, [`Analysis`], serialises as the body of the `estimate` JSON
 //! of the command-line contract (the stamp is added by the caller).
 
+use crate::check::{self, CheckOptions, Correction};
 use crate::data::{Dataset, Shape};
 use crate::estimate::{
     self, Diagnostics, Estimand, Estimate, Method, Problem, Scale, SensitivityInputs, Spec, Warm,
@@ -50,6 +51,8 @@ pub struct Options {
     pub threads: usize,
     /// Show a progress bar (when stderr is a terminal).
     pub progress: bool,
+    /// Also test the graph's implications against the data (`--check`).
+    pub check: Option<CheckOptions>,
 }
 
 impl Default for Options {
@@ -69,6 +72,7 @@ impl Default for Options {
             seed: 1,
             threads: 0,
             progress: false,
+            check: None,
         }
     }
 }
@@ -151,6 +155,69 @@ pub struct Analysis {
     /// How each method was carried out, in words.
     #[serde(skip)]
     pub notes: Vec<String>,
+    /// The graph's implications tested on the data (with `--check`).
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub check: Option<CheckSummary>,
+}
+
+/// How many of the graph's testable implications the data reject.
+#[derive(Debug, Clone, Serialize)]
+pub struct CheckSummary {
+    /// Level of the tests.
+    pub alpha: f64,
+    /// Multiplicity adjustment.
+    pub correction: Correction,
+    /// Implications tested.
+    pub tested: usize,
+    /// Implications rejected after adjustment.
+    pub rejected: usize,
+    /// The rejected claims, in words.
+    pub rejected_claims: Vec<String>,
+}
+
+impl CheckSummary {
+    /// One sentence for reports.
+    pub fn sentence(&self) -> String {
+        let mut s = format!(
+            "the data reject {} of the graph's {} testable implications (alpha {}, {} adjustment)",
+            self.rejected,
+            self.tested,
+            self.alpha,
+            self.correction.label()
+        );
+        if !self.rejected_claims.is_empty() {
+            s.push_str(&format!(": {}", self.rejected_claims.join("; ")));
+        }
+        s
+    }
+}
+
+/// Tests the graph's implications (see [`crate::check`]) and summarises them.
+pub fn check_summary(plan: &Plan, data: &Dataset, opts: &CheckOptions) -> Result<CheckSummary> {
+    let r = check::run(&plan.roles.graph, data, opts)?;
+    let rejected_claims = r
+        .implications
+        .iter()
+        .filter(|i| i.rejected)
+        .map(|i| {
+            let given = if i.given.is_empty() {
+                "nothing".to_string()
+            } else {
+                i.given.join(", ")
+            };
+            format!(
+                "{} independent of {} given {given} (adjusted p {:.3})",
+                i.a, i.b, i.p_adjusted
+            )
+        })
+        .collect();
+    Ok(CheckSummary {
+        alpha: r.alpha,
+        correction: r.correction,
+        tested: r.tested,
+        rejected: r.rejected,
+        rejected_claims,
+    })
 }
 
 /// The benchmark multipliers of Cinelli & Hazlett (2020), section 6.
@@ -175,8 +242,9 @@ pub fn spec(plan: &Plan, opts: &Options) -> Spec {
     }
 }
 
-/// The columns an analysis under `plan` reads.
-pub fn columns(plan: &Plan) -> Vec<String> {
+/// The columns an analysis under `plan` reads (with `--check`, every
+/// observed node of the graph).
+pub fn columns(plan: &Plan, opts: &Options) -> Vec<String> {
     let g = &plan.roles.graph;
     let mut c = vec![
         g.name(plan.roles.exposure).to_string(),
@@ -184,6 +252,13 @@ pub fn columns(plan: &Plan) -> Vec<String> {
     ];
     c.extend(plan.adjustment_set.iter().flatten().cloned());
     c.extend(plan.frontdoor_set.iter().flatten().cloned());
+    if opts.check.is_some() {
+        for v in g.observed() {
+            if !c.iter().any(|n| n == g.name(v)) {
+                c.push(g.name(v).to_string());
+            }
+        }
+    }
     c
 }
 
@@ -239,6 +314,16 @@ pub fn run(plan: &Plan, data: &Dataset, opts: &Options) -> Result<Analysis> {
         _ => None,
     };
     let (sensitivity, details) = sensitivity(&problem, &methods, &estimates, opts)?;
+    let check = match &opts.check {
+        Some(c) => {
+            let sum = check_summary(plan, data, c)?;
+            if sum.rejected > 0 {
+                warnings.push(format!("graph check: {}", sum.sentence()));
+            }
+            Some(sum)
+        }
+        None => None,
+    };
     Ok(Analysis {
         exposure: problem.spec.exposure.clone(),
         outcome: problem.spec.outcome.clone(),
@@ -258,6 +343,7 @@ pub fn run(plan: &Plan, data: &Dataset, opts: &Options) -> Result<Analysis> {
         exposure_coding: problem.exposure_levels(),
         binary_outcome: problem.binary_outcome(),
         notes,
+        check,
     })
 }
 

@@ -197,3 +197,55 @@ fn bundle_files_are_written_and_well_formed() {
     let tex = std::fs::read_to_string(out.join("table.tex")).unwrap();
     crate::cli_compare::assert_tex_compiles(&tex, dir.path());
 }
+
+// The demo data were simulated with an unmeasured motivation that affects
+// enrolment and pain (demo-data/study.graph); the `main` graph, which omits
+// it, claims enrolled and pain_days are independent given the covariates and
+// standing_hours, and --check must report that the data reject it.
+#[test]
+fn check_flag_reports_rejected_implications() {
+    let r = run_in(
+        &repo(""),
+        &[
+            "estimate",
+            "--graph",
+            "demo-data/main.graph",
+            "--data",
+            "demo-data/study.csv",
+            "--exposure",
+            "enrolled",
+            "--outcome",
+            "pain_days",
+            "--categorical",
+            "role",
+            "--check",
+            "--format",
+            "json",
+            "--quiet",
+        ],
+    );
+    assert_eq!(r.code, 0, "{}", r.stderr);
+    let v: Value = serde_json::from_str(&r.stdout).unwrap();
+    let c = &v["check"];
+    assert_eq!(c["tested"], 11);
+    assert!(c["rejected"].as_u64().unwrap() >= 1);
+    let claims: Vec<&str> = c["rejected_claims"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .filter_map(|x| x.as_str())
+        .collect();
+    assert!(
+        claims
+            .iter()
+            .any(|s| s.starts_with("enrolled independent of pain_days")),
+        "{claims:?}"
+    );
+    assert!(
+        v["warnings"]
+            .as_array()
+            .unwrap()
+            .iter()
+            .any(|w| w.as_str().unwrap().starts_with("graph check:"))
+    );
+}

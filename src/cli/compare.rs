@@ -87,6 +87,7 @@ pub fn compare(inputs: &[GraphInput], data: &DataSource, f: &EstimateFlags) -> R
                 result: RunResult::Stopped {
                     strategy: Strategy::None,
                     reason: plan.not_identified_reason(),
+                    check: None,
                 },
             });
         } else {
@@ -95,6 +96,7 @@ pub fn compare(inputs: &[GraphInput], data: &DataSource, f: &EstimateFlags) -> R
                 result: RunResult::Stopped {
                     strategy: plan.strategy,
                     reason: String::new(),
+                    check: None,
                 },
             });
         }
@@ -102,8 +104,9 @@ pub fn compare(inputs: &[GraphInput], data: &DataSource, f: &EstimateFlags) -> R
     }
     // Read every column any graph needs, once.
     let mut keep: Vec<String> = Vec::new();
-    for p in plans.iter().flatten().filter(|p| p.strategy != Strategy::None) {
-        for c in analysis::columns(p) {
+    let wanted = |p: &&Plan| p.strategy != Strategy::None || opts.check.is_some();
+    for p in plans.iter().flatten().filter(wanted) {
+        for c in analysis::columns(p, &opts) {
             if !keep.contains(&c) {
                 keep.push(c);
             }
@@ -119,6 +122,9 @@ pub fn compare(inputs: &[GraphInput], data: &DataSource, f: &EstimateFlags) -> R
             continue;
         };
         if plan.strategy == Strategy::None {
+            if let (Some(c), RunResult::Stopped { check, .. }) = (&opts.check, &mut run.result) {
+                *check = Some(analysis::check_summary(plan, ds, c)?);
+            }
             continue;
         }
         run.result = match analysis::run(plan, ds, &opts) {
@@ -127,6 +133,7 @@ pub fn compare(inputs: &[GraphInput], data: &DataSource, f: &EstimateFlags) -> R
             Err(e) => RunResult::Stopped {
                 strategy: plan.strategy,
                 reason: format!("the estimate failed: {e}"),
+                check: None,
             },
         };
     }
@@ -161,11 +168,21 @@ impl Comparison {
             let mut v = match &r.result {
                 RunResult::Done(a) => serde_json::to_value(a.as_ref())
                     .map_err(|e| Error::Numerical(format!("cannot write the JSON: {e}")))?,
-                RunResult::Stopped { strategy, reason } => json!({
-                    "identification": {"strategy": strategy, "adjustment_set": null, "frontdoor_set": null},
-                    "estimates": [],
-                    "reason": reason,
-                }),
+                RunResult::Stopped {
+                    strategy,
+                    reason,
+                    check,
+                } => {
+                    let mut v = json!({
+                        "identification": {"strategy": strategy, "adjustment_set": null, "frontdoor_set": null},
+                        "estimates": [],
+                        "reason": reason,
+                    });
+                    if let Some(c) = check {
+                        v["check"] = json!(c);
+                    }
+                    v
+                }
             };
             if let Value::Object(m) = &mut v {
                 m.insert("graph".into(), json!(r.graph));

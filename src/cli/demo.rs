@@ -55,6 +55,9 @@ pub struct Args {
     /// Worker threads for the bootstrap (0: all cores).
     #[arg(long, default_value_t = 0, value_name = "N")]
     threads: usize,
+    /// Also test each graph's implications against the data.
+    #[arg(long)]
+    check: bool,
     /// Print no progress bar and no warnings on stderr.
     #[arg(long)]
     quiet: bool,
@@ -80,6 +83,8 @@ fn flags(a: &Args) -> EstimateFlags {
         latent: None,
         seed: a.seed,
         threads: a.threads,
+        check: a.check,
+        alpha: 0.05,
         quiet: a.quiet,
     }
 }

@@ -73,7 +73,7 @@ pub fn run(a: Args) -> Result<i32> {
     if plan.strategy == causeway::identify::Strategy::None {
         return Err(causeway::Error::NotIdentified(plan.not_identified_reason()));
     }
-    let dataset = data.load(analysis::columns(&plan))?;
+    let dataset = data.load(analysis::columns(&plan, &opts))?;
     let result = analysis::run(&plan, &dataset, &opts)?;
     let stamp = flags::stamp(a.flags.seed, vec![flags::file_stamp(&a.graph)?, data.stamp()?]);
     let value = json(&stamp, &result, result.sample.rows)?;

@@ -4,6 +4,7 @@
 
 use super::common::load_graph;
 use causeway::analysis::Options;
+use causeway::check::CheckOptions;
 use causeway::data::{Dataset, ReadOptions, Shape};
 use causeway::estimate::{Estimand, Scale};
 use causeway::graph::Graph;
@@ -72,6 +73,13 @@ pub struct EstimateFlags {
     /// Worker threads for the bootstrap (0: all cores). Results do not depend on it.
     #[arg(long, default_value_t = 0, value_name = "N")]
     pub threads: usize,
+    /// Also test the graph's implications against the data and report how
+    /// many the data reject.
+    #[arg(long)]
+    pub check: bool,
+    /// Level of the implication tests of --check, in (0, 1).
+    #[arg(long, default_value_t = 0.05, value_name = "ALPHA")]
+    pub alpha: f64,
     /// Print no progress bar and no warnings on stderr.
     #[arg(long)]
     pub quiet: bool,
@@ -88,6 +96,12 @@ impl EstimateFlags {
             return Err(Error::input(format!(
                 "--level {}: expected a number strictly between 0 and 1",
                 self.level
+            )));
+        }
+        if !(self.alpha > 0.0 && self.alpha < 1.0) {
+            return Err(Error::input(format!(
+                "--alpha {}: expected a number strictly between 0 and 1",
+                self.alpha
             )));
         }
         if let Some(t) = self.trim
@@ -150,6 +164,12 @@ impl EstimateFlags {
             seed: self.seed,
             threads: self.threads,
             progress: !self.quiet,
+            check: self.check.then(|| CheckOptions {
+                alpha: self.alpha,
+                categorical: list(&self.categorical),
+                latent: list(&self.latent),
+                ..CheckOptions::default()
+            }),
         })
     }
 

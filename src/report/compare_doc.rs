@@ -5,7 +5,7 @@
 
 use super::doc::{Align, Block, Table};
 use super::estimate_doc::{evalue_cell, interval, num, set_text};
-use crate::analysis::Analysis;
+use crate::analysis::{Analysis, CheckSummary};
 use crate::graph::GraphDiff;
 use crate::identify::Strategy;
 use serde::Serialize;
@@ -21,6 +21,8 @@ pub enum RunResult {
         strategy: Strategy,
         /// The reason, in words.
         reason: String,
+        /// The graph's implications tested on the data (with `--check`).
+        check: Option<CheckSummary>,
     },
 }
 
@@ -108,7 +110,7 @@ pub fn comparison_table(runs: &[Run], level: f64) -> Table {
                     ]);
                 }
             }
-            RunResult::Stopped { strategy, reason } => {
+            RunResult::Stopped { strategy, reason, .. } => {
                 let s = if *strategy == Strategy::None {
                     "none"
                 } else {
@@ -125,6 +127,15 @@ pub fn comparison_table(runs: &[Run], level: f64) -> Table {
                 ]);
                 t.notes.push(format!("{}: {reason}.", r.graph));
             }
+        }
+    }
+    for r in runs {
+        let check = match &r.result {
+            RunResult::Done(a) => a.check.as_ref(),
+            RunResult::Stopped { check, .. } => check.as_ref(),
+        };
+        if let Some(c) = check {
+            t.notes.push(format!("{}: {}.", r.graph, c.sentence()));
         }
     }
     t.notes

@@ -422,6 +422,15 @@ pub fn analysis_blocks(a: &Analysis, figures: Option<&str>) -> Vec<Block> {
     if a.sensitivity.evalue.is_some() || a.sensitivity.robustness_value.is_some() {
         b.extend(fig(2, "Tipping points: confounder strengths that would bring the estimate, or its interval, to the null"));
     }
+    if let Some(c) = &a.check {
+        b.push(Block::Heading("Graph check".into()));
+        let mut p = c.sentence();
+        p[..1].make_ascii_uppercase();
+        b.push(Block::Para(format!(
+            "{p}. A rejected implication means the data disagree with the graph about that pair; revisit the graph \
+             before trusting the estimate (`causeway check` lists every claim)."
+        )));
+    }
     if !a.warnings.is_empty() {
         b.push(Block::Heading("Warnings".into()));
         b.extend(a.warnings.iter().map(|w| Block::Warning(w.clone())));
