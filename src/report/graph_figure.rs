@@ -76,98 +76,101 @@ fn depths(g: &Graph, from: Option<Node>) -> Vec<Option<usize>> {
 /// Grid positions (column, row) of the drawn nodes.
 fn layout(g: &Graph, m: &Marks) -> BTreeMap<Node, (f64, f64)> {
     let nodes = drawn(g);
-    let mut col: BTreeMap<Node, f64> = BTreeMap::new();
-    let mut band = vec![false; g.len()];
-    let mut above = vec![false; g.len()];
-    if let (Some(x), Some(y)) = (m.exposure, m.outcome) {
-        let from_x = depths(g, Some(x));
-        let desc_x = g.descendants(&[x]);
-        let anc_y = g.ancestors(&[y]);
-        let anc_xy = g.ancestors(&[x, y]);
-        let dy = from_x[y].unwrap_or(1).max(1);
-        for &v in &nodes {
-            if v == x || v == y || (desc_x[v] && anc_y[v]) {
-                band[v] = true;
-                col.insert(
-                    v,
-                    if v == y {
-                        dy as f64
-                    } else {
-                        from_x[v].unwrap_or(0) as f64
-                    },
-                );
-            }
-            above[v] = anc_xy[v];
-        }
-        if !band[y] {
-            col.insert(y, 2.0);
-            band[y] = true;
-        }
-        // Off-band nodes: mean column of placed neighbours, a few sweeps.
-        let root_depth = depths(g, None);
-        let neighbours = |v: Node| -> Vec<Node> {
-            let mut n: Vec<Node> = g.parents(v).iter().chain(g.children(v)).copied().collect();
-            for &u in g.parents(v) {
-                if let Some((a, b)) = g.bidirected_pair(u) {
-                    n.push(if a == v { b } else { a });
-                }
-            }
-            n
-        };
-        for sweep in 0..4 {
-            for &v in &nodes {
-                if band[v] {
-                    continue;
-                }
-                let cs: Vec<f64> = neighbours(v).iter().filter_map(|u| col.get(u).copied()).collect();
-                let c = if cs.is_empty() {
-                    if sweep < 3 {
-                        continue;
-                    }
-                    root_depth[v].unwrap_or(0) as f64
-                } else {
-                    cs.iter().sum::<f64>() / cs.len() as f64
-                };
-                col.insert(v, (c * 2.0).round() / 2.0);
-            }
-        }
-    } else {
-        let d = depths(g, None);
-        for &v in &nodes {
-            col.insert(v, d[v].unwrap_or(0) as f64);
-            band[v] = true;
-        }
-    }
-    // Rows: stack nodes that share a column.
-    let mut by_col: BTreeMap<i64, Vec<Node>> = BTreeMap::new();
-    for (&v, &c) in &col {
-        by_col.entry((c * 2.0) as i64).or_default().push(v);
-    }
+    let root_depth = depths(g, None);
     let mut pos = BTreeMap::new();
-    let centred = m.exposure.is_none() || m.outcome.is_none();
-    for (k, vs) in by_col {
-        let c = k as f64 / 2.0;
-        if centred {
+    let (Some(x), Some(y)) = (m.exposure, m.outcome) else {
+        // Columns by depth from the roots; nodes sharing a column are stacked.
+        let mut by_col: BTreeMap<usize, Vec<Node>> = BTreeMap::new();
+        for &v in &nodes {
+            by_col.entry(root_depth[v].unwrap_or(0)).or_default().push(v);
+        }
+        for (c, vs) in by_col {
             let n = vs.len() as f64;
             for (i, &v) in vs.iter().enumerate() {
-                pos.insert(v, (c, i as f64 - (n - 1.0) / 2.0));
+                pos.insert(v, (c as f64, i as f64 - (n - 1.0) / 2.0));
             }
-            continue;
         }
-        let (mut up, mut down) = (0.0, 0.0);
-        let mut mid_used = false;
-        for &v in &vs {
-            let row = if band[v] && !mid_used {
-                mid_used = true;
+        return pos;
+    };
+    // The middle band: exposure, outcome and the nodes on directed paths
+    // between them, by their longest distance from the exposure.
+    let from_x = depths(g, Some(x));
+    let desc_x = g.descendants(&[x]);
+    let anc_y = g.ancestors(&[y]);
+    let anc_xy = g.ancestors(&[x, y]);
+    let dy = from_x[y].unwrap_or(2).max(1) as f64;
+    let mut band_cols: BTreeMap<usize, Vec<Node>> = BTreeMap::new();
+    for &v in &nodes {
+        if v == y {
+            pos.insert(v, (dy, 0.0));
+        } else if v == x || (desc_x[v] && anc_y[v]) {
+            band_cols.entry(from_x[v].unwrap_or(0)).or_default().push(v);
+        }
+    }
+    for (c, vs) in band_cols {
+        for (i, &v) in vs.iter().enumerate() {
+            // Parallel mediators at the same distance alternate below and above.
+            let row = if i == 0 {
                 0.0
-            } else if above[v] || band[v] {
-                up -= 1.0;
-                up
             } else {
-                down += 1.0;
-                down
+                ((i + 1) / 2) as f64 * if i % 2 == 1 { 1.0 } else { -1.0 }
             };
-            pos.insert(v, (c, row));
+            pos.insert(v, (c as f64, row * 0.9));
+        }
+    }
+    let band_rows_below = pos.values().map(|p| p.1).fold(0.0, f64::max);
+    let band_rows_above = pos.values().map(|p| -p.1).fold(0.0, f64::max);
+    // Everything else in rows by depth: ancestors of the exposure or the
+    // outcome above the band (the deepest nearest to it), the rest below;
+    // each row spread across the band's width, ordered by the mean column
+    // of the neighbours already placed.
+    let off: Vec<Node> = nodes.iter().copied().filter(|v| !pos.contains_key(v)).collect();
+    let max_depth = off.iter().filter_map(|&v| root_depth[v]).max().unwrap_or(0);
+    let mut rows: BTreeMap<i64, Vec<Node>> = BTreeMap::new();
+    for &v in &off {
+        let d = root_depth[v].unwrap_or(0) as i64;
+        let key = if anc_xy[v] {
+            -(1 + max_depth as i64 - d)
+        } else {
+            1 + d
+        };
+        rows.entry(key).or_default().push(v);
+    }
+    let keys: Vec<i64> = rows.keys().copied().collect();
+    let order: Vec<i64> = keys
+        .iter()
+        .rev()
+        .filter(|k| **k < 0)
+        .chain(keys.iter().filter(|k| **k > 0))
+        .copied()
+        .collect();
+    for key in order {
+        let mut vs = rows[&key].clone();
+        let centre = |v: Node| -> f64 {
+            let placed: Vec<f64> = g
+                .parents(v)
+                .iter()
+                .chain(g.children(v))
+                .filter_map(|u| pos.get(u).map(|p| p.0))
+                .collect();
+            if placed.is_empty() {
+                dy / 2.0
+            } else {
+                placed.iter().sum::<f64>() / placed.len() as f64
+            }
+        };
+        let mut keyed: Vec<(f64, Node)> = vs.iter().map(|&v| (centre(v), v)).collect();
+        keyed.sort_by(|a, b| a.0.total_cmp(&b.0).then(g.name(a.1).cmp(g.name(b.1))));
+        vs = keyed.into_iter().map(|p| p.1).collect();
+        let k = vs.len() as f64;
+        let step = (dy / k.max(1.0)).max(1.0);
+        let row = if key < 0 {
+            key as f64 - band_rows_above
+        } else {
+            key as f64 + band_rows_below
+        };
+        for (i, &v) in vs.iter().enumerate() {
+            pos.insert(v, (dy / 2.0 + (i as f64 - (k - 1.0) / 2.0) * step, row));
         }
     }
     pos
