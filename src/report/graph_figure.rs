@@ -113,7 +113,7 @@ fn layout(g: &Graph, m: &Marks) -> BTreeMap<Node, (f64, f64)> {
             let row = if i == 0 {
                 0.0
             } else {
-                ((i + 1) / 2) as f64 * if i % 2 == 1 { 1.0 } else { -1.0 }
+                i.div_ceil(2) as f64 * if i % 2 == 1 { 1.0 } else { -1.0 }
             };
             pos.insert(v, (c as f64, row * 0.9));
         }
