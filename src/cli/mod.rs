@@ -34,14 +34,14 @@ struct Cli {
 
 #[derive(Subcommand)]
 enum Command {
-    Compare(compare::Args),
-    Demo(demo::Args),
-    Draw(draw::Args),
-    Estimate(estimate::Args),
-    Simulate(simulate::Args),
-    Sensitivity(sensitivity::Args),
     Identify(identify::Args),
+    Estimate(estimate::Args),
+    Compare(compare::Args),
     Check(check::Args),
+    Sensitivity(sensitivity::Args),
+    Simulate(simulate::Args),
+    Draw(draw::Args),
+    Demo(demo::Args),
 }
 
 /// Runs the command line and returns the process exit code.
