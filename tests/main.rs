@@ -12,6 +12,7 @@ mod cli_draw;
 mod cli_estimate;
 mod cli_identify;
 mod data_csv;
+mod estimate_bootstrap;
 mod estimate_cases;
 mod estimate_frontdoor;
 mod estimate_nhefs;
