@@ -6,6 +6,7 @@
 //! 60 nodes with 100,000 rows. The baseline is a plain parse of the same CSV
 //! (`Dataset::open`). Each timing is the median of three runs.
 //! `cargo bench --bench check -- NODES ROWS` times one size only.
+//! `cargo bench --bench check -- NODES ROWS` times one size only.
 
 use causeway::check::{CheckOptions, run};
 use causeway::data::{Dataset, ReadOptions};
@@ -92,13 +93,19 @@ fn main() {
         "{:>5} {:>8} {:>7} {:>6} {:>9} {:>10} {:>10} {:>7}",
         "nodes", "rows", "claims", "tested", "parse", "check", "total", "ratio"
     );
-    for (n, rows) in [
-        (30, 25_000),
-        (30, 50_000),
-        (30, 100_000),
-        (15, 100_000),
-        (60, 100_000),
-    ] {
+    // `cargo bench --bench check -- NODES ROWS` times one size only.
+    let args: Vec<usize> = std::env::args().skip(1).filter_map(|a| a.parse().ok()).collect();
+    let sizes = match args[..] {
+        [n, rows] => vec![(n, rows)],
+        _ => vec![
+            (30, 25_000),
+            (30, 50_000),
+            (30, 100_000),
+            (15, 100_000),
+            (60, 100_000),
+        ],
+    };
+    for (n, rows) in sizes {
         let text = graph_text(n, 7 + n as u64);
         let g = parse(&text, "bench.graph").expect("graph parses").graph;
         let sim = simulate(&g, rows, 11).expect("simulation");
