@@ -142,7 +142,7 @@ fn other_formats_render() {
     let (md, _d) = check(&["--format", "markdown"]);
     assert_eq!(md.code, 0, "{}", md.stderr);
     assert!(
-        md.stdout.contains("| z1, y |") && md.stdout.contains("REJECTED"),
+        md.stdout.contains("| z1, y | Fisher z |") && md.stdout.contains("REJECTED"),
         "{}",
         md.stdout
     );
@@ -150,7 +150,7 @@ fn other_formats_render() {
     assert_eq!(csv.code, 0);
     assert!(
         csv.stdout
-            .contains("independent,given,test,n,statistic,p,adjusted p,verdict")
+            .contains("independent,test,n,statistic,p,adjusted p,verdict,given")
     );
     let (tex, _d) = check(&["--format", "latex"]);
     assert_eq!(tex.code, 0);

@@ -1,6 +1,6 @@
-//! The `check` result laid out as a [`Doc`]: a verdict line, the claims
-//! sorted by adjusted p-value with the rejected ones marked, the pairs the
-//! data cannot test, warnings, and how to read the result. Only lays out a
+//! The `check` result laid out as a [`Doc`]: the claims sorted by adjusted
+//! p-value with the rejected ones marked, a verdict line, the pairs the data
+//! cannot test, warnings, and how to read the result. Only lays out a
 //! [`CheckReport`]; the statistics are computed in [`crate::check`].
 
 use super::doc::{Align, Block, Doc, Table};
@@ -78,26 +78,23 @@ pub fn report_doc(r: &CheckReport) -> Doc {
         r.rows,
         r.correction.label()
     )));
-    blocks.push(Block::Heading("Verdict".into()));
-    blocks.push(Block::Para(verdict(r)));
-
     if !r.implications.is_empty() {
         blocks.push(Block::Heading("Claims, by adjusted p-value".into()));
         let mut t = Table::new(
             "",
             &[
                 "independent",
-                "given",
                 "test",
                 "n",
                 "statistic",
                 "p",
                 "adjusted p",
                 "verdict",
+                "given",
             ],
         )
         .align(1, Align::Left)
-        .align(2, Align::Left)
+        .align(6, Align::Left)
         .align(7, Align::Left);
         let mut order: Vec<&TestedImplication> = r.implications.iter().collect();
         order.sort_by(|a, b| {
@@ -113,18 +110,18 @@ pub fn report_doc(r: &CheckReport) -> Doc {
             };
             t.row(vec![
                 format!("{}, {}", quote(&i.a), quote(&i.b)),
-                given,
                 short_test(&i.test).to_string(),
                 i.n.to_string(),
                 statistic_text(i),
                 p_text(i.p_value),
                 p_text(i.p_adjusted),
                 if i.rejected { "REJECTED" } else { "not rejected" }.to_string(),
+                given,
             ]);
         }
         t.notes.push(format!(
             "REJECTED: adjusted p-value at most alpha = {}. n: rows with a value for every \
-             variable of the claim.",
+             variable of the claim. given: the set the two variables are independent given.",
             r.alpha
         ));
         t.notes.push(
@@ -153,6 +150,9 @@ pub fn report_doc(r: &CheckReport) -> Doc {
             )));
         }
     }
+
+    blocks.push(Block::Heading("Verdict".into()));
+    blocks.push(Block::Para(verdict(r)));
 
     if !r.untestable.is_empty() || !r.not_tested.is_empty() {
         blocks.push(Block::Heading("Pairs not tested".into()));
