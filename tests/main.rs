@@ -7,6 +7,7 @@ mod bootstrap;
 mod check_ci;
 mod check_implications;
 mod check_sim;
+mod cli_check;
 mod cli_compare;
 mod cli_draw;
 mod cli_estimate;

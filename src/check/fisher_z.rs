@@ -7,40 +7,55 @@
 //! columns besides the intercept (their rank, when some are aliased), is
 //! compared with the standard normal distribution, two-sided.
 
-use super::pair::{CiTest, Outcome, conditioning_design};
+use super::pair::{CiTest, Outcome, conditioning_terms};
 use crate::Result;
-use crate::data::{Frame, Setting};
+use crate::data::{Design, Factor, Frame, Setting, Term, Transform};
 use crate::infer::dist::normal_cdf;
-use crate::model::{Ols, linear_predictor};
+use crate::model::{ALIAS_TOL, Chol, accumulate};
+use nalgebra::DVector;
 
 /// The test's name in output.
 pub const NAME: &str = "partial correlation (Fisher z)";
 
-/// Residuals of `y` on `rows`, and the rank of the fit.
-fn residuals<R: crate::data::Rows + ?Sized>(rows: &R, y: &[f64]) -> Result<(Vec<f64>, usize)> {
-    let (beta, chol) = Ols::coefficients(rows, y, None)?;
-    let fit = linear_predictor(rows, &beta);
-    Ok((y.iter().zip(&fit).map(|(v, f)| v - f).collect(), chol.rank()))
+fn linear(frame: &Frame, col: usize) -> Term {
+    Term {
+        name: frame.name(col).to_string(),
+        factors: vec![Factor {
+            col,
+            transform: Transform::Linear,
+        }],
+    }
 }
 
 /// Tests frame columns `a` and `b` (both continuous) for zero partial
 /// correlation given the columns `given`.
+///
+/// One pass over the rows gives the cross-products `S` of the centred
+/// design `[Z, a, b]`; the residual cross-products of the regressions of
+/// `a` and `b` on `Z` are then `S_uv - S_uZ S_ZZ^-1 S_Zv` (the normal
+/// equations of both least-squares fits, solved once by Cholesky).
 pub fn fisher_z(frame: &Frame, a: usize, b: usize, given: &[usize]) -> Result<Outcome> {
     let n = frame.nrows();
-    let design = conditioning_design(frame, given);
-    let rows = design.rows(frame, Setting::Observed);
-    let (ea, rank) = residuals(&rows, frame.col(a))?;
-    let (eb, _) = residuals(&rows, frame.col(b))?;
-    let k = rank.saturating_sub(1);
-    let ss = |e: &[f64]| e.iter().map(|v| v * v).sum::<f64>();
-    let centred = |j: usize| {
-        let v = frame.col(j);
-        let m = v.iter().sum::<f64>() / n as f64;
-        v.iter().map(|x| (x - m) * (x - m)).sum::<f64>()
-    };
-    let (saa, sbb) = (ss(&ea), ss(&eb));
-    for (s, j) in [(saa, a), (sbb, b)] {
-        if s <= 1e-12 * centred(j) {
+    let mut terms = conditioning_terms(frame, given);
+    let q = terms.len();
+    terms.push(linear(frame, a));
+    terms.push(linear(frame, b));
+    let design = Design::from_terms(frame, terms, None);
+    let s = accumulate(&design.rows(frame, Setting::Observed), None, |_, _| {
+        (1.0, 0.0, 0.0, 0.0)
+    })
+    .xtx;
+    let chol = Chol::new(&s.view((0, 0), (q, q)).into_owned(), ALIAS_TOL);
+    let k = chol.rank().saturating_sub(1);
+    let cross = |u: usize| DVector::from_fn(q, |i, _| s[(i, u)]);
+    let (za, zb) = (cross(q), cross(q + 1));
+    let (ba, bb) = (chol.solve(&za), chol.solve(&zb));
+    let saa = s[(q, q)] - za.dot(&ba);
+    let sbb = s[(q + 1, q + 1)] - zb.dot(&bb);
+    let sab = s[(q, q + 1)] - za.dot(&bb);
+    // Centred columns: the diagonal of S holds each one's total sum of squares.
+    for (ss, total, j) in [(saa, s[(q, q)], a), (sbb, s[(q + 1, q + 1)], b)] {
+        if ss.is_nan() || ss <= 1e-12 * total {
             return Ok(Outcome::NotTested(format!(
                 "'{}' is a linear function of the conditioning set over the {n} complete rows",
                 frame.name(j)
@@ -53,7 +68,6 @@ pub fn fisher_z(frame: &Frame, a: usize, b: usize, given: &[usize]) -> Result<Ou
             "too few complete rows ({n}) for {k} conditioning terms: Fisher's z needs n - k - 3 >= 1"
         )));
     }
-    let sab: f64 = ea.iter().zip(&eb).map(|(x, y)| x * y).sum();
     let r = (sab / (saa * sbb).sqrt()).clamp(-1.0, 1.0);
     let z = r.atanh() * dof.sqrt();
     let p = (2.0 * normal_cdf(-z.abs())).min(1.0);

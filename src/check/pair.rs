@@ -188,3 +188,101 @@ pub fn ci_test(
     };
     Ok(result(outcome))
 }
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    fn ds(cols: &[(&str, Vec<f64>)]) -> Dataset {
+        Dataset::from_columns(
+            "t.csv",
+            cols.iter().map(|(n, v)| (n.to_string(), v.clone())).collect(),
+        )
+        .unwrap()
+    }
+
+    fn reason(r: PairResult) -> String {
+        match r.outcome {
+            Outcome::NotTested(m) => m,
+            Outcome::Tested(t) => panic!("tested: {t:?}"),
+        }
+    }
+
+    fn wave(n: usize, k: f64) -> Vec<f64> {
+        (0..n).map(|i| (i as f64 * k).sin()).collect()
+    }
+
+    #[test]
+    fn degenerate_data_are_not_tested_and_say_why() {
+        let n = 40;
+        let z = wave(n, 0.7);
+        let d = ds(&[
+            ("a", wave(n, 1.3)),
+            ("c", vec![2.0; n]),
+            ("z", z.clone()),
+            ("z2", z.iter().map(|v| 2.0 * v + 1.0).collect()),
+            ("m", vec![f64::NAN; n]),
+            ("b", (0..n).map(|i| f64::from(u8::from(i % 3 == 0))).collect()),
+        ]);
+        let m = reason(ci_test(&d, "a", "c", &[], &[]).unwrap());
+        assert!(
+            m.contains("'c' takes a single value over the 40 complete rows"),
+            "{m}"
+        );
+        let m = reason(ci_test(&d, "z2", "a", &["z"], &[]).unwrap());
+        assert!(
+            m.contains("'z2' is a linear function of the conditioning set"),
+            "{m}"
+        );
+        let r = ci_test(&d, "a", "m", &[], &[]).unwrap();
+        assert_eq!(r.n, 0);
+        assert_eq!(r.missing_by_column.get("m"), Some(&40));
+        assert!(reason(r).contains("no row has a value"));
+        let m = reason(ci_test(&d, "z2", "b", &["z"], &[]).unwrap());
+        assert!(m.contains("the terms of 'z2' are collinear"), "{m}");
+        let small = ds(&[
+            ("a", wave(5, 1.3)),
+            ("b", wave(5, 0.4)),
+            ("z", wave(5, 2.1)),
+            ("w", wave(5, 0.9)),
+        ]);
+        let m = reason(ci_test(&small, "a", "b", &["z", "w"], &[]).unwrap());
+        assert!(m.contains("too few complete rows (5)"), "{m}");
+    }
+
+    #[test]
+    fn separation_is_tested_with_a_caveat() {
+        let n = 30;
+        let x: Vec<f64> = (0..n).map(|i| i as f64).collect();
+        let y: Vec<f64> = (0..n).map(|i| f64::from(u8::from(i >= 15))).collect();
+        let d = ds(&[("x", x), ("y", y)]);
+        let r = ci_test(&d, "x", "y", &[], &[]).unwrap();
+        match r.outcome {
+            Outcome::Tested(t) => {
+                assert_eq!(t.test, logistic_lr::NAME);
+                assert!(t.note.as_deref().unwrap().contains("separation"), "{:?}", t.note);
+                // The deviance drops from 2 n log 2 to about 0.
+                assert!(
+                    (t.statistic - 2.0 * 30.0 * 2f64.ln()).abs() < 1e-3,
+                    "{}",
+                    t.statistic
+                );
+            }
+            Outcome::NotTested(m) => panic!("{m}"),
+        }
+    }
+
+    // A numeric column named categorical gets the categorical tests.
+    #[test]
+    fn categorical_flag_changes_the_test() {
+        let n = 60;
+        let g: Vec<f64> = (0..n).map(|i| (i % 3) as f64).collect();
+        let d = ds(&[("g", g), ("x", wave(n, 0.9))]);
+        let t = |cat: &[String]| match ci_test(&d, "g", "x", &[], cat).unwrap().outcome {
+            Outcome::Tested(t) => t.test,
+            Outcome::NotTested(m) => panic!("{m}"),
+        };
+        assert_eq!(t(&[]), fisher_z::NAME);
+        assert_eq!(t(&["g".to_string()]), nested_f::NAME);
+    }
+}

@@ -1,6 +1,6 @@
-//! The `check` result laid out as a [`Doc`]: a verdict line, the claims
-//! sorted by adjusted p-value with the rejected ones marked, the pairs the
-//! data cannot test, warnings, and how to read the result. Only lays out a
+//! The `check` result laid out as a [`Doc`]: the claims sorted by adjusted
+//! p-value with the rejected ones marked, a verdict line, the pairs the data
+//! cannot test, warnings, and how to read the result. Only lays out a
 //! [`CheckReport`]; the statistics are computed in [`crate::check`].
 
 use super::doc::{Align, Block, Doc, Table};
@@ -78,26 +78,23 @@ pub fn report_doc(r: &CheckReport) -> Doc {
         r.rows,
         r.correction.label()
     )));
-    blocks.push(Block::Heading("Verdict".into()));
-    blocks.push(Block::Para(verdict(r)));
-
     if !r.implications.is_empty() {
         blocks.push(Block::Heading("Claims, by adjusted p-value".into()));
         let mut t = Table::new(
             "",
             &[
                 "independent",
-                "given",
                 "test",
                 "n",
                 "statistic",
                 "p",
                 "adjusted p",
                 "verdict",
+                "given",
             ],
         )
         .align(1, Align::Left)
-        .align(2, Align::Left)
+        .align(6, Align::Left)
         .align(7, Align::Left);
         let mut order: Vec<&TestedImplication> = r.implications.iter().collect();
         order.sort_by(|a, b| {
@@ -113,18 +110,18 @@ pub fn report_doc(r: &CheckReport) -> Doc {
             };
             t.row(vec![
                 format!("{}, {}", quote(&i.a), quote(&i.b)),
-                given,
                 short_test(&i.test).to_string(),
                 i.n.to_string(),
                 statistic_text(i),
                 p_text(i.p_value),
                 p_text(i.p_adjusted),
                 if i.rejected { "REJECTED" } else { "not rejected" }.to_string(),
+                given,
             ]);
         }
         t.notes.push(format!(
             "REJECTED: adjusted p-value at most alpha = {}. n: rows with a value for every \
-             variable of the claim.",
+             variable of the claim. given: the set the two variables are independent given.",
             r.alpha
         ));
         t.notes.push(
@@ -153,6 +150,9 @@ pub fn report_doc(r: &CheckReport) -> Doc {
             )));
         }
     }
+
+    blocks.push(Block::Heading("Verdict".into()));
+    blocks.push(Block::Para(verdict(r)));
 
     if !r.untestable.is_empty() || !r.not_tested.is_empty() {
         blocks.push(Block::Heading("Pairs not tested".into()));
@@ -200,5 +200,100 @@ pub fn report_doc(r: &CheckReport) -> Doc {
         title: "Testing the graph's implications against the data".to_string(),
         blocks,
         stamp: None,
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::check::{Correction, Pair};
+    use crate::report::Exporter;
+    use crate::report::text::Text;
+    use std::collections::BTreeMap;
+
+    fn claim(a: &str, b: &str, p: f64, q: f64, rejected: bool) -> TestedImplication {
+        TestedImplication {
+            a: a.into(),
+            b: b.into(),
+            given: vec!["s".into()],
+            test: fisher_z::NAME.into(),
+            statistic: 1.5,
+            p_value: p,
+            p_adjusted: q,
+            rejected,
+            n: 100,
+            df: None,
+            df_denominator: None,
+            response: None,
+            partial_correlation: Some(0.1),
+        }
+    }
+
+    fn report(claims: Vec<TestedImplication>) -> CheckReport {
+        CheckReport {
+            alpha: 0.05,
+            correction: Correction::Holm,
+            tested: claims.len(),
+            rejected: claims.iter().filter(|c| c.rejected).count(),
+            implications: claims,
+            untestable: vec![Pair {
+                a: "u v".into(),
+                b: "w".into(),
+            }],
+            not_tested: Vec::new(),
+            rows: 100,
+            missing_by_column: BTreeMap::new(),
+            observed: vec!["a".into(), "b".into()],
+            latent: Vec::new(),
+            warnings: vec!["a caveat".into()],
+        }
+    }
+
+    #[test]
+    fn verdict_counts_and_names_the_adjustment() {
+        assert_eq!(
+            verdict(&report(vec![
+                claim("a", "b", 0.3, 0.6, false),
+                claim("c", "d", 0.001, 0.002, true)
+            ])),
+            "The data contradict 1 of the 2 testable claims at alpha 0.05 after Holm adjustment."
+        );
+        assert_eq!(
+            verdict(&report(vec![claim("a", "b", 0.3, 0.3, false)])),
+            "The data do not contradict the one testable claim at alpha 0.05 after Holm adjustment."
+        );
+        let mut r = report(vec![
+            claim("a", "b", 0.3, 0.6, false),
+            claim("c", "d", 0.2, 0.6, false),
+        ]);
+        r.correction = Correction::Bh;
+        assert!(verdict(&r).starts_with("The data contradict none of the 2"));
+        assert!(verdict(&r).ends_with("after Benjamini-Hochberg adjustment."));
+        assert!(verdict(&report(Vec::new())).contains("no conditional independence"));
+    }
+
+    #[test]
+    fn rows_sorted_by_adjusted_p_with_rejections_marked() {
+        let r = report(vec![
+            claim("a", "b", 0.3, 0.6, false),
+            claim("c", "d", 0.00001, 0.00002, true),
+        ]);
+        let text = Text.render(&report_doc(&r));
+        let first = text.find("c, d").unwrap();
+        let second = text.find("a, b").unwrap();
+        assert!(first < second, "{text}");
+        let line = text.lines().find(|l| l.contains("c, d")).unwrap();
+        assert!(
+            line.contains("REJECTED") && line.contains("<0.0001") && line.contains("z = 1.50"),
+            "{line}"
+        );
+        let line = text.lines().find(|l| l.contains("a, b")).unwrap();
+        assert!(line.contains("not rejected") && line.contains("0.6000"), "{line}");
+        assert!(
+            text.contains("\"u v\" and w: no set of observed variables"),
+            "{text}"
+        );
+        assert!(text.contains("! a caveat"));
+        assert!(text.contains(crate::report::doc::CAUTION.split_whitespace().next().unwrap()));
     }
 }
