@@ -23,10 +23,8 @@ fn main() -> causeway::Result<()> {
         "strategy: {:?}, adjustment set: {:?}",
         plan.strategy, plan.adjustment_set
     );
-    let opts = Options {
-        categorical: vec!["role".into()],
-        ..Options::default()
-    };
+    let mut opts = Options::default();
+    opts.model.categorical = vec!["role".into()];
     let data = Dataset::open(
         csv,
         &ReadOptions {

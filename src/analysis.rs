@@ -7,7 +7,7 @@
 //! of the command-line contract (the stamp is added by the caller).
 
 use crate::check::{self, CheckOptions, Correction};
-use crate::data::{Dataset, Shape};
+use crate::data::Dataset;
 use crate::estimate::{
     self, Diagnostics, Estimand, Estimate, Method, Problem, Scale, SensitivityInputs, Spec, Warm,
 };
@@ -25,22 +25,10 @@ use serde::Serialize;
 pub struct Options {
     /// Methods to run; `None`: every method that fits the strategy.
     pub methods: Option<Vec<String>>,
-    /// Columns to treat as categorical.
-    pub categorical: Vec<String>,
-    /// How continuous covariates enter the models.
-    pub shape: Shape,
-    /// Covariates whose product with the exposure enters the outcome model.
-    pub interact: Vec<String>,
-    /// ATE, ATT or ATC.
-    pub estimand: Estimand,
-    /// Scale for a binary outcome.
-    pub scale: Scale,
-    /// Clip propensity scores to `[trim, 1 - trim]`.
-    pub trim: Option<f64>,
-    /// Confidence level.
-    pub level: f64,
-    /// For a continuous exposure: compare the second value with the first.
-    pub contrast: Option<(f64, f64)>,
+    /// Model settings (categorical columns, shape, interactions, estimand,
+    /// scale, trimming, level, contrast); the exposure, outcome and sets are
+    /// filled in from the plan.
+    pub model: Spec,
     /// Bootstrap replicates (0: none).
     pub bootstrap: usize,
     /// Which bootstrap interval goes into `ci`.
@@ -59,14 +47,7 @@ impl Default for Options {
     fn default() -> Self {
         Options {
             methods: None,
-            categorical: Vec::new(),
-            shape: Shape::Linear,
-            interact: Vec::new(),
-            estimand: Estimand::Ate,
-            scale: Scale::Difference,
-            trim: None,
-            level: 0.95,
-            contrast: None,
+            model: Spec::default(),
             bootstrap: 0,
             interval: IntervalKind::Percentile,
             seed: 1,
@@ -231,14 +212,7 @@ pub fn spec(plan: &Plan, opts: &Options) -> Spec {
         outcome: g.name(plan.roles.outcome).to_string(),
         covariates: plan.adjustment_set.clone().unwrap_or_default(),
         mediators: plan.frontdoor_set.clone().unwrap_or_default(),
-        categorical: opts.categorical.clone(),
-        shape: opts.shape,
-        interact: opts.interact.clone(),
-        estimand: opts.estimand,
-        scale: opts.scale,
-        trim: opts.trim,
-        level: opts.level,
-        contrast: opts.contrast,
+        ..opts.model.clone()
     }
 }
 
@@ -267,7 +241,7 @@ pub fn run(plan: &Plan, data: &Dataset, opts: &Options) -> Result<Analysis> {
     if plan.strategy == Strategy::None {
         return Err(Error::NotIdentified(plan.not_identified_reason()));
     }
-    for name in &opts.interact {
+    for name in &opts.model.interact {
         if !plan.adjustment_set.iter().flatten().any(|c| c == name) {
             return Err(Error::input(format!(
                 "--interact '{name}' is not in the adjustment set used ({}); products with the exposure \
@@ -327,7 +301,7 @@ pub fn run(plan: &Plan, data: &Dataset, opts: &Options) -> Result<Analysis> {
     Ok(Analysis {
         exposure: problem.spec.exposure.clone(),
         outcome: problem.spec.outcome.clone(),
-        estimand: opts.estimand,
+        estimand: opts.model.estimand,
         identification: Identified {
             strategy: plan.strategy,
             adjustment_set: plan.adjustment_set.clone(),
@@ -382,7 +356,7 @@ fn run_bootstrap(
         replicates: opts.bootstrap,
         seed: opts.seed,
         threads: opts.threads,
-        level: opts.level,
+        level: opts.model.level,
         progress: opts.progress,
         bca: opts.interval == IntervalKind::Bca,
     };
@@ -397,7 +371,7 @@ fn run_bootstrap(
     })?;
     let mut warnings = Vec::new();
     for (j, item) in estimates.iter_mut().enumerate() {
-        let s = draws.summary_at(j, opts.level)?;
+        let s = draws.summary_at(j, opts.model.level)?;
         warnings.extend(
             s.warnings
                 .iter()
@@ -488,7 +462,7 @@ fn evalue_for(
         Some(s) => s.outcome_sd,
         None => sd(p.y()),
     };
-    evalue::continuous(e.estimate, e.std_error, sd, opts.level)
+    evalue::continuous(e.estimate, e.std_error, sd, opts.model.level)
 }
 
 fn sd(y: &[f64]) -> f64 {
@@ -502,7 +476,7 @@ fn robustness_for(
     opts: &Options,
     details: &mut SensitivityDetails,
 ) -> Result<RobustnessValue> {
-    let alpha = 1.0 - opts.level;
+    let alpha = 1.0 - opts.model.level;
     let c = Coefficient::new(s.estimate, s.std_error, s.df)?;
     let rv = robustness::robustness_value(&c, 1.0, alpha)?;
     details.covariates = s

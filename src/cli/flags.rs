@@ -6,7 +6,7 @@ use super::common::load_graph;
 use causeway::analysis::Options;
 use causeway::check::CheckOptions;
 use causeway::data::{Dataset, ReadOptions, Shape};
-use causeway::estimate::{Estimand, Scale};
+use causeway::estimate::{Estimand, Scale, Spec};
 use causeway::graph::Graph;
 use causeway::infer::bootstrap::IntervalKind;
 use causeway::plan::{AdjustChoice, Plan, Roles, split_list};
@@ -146,14 +146,17 @@ impl EstimateFlags {
         }
         Ok(Options {
             methods,
-            categorical: list(&self.categorical),
-            shape,
-            interact: list(&self.interact),
-            estimand: self.estimand.parse::<Estimand>()?,
-            scale: self.scale.parse::<Scale>()?,
-            trim: self.trim.filter(|&t| t > 0.0),
-            level: self.level,
-            contrast,
+            model: Spec {
+                categorical: list(&self.categorical),
+                shape,
+                interact: list(&self.interact),
+                estimand: self.estimand.parse::<Estimand>()?,
+                scale: self.scale.parse::<Scale>()?,
+                trim: self.trim.filter(|&t| t > 0.0),
+                level: self.level,
+                contrast,
+                ..Spec::default()
+            },
             bootstrap: self.bootstrap,
             interval: IntervalKind::parse(&self.interval).map_err(|_| {
                 Error::input(format!(
