@@ -28,17 +28,45 @@ pub fn logistic_lr(frame: &Frame, response: usize, other: usize, given: &[usize]
     warm.rows_mut(0, d0.ncols()).copy_from(&m0.coef);
     let m1 = Logit::fit(&d1.rows(frame, Setting::Observed), y, None, Some(&warm), opts)?;
     let df = m1.chol().rank().saturating_sub(m0.chol().rank());
+    let deviances = (m0.deviance, m1.deviance);
+    Ok(likelihood_ratio(
+        NAME,
+        frame,
+        response,
+        other,
+        df,
+        deviances,
+        [&m0.separation, &m1.separation],
+        "terms",
+    ))
+}
+
+/// The outcome of a likelihood-ratio test from the deviances of the nested
+/// fits (without, with the other variable) and the number of added
+/// parameters `df`; not tested when `df` is 0. `what` names the added
+/// terms in the message.
+#[allow(clippy::too_many_arguments)]
+pub(super) fn likelihood_ratio(
+    test: &'static str,
+    frame: &Frame,
+    response: usize,
+    other: usize,
+    df: usize,
+    deviances: (f64, f64),
+    separations: [&Option<crate::model::Separation>; 2],
+    what: &str,
+) -> Outcome {
     if df == 0 {
-        return Ok(Outcome::NotTested(format!(
-            "the terms of '{}' are collinear with the conditioning set over the {} complete rows",
+        return Outcome::NotTested(format!(
+            "the {what} of '{}' are collinear with the conditioning set over the {} complete rows",
             frame.name(other),
             frame.nrows()
-        )));
+        ));
     }
-    let lr = (m0.deviance - m1.deviance).max(0.0);
-    let note = separation_note(frame.name(response), [&m0.separation, &m1.separation]);
-    Ok(Outcome::Tested(CiTest {
-        test: NAME,
+    let lr = (deviances.0 - deviances.1).max(0.0);
+    let note = separation_note(frame.name(response), separations);
+    Outcome::Tested(CiTest {
+        test,
         statistic: lr,
         p_value: chi_square_sf(lr, df as f64),
         df: Some(df),
@@ -46,5 +74,5 @@ pub fn logistic_lr(frame: &Frame, response: usize, other: usize, given: &[usize]
         response: Some(frame.name(response).to_string()),
         partial_correlation: None,
         note,
-    }))
+    })
 }

@@ -7,10 +7,10 @@
 //! added dummies (Wilks 1938; Agresti, *Categorical Data Analysis*, 3rd ed.,
 //! 2013, sec. 8.1).
 
-use super::pair::{CiTest, Outcome, conditioning_design, extended_design, separation_note};
+use super::logistic_lr::likelihood_ratio;
+use super::pair::{Outcome, conditioning_design, extended_design};
 use crate::Result;
 use crate::data::{Frame, Kind, Setting};
-use crate::infer::dist::chi_square_sf;
 use crate::model::{LogitOptions, Multinomial};
 use nalgebra::DMatrix;
 
@@ -41,23 +41,15 @@ pub fn multinomial_lr(frame: &Frame, response: usize, other: usize, given: &[usi
         opts,
     )?;
     let df = m1.rank().saturating_sub(m0.rank());
-    if df == 0 {
-        return Ok(Outcome::NotTested(format!(
-            "the dummies of '{}' are collinear with the conditioning set over the {} complete rows",
-            frame.name(other),
-            frame.nrows()
-        )));
-    }
-    let lr = (m0.deviance - m1.deviance).max(0.0);
-    let note = separation_note(frame.name(response), [&m0.separation, &m1.separation]);
-    Ok(Outcome::Tested(CiTest {
-        test: NAME,
-        statistic: lr,
-        p_value: chi_square_sf(lr, df as f64),
-        df: Some(df),
-        df_denominator: None,
-        response: Some(frame.name(response).to_string()),
-        partial_correlation: None,
-        note,
-    }))
+    let deviances = (m0.deviance, m1.deviance);
+    Ok(likelihood_ratio(
+        NAME,
+        frame,
+        response,
+        other,
+        df,
+        deviances,
+        [&m0.separation, &m1.separation],
+        "dummies",
+    ))
 }
