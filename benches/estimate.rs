@@ -11,60 +11,14 @@
 //! Run: `cargo bench --bench estimate` (set `CAUSEWAY_BENCH_ROWS` for
 //! another size).
 
+#[path = "common/gen.rs"]
+mod generator;
+
 use causeway::data::{Dataset, ReadOptions};
 use causeway::estimate::{Problem, Spec, method};
-use rand::{RngExt, SeedableRng};
-use rand_chacha::ChaCha8Rng;
-use std::io::Write;
+use generator::{BIN, CAT, CONT, generate};
 use std::path::Path;
 use std::time::Instant;
-
-const CONT: usize = 10;
-const BIN: usize = 5;
-const CAT: usize = 5;
-
-fn generate(path: &Path, rows: usize) {
-    let f = std::fs::File::create(path).expect("create bench data");
-    let mut w = std::io::BufWriter::with_capacity(1 << 20, f);
-    let mut r = ChaCha8Rng::seed_from_u64(20261201);
-    let mut header: Vec<String> = (1..=CONT).map(|j| format!("c{j}")).collect();
-    header.extend((1..=BIN).map(|j| format!("b{j}")));
-    header.extend((1..=CAT).map(|j| format!("k{j}")));
-    header.push("a".into());
-    header.push("y".into());
-    writeln!(w, "{}", header.join(",")).unwrap();
-    let expit = |x: f64| 1.0 / (1.0 + (-x).exp());
-    let mut line = String::with_capacity(256);
-    for _ in 0..rows {
-        line.clear();
-        let mut lin = 0.0;
-        let mut out = 0.0;
-        for j in 0..CONT {
-            let v: f64 = r.sample(rand_distr::StandardNormal);
-            lin += 0.1 * v * if j % 2 == 0 { 1.0 } else { -1.0 };
-            out += 0.3 * v;
-            line.push_str(&format!("{v:.4},"));
-        }
-        for j in 0..BIN {
-            let v = u8::from(r.random::<f64>() < 0.3 + 0.05 * j as f64);
-            lin += 0.2 * f64::from(v);
-            out += 0.5 * f64::from(v);
-            line.push_str(if v == 1 { "1," } else { "0," });
-        }
-        for _ in 0..CAT {
-            let v = 1 + (r.random::<f64>() * 4.0) as u32;
-            lin += 0.1 * f64::from(v);
-            out += 0.2 * f64::from(v);
-            line.push_str(&format!("{v},"));
-        }
-        let a = u8::from(r.random::<f64>() < expit(-0.8 + lin));
-        let e: f64 = r.sample(rand_distr::StandardNormal);
-        let y = 1.0 + 2.0 * f64::from(a) + out + e;
-        line.push_str(&format!("{a},{y:.4}"));
-        writeln!(w, "{line}").unwrap();
-    }
-    w.flush().unwrap();
-}
 
 /// VmHWM (peak resident memory) in bytes.
 fn peak_bytes() -> Option<u64> {

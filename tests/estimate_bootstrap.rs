@@ -55,10 +55,9 @@ fn pair(v: &Value) -> [f64; 2] {
     [v[0].as_f64().unwrap(), v[1].as_f64().unwrap()]
 }
 
-/// Hernán & Robins, *Causal Inference: What If* (2020), ch. 13 (Program
-/// 13.x; values confirmed in published-checks): standardization with a
-/// qsmk x smokeintensity product term, 3.5 kg, bootstrap 95% interval 2.6
-/// to 4.5; 3.5174 over the 1566 complete cases.
+/// Hernán & Robins, *Causal Inference: What If* (2020), ch. 13 (confirmed):
+/// standardization with a qsmk x smokeintensity product term, 3.5 kg,
+/// bootstrap 95% interval 2.6 to 4.5; 3.5174 over the 1566 complete cases.
 ///
 /// Tolerance of each limit, 0.15: the published limits are rounded to 0.1
 /// (up to 0.05 off), and both bootstraps carry Monte Carlo error. For a
