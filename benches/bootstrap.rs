@@ -61,7 +61,10 @@ fn main() {
     let plan = Plan::new(roles, &AdjustChoice::Optimal, false).expect("plan");
     let base = Options {
         methods: Some(vec!["regression".into(), "ipw".into(), "aipw".into()]),
-        categorical: categorical(),
+        model: causeway::estimate::Spec {
+            categorical: categorical(),
+            ..Default::default()
+        },
         threads,
         ..Options::default()
     };
