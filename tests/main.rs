@@ -22,5 +22,8 @@ mod identify_dsep;
 mod identify_props;
 mod identify_textbook;
 mod model_fixtures;
+mod robust_data;
+mod robust_flags;
+mod robust_graph;
 mod sensitivity;
 mod simulate;

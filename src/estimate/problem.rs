@@ -189,6 +189,7 @@ impl Problem {
         }
         check_kinds(&frame, spec, outcome, exposure)?;
         check_groups(&frame, spec, exposure)?;
+        warnings.extend(few_valued_exposure(&frame, spec, exposure));
         let interact: Vec<usize> = spec
             .interact
             .iter()
@@ -410,6 +411,38 @@ fn check_groups(frame: &Frame, spec: &Spec, exposure: usize) -> Result<()> {
         }
     }
     Ok(())
+}
+
+/// Most distinct values of an exposure that is still flagged as perhaps
+/// meant to be categorical or binary (common practice, no source).
+const FEW_VALUES: usize = 5;
+
+/// A warning when a numeric exposure takes only a few values: it is
+/// treated as continuous (a one-unit increase, regression only), which the
+/// analyst may not have intended.
+fn few_valued_exposure(frame: &Frame, spec: &Spec, exposure: usize) -> Option<String> {
+    if frame.kind(exposure) != &Kind::Numeric {
+        return None;
+    }
+    let mut values: Vec<f64> = Vec::new();
+    for &v in frame.col(exposure) {
+        if !values.contains(&v) {
+            values.push(v);
+            if values.len() > FEW_VALUES {
+                return None;
+            }
+        }
+    }
+    values.sort_by(f64::total_cmp);
+    let shown: Vec<String> = values.iter().map(|v| format!("{v}")).collect();
+    Some(format!(
+        "the exposure '{}' takes {} values ({}): it is treated as continuous, so the effect is that of \
+         a one-unit increase (or of --contrast A,B) and only regression applies; the weighting methods \
+         need an exposure recoded to two values",
+        spec.exposure,
+        values.len(),
+        shown.join(", ")
+    ))
 }
 
 /// Warnings for a sample small for its models (see [`ROWS_PER_TERM`]).
