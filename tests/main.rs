@@ -25,5 +25,6 @@ mod model_fixtures;
 mod robust_data;
 mod robust_flags;
 mod robust_graph;
+mod robust_props;
 mod sensitivity;
 mod simulate;

@@ -166,6 +166,14 @@ fn ragged_rows_name_line_and_column() {
         2,
         &["d.csv:22:3:", "this row has 2 fields but the header has 3"],
     );
+    // The same with CRLF line ends and a blank line: the line is still
+    // counted right (the CSV reader's own count is one short after CRLF).
+    let crlf = text.replacen('\n', "\n\n", 1).replace('\n', "\r\n");
+    expect(
+        &estimate(&crlf, &[]),
+        2,
+        &["d.csv:23:3:", "this row has 2 fields but the header has 3"],
+    );
 }
 
 #[test]
