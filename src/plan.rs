@@ -280,11 +280,10 @@ impl Plan {
     pub fn not_identified_reason(&self) -> String {
         let id = &self.identification;
         let g = &self.roles.graph;
-        let fd = id
-            .frontdoor
-            .obstacle
-            .clone()
-            .unwrap_or_else(|| "no set meets the front-door criterion".into());
+        let fd = match &id.frontdoor.obstacle {
+            Some(o) => format!("none meets the front-door criterion: {o}"),
+            None => "none meets the front-door criterion".into(),
+        };
         format!(
             "the effect of {} on {} is not identified under this graph: no set of observed variables meets \
              the backdoor criterion, and {fd}",

@@ -60,7 +60,8 @@ fn text_in_a_numeric_role_names_line_column_and_value() {
 
 #[test]
 fn infinite_values_are_refused_where_used() {
-    let d = read(b"y,a,z\n1,0,inf\n2,1,3\n3,0,1\n").unwrap();
+    // Two rows in each exposure group: the fewest an estimate accepts.
+    let d = read(b"y,a,z\n1,0,inf\n2,1,3\n3,0,1\n4,1,2\n").unwrap();
     let mut spec = Spec {
         exposure: "a".into(),
         outcome: "y".into(),

@@ -51,14 +51,7 @@ pub fn to_json<T: serde::Serialize>(value: &T) -> Result<String> {
 /// Writes `text` to `path` through a temporary file in the same folder,
 /// renamed into place; refuses to write over any of `inputs`.
 pub fn write_atomic(path: &Path, text: &[u8], inputs: &[&Path]) -> Result<()> {
-    for input in inputs {
-        if same_file(path, input) {
-            return Err(Error::input(format!(
-                "refusing to write {}: it is an input file",
-                path.display()
-            )));
-        }
-    }
+    refuse_inputs(path, inputs)?;
     let dir = match path.parent() {
         Some(d) if !d.as_os_str().is_empty() => d,
         _ => Path::new("."),
@@ -80,7 +73,33 @@ pub fn write_atomic(path: &Path, text: &[u8], inputs: &[&Path]) -> Result<()> {
     Ok(())
 }
 
+/// The refusal to write `path` when it is one of `inputs`.
+pub fn refuse_inputs(path: &Path, inputs: &[&Path]) -> Result<()> {
+    for input in inputs {
+        if same_file(path, input) {
+            return Err(Error::input(format!(
+                "refusing to write {}: it is an input file ({})",
+                path.display(),
+                input.display()
+            )));
+        }
+    }
+    Ok(())
+}
+
+/// Do `a` and `b` name the same file: the same path once links are
+/// resolved, or (Unix) the same device and inode, as with a hard link?
 fn same_file(a: &Path, b: &Path) -> bool {
+    #[cfg(unix)]
+    {
+        use std::os::unix::fs::MetadataExt;
+        if let (Ok(x), Ok(y)) = (std::fs::metadata(a), std::fs::metadata(b))
+            && x.dev() == y.dev()
+            && x.ino() == y.ino()
+        {
+            return true;
+        }
+    }
     match (std::fs::canonicalize(a), std::fs::canonicalize(b)) {
         (Ok(x), Ok(y)) => x == y,
         _ => a == b,
@@ -132,6 +151,23 @@ pub fn command_line() -> String {
 /// Writes the files of a report bundle under `dir` (created if needed),
 /// each through a temporary file; refuses to write over any input.
 pub fn write_bundle(dir: &Path, files: &[causeway::report::bundle::File], inputs: &[&Path]) -> Result<()> {
+    // Every file is checked before any is written, so a refusal leaves no
+    // half-written bundle behind.
+    for f in files {
+        let path = dir.join(&f.path);
+        refuse_inputs(&path, inputs)?;
+        if let Some(parent) = path.parent() {
+            for input in inputs {
+                if same_file(parent, input) {
+                    return Err(Error::input(format!(
+                        "--out {}: refusing to use {} as a folder: it is an input file",
+                        dir.display(),
+                        parent.display()
+                    )));
+                }
+            }
+        }
+    }
     for f in files {
         let path = dir.join(&f.path);
         if let Some(parent) = path.parent() {

@@ -1,7 +1,7 @@
 //! `causeway simulate`: data drawn from the structural model written in a
 //! graph file, and the true effect of an exposure on an outcome.
 
-use super::common::{load_graph, resolve, split_list, write_atomic};
+use super::common::{load_graph, refuse_inputs, resolve, split_list, write_atomic};
 use causeway::simulate::{self, Contrast, Method, Model, Options, Truth, TruthOptions};
 use causeway::{Error, Result};
 use std::io::Write;
@@ -86,6 +86,10 @@ pub fn run(a: Args) -> Result<i32> {
             "--truth and --output are the same file ({}); give two files",
             t.display()
         )));
+    }
+    // Refuse an output onto the graph file before anything is written.
+    for path in a.output.iter().chain(&a.truth) {
+        refuse_inputs(path, &[&a.graph])?;
     }
     let mut g = load_graph(&a.graph, a.quiet)?;
     for name in a.latent.as_deref().map(split_list).unwrap_or_default() {

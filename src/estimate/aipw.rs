@@ -120,7 +120,7 @@ impl Method for Aipw {
         let (estimate, std_error, ci) = interval(p.spec.scale, &arms, p.spec.level)?;
         let mut warnings = Vec::new();
         if let Some(s) = &f.om.separation {
-            warnings.push(format!("aipw: outcome model shows {s}"));
+            warnings.push(format!("outcome model shows {s}"));
         }
         let model = if f.om.binary {
             "logistic regression"

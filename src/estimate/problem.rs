@@ -141,8 +141,21 @@ impl Problem {
         let sample = data.complete_cases(&used)?;
         let mut warnings = Vec::new();
         if sample.used == 0 {
+            let empty: Vec<String> = used
+                .iter()
+                .filter(|c| sample.dropped_by_column.get(**c) == Some(&sample.rows))
+                .map(|c| format!("'{c}'"))
+                .collect();
+            let why = if empty.is_empty() {
+                String::new()
+            } else {
+                format!(
+                    "; missing (empty, NA, NaN or .) in every row: {}",
+                    empty.join(", ")
+                )
+            };
             return Err(Error::input(format!(
-                "{}: no row is complete for the columns used ({})",
+                "{}: no row is complete for the columns used ({}){why}",
                 data.source(),
                 used.join(", ")
             )));
@@ -175,6 +188,8 @@ impl Problem {
             mediators.push(frame.push_from(data, &sample, m, role(m))?);
         }
         check_kinds(&frame, spec, outcome, exposure)?;
+        check_groups(&frame, spec, exposure)?;
+        warnings.extend(few_valued_exposure(&frame, spec, exposure));
         let interact: Vec<usize> = spec
             .interact
             .iter()
@@ -184,9 +199,18 @@ impl Problem {
         let full = Design::build(&frame, Some(exposure), &covariates, spec.shape, &interact);
         let drop = aliased(&full, &frame);
         if drop.iter().any(|&j| Some(j) == full.exposure_term()) {
+            let few = if sample.used <= full.ncols() {
+                format!(
+                    " (there are only {} complete rows for {} model terms)",
+                    sample.used,
+                    full.ncols()
+                )
+            } else {
+                String::new()
+            };
             return Err(Error::input(format!(
                 "the exposure '{}' is constant or a linear combination of the adjustment terms in the \
-                 complete rows: its effect cannot be separated from theirs",
+                 complete rows{few}: its effect cannot be separated from theirs",
                 spec.exposure
             )));
         }
@@ -214,6 +238,23 @@ impl Problem {
         let outcome_design = full.without(&drop);
         let propensity = outcome_design.without_exposure();
         let adjusted = outcome_design.without_products();
+        let terms = outcome_design.ncols();
+        if sample.used <= terms {
+            return Err(Error::input(format!(
+                "only {} complete rows for the {terms} terms of the outcome model ({}): at least {} \
+                 are needed for an estimate with a standard error",
+                sample.used,
+                outcome_design.names().join(", "),
+                terms + 1
+            )));
+        }
+        warnings.extend(small_sample(
+            &frame,
+            exposure,
+            outcome,
+            &propensity,
+            &outcome_design,
+        ));
         Ok(Problem {
             spec: spec.clone(),
             sample,
@@ -341,6 +382,112 @@ fn check_spec(spec: &Spec) -> Result<()> {
         }
     }
     Ok(())
+}
+
+/// Rows per model term below which a warning says the sample is small: the
+/// events-per-variable rule of thumb for logistic regression (Peduzzi et al.,
+/// J Clin Epidemiol 1996;49:1373-1379, from memory), applied to the smaller
+/// exposure group for the propensity model, to the rarer outcome value for a
+/// logistic outcome model and to all rows for a linear one (common practice,
+/// no source).
+pub const ROWS_PER_TERM: usize = 10;
+
+/// Each group of a binary exposure needs two rows: with one, its outcome
+/// variance, and so any standard error, is not defined.
+fn check_groups(frame: &Frame, spec: &Spec, exposure: usize) -> Result<()> {
+    if !matches!(frame.kind(exposure), Kind::Binary { .. }) {
+        return Ok(());
+    }
+    let exposed = frame.col(exposure).iter().filter(|&&a| a == 1.0).count();
+    let unexposed = frame.nrows() - exposed;
+    for (k, group) in [(exposed, "exposed"), (unexposed, "unexposed")] {
+        if k < 2 {
+            return Err(Error::input(format!(
+                "the exposure '{}' has only {k} {group} row among the {} complete rows: each exposure \
+                 group needs at least 2 rows for an estimate with a standard error",
+                spec.exposure,
+                frame.nrows()
+            )));
+        }
+    }
+    Ok(())
+}
+
+/// Most distinct values of an exposure that is still flagged as perhaps
+/// meant to be categorical or binary (common practice, no source).
+const FEW_VALUES: usize = 5;
+
+/// A warning when a numeric exposure takes only a few values: it is
+/// treated as continuous (a one-unit increase, regression only), which the
+/// analyst may not have intended.
+fn few_valued_exposure(frame: &Frame, spec: &Spec, exposure: usize) -> Option<String> {
+    if frame.kind(exposure) != &Kind::Numeric {
+        return None;
+    }
+    let mut values: Vec<f64> = Vec::new();
+    for &v in frame.col(exposure) {
+        if !values.contains(&v) {
+            values.push(v);
+            if values.len() > FEW_VALUES {
+                return None;
+            }
+        }
+    }
+    values.sort_by(f64::total_cmp);
+    let shown: Vec<String> = values.iter().map(|v| format!("{v}")).collect();
+    Some(format!(
+        "the exposure '{}' takes {} values ({}): it is treated as continuous, so the effect is that of \
+         a one-unit increase (or of --contrast A,B) and only regression applies; the weighting methods \
+         need an exposure recoded to two values",
+        spec.exposure,
+        values.len(),
+        shown.join(", ")
+    ))
+}
+
+/// Warnings for a sample small for its models (see [`ROWS_PER_TERM`]).
+fn small_sample(
+    frame: &Frame,
+    exposure: usize,
+    outcome: usize,
+    propensity: &Design,
+    outcome_design: &Design,
+) -> Vec<String> {
+    let mut out = Vec::new();
+    let n = frame.nrows();
+    let ones = |j: usize| frame.col(j).iter().filter(|&&v| v == 1.0).count();
+    let mut check = |what: &str, rows: usize, model: &str, terms: usize| {
+        if rows >= ROWS_PER_TERM * terms.max(1) {
+            return;
+        }
+        let per = if terms == 0 {
+            format!("fewer than {ROWS_PER_TERM}")
+        } else {
+            format!("for {terms} terms besides the intercept, fewer than {ROWS_PER_TERM} per term")
+        };
+        out.push(format!(
+            "small sample: {what} has {rows} rows ({per}, in the {model}); the fitted models and the \
+             large-sample intervals may be unreliable: read the estimates with caution and compare a \
+             bootstrap interval"
+        ));
+    };
+    if matches!(frame.kind(exposure), Kind::Binary { .. }) {
+        let m = ones(exposure).min(n - ones(exposure));
+        check(
+            "the smaller exposure group",
+            m,
+            "propensity model",
+            propensity.ncols().saturating_sub(1),
+        );
+    }
+    let k = outcome_design.ncols().saturating_sub(1);
+    if matches!(frame.kind(outcome), Kind::Binary { .. }) {
+        let m = ones(outcome).min(n - ones(outcome));
+        check("the rarer outcome value", m, "outcome model", k);
+    } else {
+        check("the sample", n, "outcome model", k);
+    }
+    out
 }
 
 fn check_kinds(frame: &Frame, spec: &Spec, outcome: usize, exposure: usize) -> Result<()> {

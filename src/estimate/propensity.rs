@@ -54,8 +54,9 @@ impl Propensity {
         if let Some(s) = &fit.separation {
             return Err(Error::Numerical(format!(
                 "propensity model for '{}': {s}; some units have no chance of the other exposure \
-                 (a positivity violation), so weighting cannot be used; consider fewer or coarser \
-                 adjustment terms, --trim, or --method regression",
+                 (a positivity violation), so weighting cannot be used (clipping the scores with \
+                 --trim would only hide it); consider fewer or coarser adjustment terms, or a \
+                 population with overlap",
                 p.spec.exposure
             )));
         }

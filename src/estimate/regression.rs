@@ -84,7 +84,7 @@ impl Method for Regression {
         let mut warnings = Vec::new();
         if let Some(s) = &m.separation {
             warnings.push(format!(
-                "regression: outcome model shows {s}; predictions near 0 or 1 are unstable"
+                "outcome model shows {s}; predictions near 0 or 1 are unstable"
             ));
         }
         let model = if m.binary {

@@ -118,7 +118,7 @@ pub fn parse(text: &str, file: &str) -> Result<Parsed, ParseError> {
     }
     if let Err(cycle) = p.graph.topological_order() {
         let (line, col) = p.edge_place[&(cycle[0], cycle[1])];
-        let path: Vec<&str> = cycle.iter().map(|&v| p.graph.name(v)).collect();
+        let path: Vec<String> = cycle.iter().map(|&v| clip(p.graph.name(v))).collect();
         return Err(ParseError {
             file: file.to_string(),
             line,
@@ -202,6 +202,21 @@ impl Line<'_> {
     }
 }
 
+/// Longest name (in characters) quoted whole in a message.
+const SHOWN_CHARS: usize = 60;
+
+/// A name from the file as shown in a message: names longer than
+/// [`SHOWN_CHARS`] characters are cut, with their length, so that a huge
+/// token does not flood the terminal.
+pub(crate) fn clip(name: &str) -> String {
+    let n = name.chars().count();
+    if n <= SHOWN_CHARS {
+        return name.to_string();
+    }
+    let head: String = name.chars().take(SHOWN_CHARS).collect();
+    format!("{head}... ({n} characters)")
+}
+
 fn is_name_char(c: char) -> bool {
     c.is_alphanumeric() || c == '_' || c == '.'
 }
@@ -257,7 +272,7 @@ impl State<'_> {
                     arrow_col,
                     format!(
                         "unexpected '{found}' after node '{}': expected '->', '<->', ':' or the end of the line",
-                        self.graph.name(prev)
+                        clip(self.graph.name(prev))
                     ),
                 ));
             };
@@ -277,8 +292,8 @@ impl State<'_> {
                     node_col,
                     format!(
                         "self-loop: '{}' {arrow} '{}' (a variable cannot cause itself)",
-                        self.graph.name(prev),
-                        self.graph.name(next)
+                        clip(self.graph.name(prev)),
+                        clip(self.graph.name(next))
                     ),
                 ));
             }
@@ -293,8 +308,8 @@ impl State<'_> {
                 if !self.bidirected.insert(key) {
                     let msg = format!(
                         "duplicate edge '{}' <-> '{}' (ignored)",
-                        self.graph.name(prev),
-                        self.graph.name(next)
+                        clip(self.graph.name(prev)),
+                        clip(self.graph.name(next))
                     );
                     self.warn(line, arrow_col, msg);
                 } else {
@@ -310,8 +325,8 @@ impl State<'_> {
                 if !self.graph.add_edge(prev, next) {
                     let msg = format!(
                         "duplicate edge '{}' -> '{}' (ignored)",
-                        self.graph.name(prev),
-                        self.graph.name(next)
+                        clip(self.graph.name(prev)),
+                        clip(self.graph.name(next))
                     );
                     self.warn(line, arrow_col, msg);
                 } else {
@@ -412,7 +427,7 @@ impl State<'_> {
                 return Err(self.err(
                     line,
                     line.col(),
-                    format!("expected a number after level '{level}'"),
+                    format!("expected a number after level '{}'", clip(&level)),
                 ));
             };
             pairs.push((level, v));
@@ -454,7 +469,11 @@ impl State<'_> {
                 "intercept" | "sd" | "round" | "min" | "max" => {
                     line.skip_ws();
                     if !line.eat("=") {
-                        return Err(self.err(line, line.col(), format!("expected '=' after '{key}'")));
+                        return Err(self.err(
+                            line,
+                            line.col(),
+                            format!("expected '=' after '{}'", clip(&key)),
+                        ));
                     }
                     line.skip_ws();
                     let vcol = line.col();
@@ -474,7 +493,7 @@ impl State<'_> {
                     return Err(self.err(
                         line,
                         col,
-                        format!("unknown attribute '{other}': expected binary, latent, intercept=, sd=, round=, min=, max= or levels(...)"),
+                        format!("unknown attribute '{}': expected binary, latent, intercept=, sd=, round=, min=, max= or levels(...)", clip(other)),
                     ));
                 }
             }

@@ -187,6 +187,10 @@ pub struct Summary {
     pub acceleration: Option<f64>,
     /// Anything the reader should know about these intervals.
     pub warnings: Vec<String>,
+    /// Why there is no BCa interval, when there is none although enough
+    /// replicates succeeded. Kept apart from `warnings`: it matters only to
+    /// a reader who asked for the BCa interval.
+    pub bca_unavailable: Option<String>,
 }
 
 /// The `bootstrap` block of the JSON contract.
@@ -211,10 +215,14 @@ impl Summary {
             IntervalKind::Normal => self.normal,
         };
         ci.ok_or_else(|| {
-            let why = if self.warnings.is_empty() {
+            let mut reasons = self.warnings.clone();
+            if kind == IntervalKind::Bca {
+                reasons.extend(self.bca_unavailable.iter().cloned());
+            }
+            let why = if reasons.is_empty() {
                 String::from("not enough successful replicates")
             } else {
-                self.warnings.join("; ")
+                reasons.join("; ")
             };
             Error::Numerical(format!("no bootstrap {} interval: {why}", kind.name()))
         })
@@ -534,6 +542,7 @@ fn summarize(estimate: f64, values: &[f64], jack: &[f64], replicates: usize, lev
         bias_correction: None,
         acceleration: None,
         warnings: Vec::new(),
+        bca_unavailable: None,
     };
     if failed as f64 > FAILURE_WARNING_SHARE * replicates as f64 {
         warnings.push(format!(
@@ -564,15 +573,16 @@ fn summarize(estimate: f64, values: &[f64], jack: &[f64], replicates: usize, lev
     let at_or_below = ok.iter().filter(|&&x| x <= estimate).count() as f64;
     let share = (below + at_or_below) / (2.0 * k);
     let jack_failed = jack.iter().filter(|x| x.is_nan()).count();
+    let mut no_bca = |why: String| s.bca_unavailable = Some(why);
     if jack.is_empty() {
-        warnings.push("no BCa interval: the jackknife was not run".to_string());
+        no_bca("no BCa interval: the jackknife was not run".to_string());
     } else if jack_failed > 0 {
-        warnings.push(format!(
+        no_bca(format!(
             "no BCa interval: the statistic failed on {jack_failed} of {} jackknife samples",
             jack.len()
         ));
     } else if share <= 0.0 || share >= 1.0 {
-        warnings.push("no BCa interval: the estimate lies outside the bootstrap distribution".to_string());
+        no_bca("no BCa interval: the estimate lies outside the bootstrap distribution".to_string());
     } else {
         let z0 = normal_quantile(share)?;
         let a = acceleration(jack);
@@ -586,7 +596,10 @@ fn summarize(estimate: f64, values: &[f64], jack: &[f64], replicates: usize, lev
             (Some(p1), Some(p2)) => {
                 s.bca = Some([quantile_sorted(&ok, p1), quantile_sorted(&ok, p2)]);
             }
-            _ => warnings.push("no BCa interval: the acceleration is too large for this level".to_string()),
+            _ => {
+                s.bca_unavailable =
+                    Some("no BCa interval: the acceleration is too large for this level".to_string())
+            }
         }
         s.bias_correction = Some(z0);
         s.acceleration = Some(a);
