@@ -280,11 +280,19 @@ pub fn run(plan: &Plan, data: &Dataset, opts: &Options) -> Result<Analysis> {
         warnings.extend(run_bootstrap(&problem, &methods, &mut estimates, opts)?);
     }
     let diagnostics = match (problem.binary_exposure(), plan.strategy) {
-        (true, Strategy::Backdoor) => {
-            let d = estimate::diagnostics(&problem)?;
-            warnings.extend(d.warnings.iter().cloned());
-            Some(d)
-        }
+        (true, Strategy::Backdoor) => match estimate::diagnostics(&problem) {
+            Ok(d) => {
+                warnings.extend(d.warnings.iter().cloned());
+                Some(d)
+            }
+            // A separated propensity model leaves no weights to diagnose;
+            // the estimates that do not need them stand, with the reason.
+            Err(e @ Error::Numerical(_)) => {
+                warnings.push(format!("no propensity diagnostics: {e}"));
+                None
+            }
+            Err(e) => return Err(e),
+        },
         _ => None,
     };
     let (sensitivity, details) = sensitivity(&problem, &methods, &estimates, opts)?;
@@ -377,10 +385,21 @@ fn run_bootstrap(
                 .iter()
                 .map(|w| format!("{} bootstrap: {w}", item.estimate.method)),
         );
-        let block = s.block(opts.interval)?;
-        item.estimate.ci = block.ci;
-        item.estimate.ci_method = opts.interval.ci_method().to_string();
-        item.bootstrap = Some(block);
+        match s.block(opts.interval) {
+            Ok(block) => {
+                item.estimate.ci = block.ci;
+                item.estimate.ci_method = opts.interval.ci_method().to_string();
+                item.bootstrap = Some(block);
+            }
+            // The chosen interval cannot be formed (e.g. the jackknife behind
+            // BCa failed): the analytic interval stays, with the reason.
+            Err(e) => warnings.push(format!(
+                "{}: no {} interval ({}); the sandwich interval is kept",
+                item.estimate.method,
+                interval_label(opts.interval),
+                plain(&e)
+            )),
+        }
     }
     Ok(warnings)
 }
@@ -420,7 +439,13 @@ fn sensitivity(
         }
     };
     let rv = match &inputs {
-        Some(s) => Some(robustness_for(s, opts, &mut details)?),
+        Some(s) => match robustness_for(s, opts, &mut details) {
+            Ok(rv) => Some(rv),
+            Err(e) => {
+                details.notes.push(format!("no robustness value: {}", plain(&e)));
+                None
+            }
+        },
         None => {
             if linear {
                 details
@@ -463,6 +488,21 @@ fn evalue_for(
         None => sd(p.y()),
     };
     evalue::continuous(e.estimate, e.std_error, sd, opts.model.level)
+}
+
+/// An error's message without a flag name that belongs to another command.
+fn plain(e: &Error) -> String {
+    e.to_string()
+        .replace("--df ", "the residual degrees of freedom ")
+        .replace("--df", "the residual degrees of freedom")
+}
+
+fn interval_label(k: IntervalKind) -> &'static str {
+    match k {
+        IntervalKind::Bca => "BCa",
+        IntervalKind::Percentile => "percentile",
+        IntervalKind::Normal => "normal",
+    }
 }
 
 fn sd(y: &[f64]) -> f64 {

@@ -346,7 +346,7 @@ fn complete_separation_refuses_weighting_and_names_it() {
 /// The lead's analysis runs the propensity diagnostics even when only the
 /// regression method is asked for, so a separated exposure stops it.
 #[test]
-#[ignore = "bug in src/analysis.rs: diagnostics error under separation stops --method regression (reported)"]
+
 fn complete_separation_with_regression_only_gives_a_warned_estimate() {
     let (v, t) = json_and_text(&separated(), &["--method", "regression"]);
     assert_eq!(methods(&v), ["regression"]);
@@ -500,7 +500,7 @@ fn tiny_samples_warn_or_refuse() {
 /// The robustness value needs two; the analysis stops with an error about a
 /// flag (--df) of another command instead of leaving that part out.
 #[test]
-#[ignore = "bug in src/analysis.rs: robustness_for propagates the --df error of the sensitivity command (reported)"]
+
 fn one_residual_degree_of_freedom_leaves_the_robustness_value_out() {
     let four = "z,x,y\n0.1,0,1.0\n-0.5,1,2.5\n1.2,0,0.7\n0.3,1,3.1\n";
     let r = estimate(four, &["--format", "json"]);
@@ -530,7 +530,7 @@ fn failing_bootstrap_replicates_are_counted_and_warned() {
 /// some leave-one-out samples) stops the whole analysis with exit 1, where
 /// the analytic interval could be kept with a warning.
 #[test]
-#[ignore = "bug in src/analysis.rs: run_bootstrap fails the run when the chosen interval is unavailable (reported)"]
+
 fn unavailable_bca_interval_keeps_the_analytic_interval_with_a_warning() {
     let (v, t) = json_and_text(FIVE, &["--bootstrap", "60", "--interval", "bca"]);
     // Regression's BCa interval exists; IPW's jackknife fails (a leave-one-out

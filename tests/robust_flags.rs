@@ -70,7 +70,7 @@ fn negative_bootstrap() {
 /// flag parser as an unknown flag ("unexpected argument '-0' found"), so the
 /// message does not name the flag.
 #[test]
-#[ignore = "bug in src/cli/flags.rs: negative values are not parsed as values, so the flag is not named (reported)"]
+
 fn negative_values_name_their_flag() {
     expect(&estimate(&["--trim", "-0.1"]), 2, &["--trim"]);
     expect(&estimate(&["--level", "-0.5"]), 2, &["--level"]);

@@ -50,16 +50,21 @@ pub struct EstimateFlags {
     #[arg(long, default_value = "difference", value_name = "SCALE")]
     pub scale: String,
     /// Bootstrap replicates (0: analytic intervals only).
-    #[arg(long, default_value_t = 0, value_name = "N")]
+    #[arg(long, allow_negative_numbers = true, default_value_t = 0, value_name = "N")]
     pub bootstrap: usize,
     /// Bootstrap interval put in `ci`: percentile, bca or normal.
     #[arg(long, default_value = "percentile", value_name = "KIND")]
     pub interval: String,
     /// Confidence level, in (0, 1).
-    #[arg(long, default_value_t = 0.95, value_name = "LEVEL")]
+    #[arg(
+        long,
+        allow_negative_numbers = true,
+        default_value_t = 0.95,
+        value_name = "LEVEL"
+    )]
     pub level: f64,
     /// Clip propensity scores to [EPS, 1-EPS]; EPS in [0, 0.5).
-    #[arg(long, value_name = "EPS")]
+    #[arg(long, allow_negative_numbers = true, value_name = "EPS")]
     pub trim: Option<f64>,
     /// For a continuous exposure: compare the value B with the value A.
     #[arg(long, value_name = "A,B")]
@@ -68,17 +73,22 @@ pub struct EstimateFlags {
     #[arg(long, value_name = "A,B")]
     pub latent: Option<String>,
     /// Seed of the bootstrap's random streams.
-    #[arg(long, default_value_t = 1, value_name = "N")]
+    #[arg(long, allow_negative_numbers = true, default_value_t = 1, value_name = "N")]
     pub seed: u64,
     /// Worker threads for the bootstrap (0: all cores). Results do not depend on it.
-    #[arg(long, default_value_t = 0, value_name = "N")]
+    #[arg(long, allow_negative_numbers = true, default_value_t = 0, value_name = "N")]
     pub threads: usize,
     /// Also test the graph's implications against the data and report how
     /// many the data reject.
     #[arg(long)]
     pub check: bool,
     /// Level of the implication tests of --check, in (0, 1).
-    #[arg(long, default_value_t = 0.05, value_name = "ALPHA")]
+    #[arg(
+        long,
+        allow_negative_numbers = true,
+        default_value_t = 0.05,
+        value_name = "ALPHA"
+    )]
     pub alpha: f64,
     /// Print no progress bar and no warnings on stderr.
     #[arg(long)]
