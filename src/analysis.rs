@@ -369,12 +369,13 @@ fn run_bootstrap(
         bca: opts.interval == IntervalKind::Bca,
     };
     // A method that fails in a replicate gives NaN there: it is counted as
-    // failed for that method only.
+    // failed for that method only. The methods of one replicate share its
+    // model fits (each model is fitted once per resample).
     let draws = bootstrap::run(p.n(), &boot, |w| {
+        let shared = Warm::for_one_resample(&warm);
         Ok(methods
             .iter()
-            .zip(&warm)
-            .map(|(m, wm)| m.point(p, Some(w), Some(wm)).unwrap_or(f64::NAN))
+            .map(|m| m.point(p, Some(w), Some(&shared)).unwrap_or(f64::NAN))
             .collect())
     })?;
     let mut warnings = Vec::new();

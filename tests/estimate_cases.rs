@@ -192,3 +192,26 @@ fn bad_specifications_are_input_errors() {
     assert!(matches!(method("aipw").unwrap().estimate(&p), Err(Error::Input(m)) if m.contains("ATE only")));
     assert!(method("bogus").is_err());
 }
+
+// Methods that share one resample's fits (Warm::for_one_resample) give
+// exactly the estimates they give when each fits its own models (the fits
+// are the same computation; a closed-form identity, so equality is exact).
+#[test]
+fn shared_resample_fits_give_the_same_estimates() {
+    use causeway::estimate::Warm;
+    use causeway::infer::bootstrap::resample_weights;
+    let d = dataset(base(300, 5));
+    let p = Problem::build(&d, &spec(&["x", "g"])).unwrap();
+    let names = ["regression", "ipw", "aipw"];
+    let methods: Vec<_> = names.iter().map(|n| method(n).unwrap()).collect();
+    let warms: Vec<Warm> = methods.iter().map(|m| m.estimate(&p).unwrap().warm).collect();
+    for rep in 0..5 {
+        let w = resample_weights(p.n(), 11, rep);
+        let shared = Warm::for_one_resample(&warms);
+        for (m, own) in methods.iter().zip(&warms) {
+            let alone = m.point(&p, Some(&w), Some(own)).unwrap();
+            let together = m.point(&p, Some(&w), Some(&shared)).unwrap();
+            assert_eq!(alone.to_bits(), together.to_bits(), "{}", m.name());
+        }
+    }
+}

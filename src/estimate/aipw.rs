@@ -35,8 +35,8 @@ impl Aipw {
                 p.spec.estimand
             )));
         }
-        let ps = Propensity::fit(p, freq, warm.and_then(|w| w.propensity.as_ref()))?;
-        let om = OutcomeModel::fit(p, freq, warm.and_then(|w| w.outcome.as_ref()))?;
+        let ps = Propensity::fit(p, freq, warm)?;
+        let om = OutcomeModel::fit(p, freq, warm)?;
         let m1 = om.predict(p, Setting::Fixed(1.0));
         let m0 = om.predict(p, Setting::Fixed(0.0));
         Ok(Fits { om, ps, m1, m0 })
@@ -148,6 +148,7 @@ impl Method for Aipw {
             warm: Warm {
                 propensity: Some(f.ps.fit.coef.clone()),
                 outcome: Some(f.om.coef.clone()),
+                ..Warm::default()
             },
         })
     }

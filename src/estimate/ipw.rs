@@ -61,7 +61,7 @@ impl Method for Ipw {
 
     fn point(&self, p: &Problem, freq: Option<&[f64]>, warm: Option<&Warm>) -> Result<f64> {
         p.require_binary_exposure(self.name())?;
-        let ps = Propensity::fit(p, freq, warm.and_then(|w| w.propensity.as_ref()))?;
+        let ps = Propensity::fit(p, freq, warm)?;
         let (mu1, mu0) = self.means(p, &ps, freq)?;
         effect(p.spec.scale, mu1, mu0)
     }
@@ -142,6 +142,7 @@ impl Method for Ipw {
             warm: Warm {
                 propensity: Some(ps.fit.coef.clone()),
                 outcome: None,
+                ..Warm::default()
             },
         })
     }

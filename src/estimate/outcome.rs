@@ -4,7 +4,7 @@
 //! exposure set to a value; and the coefficients' influence on a linear
 //! functional.
 
-use super::Problem;
+use super::{Problem, Warm};
 use crate::data::{Design, Setting};
 use crate::model::{Chol, Logit, LogitOptions, Ols, Separation, expit, linear_predictor, weighted_sum};
 use crate::{Error, Result};
@@ -30,8 +30,19 @@ pub(crate) struct OutcomeModel<'a> {
 impl<'a> OutcomeModel<'a> {
     /// Fits the problem's outcome design with frequency weights `w`; the
     /// full-sample fit (`w` = None) is made once per problem and shared.
-    pub fn fit(p: &'a Problem, w: Option<&[f64]>, warm: Option<&DVector<f64>>) -> Result<OutcomeModel<'a>> {
+    pub fn fit(p: &'a Problem, w: Option<&[f64]>, warm: Option<&Warm>) -> Result<OutcomeModel<'a>> {
+        let shared = warm.and_then(|x| x.shared.as_deref());
+        let warm = warm.and_then(|x| x.outcome.as_ref());
         let f = match (w, p.cache.outcome.get()) {
+            (Some(_), _) if shared.is_some_and(|c| c.outcome.get().is_some()) => shared
+                .and_then(|c| c.outcome.get())
+                .cloned()
+                .expect("checked above"),
+            (Some(_), _) if shared.is_some() => {
+                let f = OutcomeModel::compute(p, w, warm)?;
+                let _ = shared.map(|c| c.outcome.set(f.clone()));
+                f
+            }
             (None, Some(f)) => f.clone(),
             (None, None) => {
                 let f = OutcomeModel::compute(p, None, warm)?;

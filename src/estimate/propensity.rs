@@ -5,7 +5,7 @@
 //! and 1). The ATE weights follow Hernán & Robins, *Causal Inference: What
 //! If*, 2020, ch. 12; the ATT and ATC forms are common practice, no source.
 
-use super::{Estimand, Problem};
+use super::{Estimand, Problem, Warm};
 use crate::data::Setting;
 use crate::model::{Logit, LogitOptions, expit, linear_predictor};
 use crate::{Error, Result};
@@ -26,11 +26,17 @@ impl Propensity {
     /// Fits with frequency weights `w`; the full-sample fit (`w` = None) is
     /// made once per problem and shared. Refuses (an error) when the
     /// exposure is separated, since the weights would be unbounded.
-    pub fn fit<'a>(
-        p: &'a Problem,
-        w: Option<&[f64]>,
-        warm: Option<&DVector<f64>>,
-    ) -> Result<Cow<'a, Propensity>> {
+    pub fn fit<'a>(p: &'a Problem, w: Option<&[f64]>, warm: Option<&Warm>) -> Result<Cow<'a, Propensity>> {
+        let shared = warm.and_then(|x| x.shared.as_deref());
+        let warm = warm.and_then(|x| x.propensity.as_ref());
+        if let (Some(_), Some(c)) = (w, shared) {
+            if let Some(f) = c.propensity.get() {
+                return Ok(Cow::Owned(f.clone()));
+            }
+            let f = Propensity::compute(p, w, warm)?;
+            let _ = c.propensity.set(f.clone());
+            return Ok(Cow::Owned(f));
+        }
         if w.is_none() {
             if let Some(c) = p.cache.propensity.get() {
                 return Ok(Cow::Borrowed(c));

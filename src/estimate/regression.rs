@@ -34,7 +34,7 @@ pub(crate) fn group_weights(p: &Problem, freq: Option<&[f64]>) -> Vec<f64> {
 
 impl Regression {
     fn fit<'a>(&self, p: &'a Problem, freq: Option<&[f64]>, warm: Option<&Warm>) -> Result<OutcomeModel<'a>> {
-        OutcomeModel::fit(p, freq, warm.and_then(|w| w.outcome.as_ref()))
+        OutcomeModel::fit(p, freq, warm)
     }
 }
 
@@ -131,6 +131,7 @@ impl Method for Regression {
             warm: Warm {
                 propensity: None,
                 outcome: Some(m.coef.clone()),
+                ..Warm::default()
             },
         })
     }

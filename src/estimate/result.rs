@@ -84,12 +84,42 @@ impl std::fmt::Display for Scale {
 
 /// Model coefficients from a full-sample fit, to start the fits of
 /// bootstrap replicates from.
-#[derive(Debug, Clone, Default)]
+///
+/// A warm start made by [`Warm::for_one_resample`] also keeps the models
+/// fitted under the weights of the calls it is used in, so that the methods
+/// evaluated on one resample fit each model once; use it for one weight
+/// vector only. Any other warm start (and every clone) keeps nothing.
+#[derive(Debug, Default)]
 pub struct Warm {
     /// Propensity-model coefficients.
     pub propensity: Option<DVector<f64>>,
     /// Outcome-model coefficients.
     pub outcome: Option<DVector<f64>>,
+    /// Fits under the current resample's weights, when shared.
+    pub(crate) shared: Option<Box<super::problem::Cache>>,
+}
+
+impl Clone for Warm {
+    fn clone(&self) -> Self {
+        Warm {
+            propensity: self.propensity.clone(),
+            outcome: self.outcome.clone(),
+            shared: None,
+        }
+    }
+}
+
+impl Warm {
+    /// A warm start for one resample, starting from these coefficients (or,
+    /// where missing, from `other`'s), whose fits are shared by every method
+    /// called with it.
+    pub fn for_one_resample(starts: &[Warm]) -> Warm {
+        Warm {
+            propensity: starts.iter().find_map(|w| w.propensity.clone()),
+            outcome: starts.iter().find_map(|w| w.outcome.clone()),
+            shared: Some(Box::default()),
+        }
+    }
 }
 
 /// The mean outcome under each of the two exposure settings compared.
