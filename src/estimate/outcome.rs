@@ -75,10 +75,19 @@ impl<'a> OutcomeModel<'a> {
         // Under separation the information matrix is near singular and a
         // column may look aliased there while its coefficient is simply not
         // updated; otherwise an aliased exposure (e.g. a replicate with no
-        // exposed rows) makes the fit meaningless.
-        let exposure_aliased = chol
-            .aliased()
-            .contains(&design.exposure_term().unwrap_or(usize::MAX));
+        // exposed rows) makes the fit meaningless. The factorization takes
+        // the exposure before the covariates, so an exposure that the
+        // covariates explain (a replicate where it copies one of them) shows
+        // as an aliased covariate instead, its effect absorbed by the
+        // exposure coefficient: when a column is aliased (terms aliased in
+        // the full data are already dropped, so this is rare), decide again
+        // with the covariates first, as for the full data.
+        let exposure = design.exposure_term().unwrap_or(usize::MAX);
+        let exposure_aliased = match chol.aliased() {
+            a if a.is_empty() => false,
+            a if a.contains(&exposure) => true,
+            _ => super::problem::aliased(design, &p.frame, w).contains(&exposure),
+        };
         if exposure_aliased && separation.is_none() {
             return Err(Error::Numerical(
                 "the exposure term is aliased in the outcome model".into(),

@@ -99,13 +99,13 @@ pub(crate) struct Cache {
     pub outcome: OnceLock<OutcomeFit>,
 }
 
-/// Aliased terms of `design`, taken in the order intercept, adjustment
-/// terms, exposure, exposure products: the exposure counts as aliased when
-/// the adjustment terms explain it, and a product when the terms before it
-/// do.
-fn aliased(design: &Design, frame: &Frame) -> Vec<usize> {
-    let c = accumulate(&design.rows(frame, Setting::Observed), None, |_, _| {
-        (1.0, 0.0, 0.0, 0.0)
+/// Aliased terms of `design` under frequency weights `w` (`None`: all
+/// ones), taken in the order intercept, adjustment terms, exposure,
+/// exposure products: the exposure counts as aliased when the adjustment
+/// terms explain it, and a product when the terms before it do.
+pub(super) fn aliased(design: &Design, frame: &Frame, w: Option<&[f64]>) -> Vec<usize> {
+    let c = accumulate(&design.rows(frame, Setting::Observed), None, |i, _| {
+        (w.map_or(1.0, |w| w[i]), 0.0, 0.0, 0.0)
     });
     let terms = design.terms();
     let a = design.exposure_col();
@@ -197,7 +197,7 @@ impl Problem {
             .collect();
         // One design, centred and checked once; the others are its subsets.
         let full = Design::build(&frame, Some(exposure), &covariates, spec.shape, &interact);
-        let drop = aliased(&full, &frame);
+        let drop = aliased(&full, &frame, None);
         if drop.iter().any(|&j| Some(j) == full.exposure_term()) {
             let few = if sample.used <= full.ncols() {
                 format!(
