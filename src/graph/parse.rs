@@ -430,7 +430,7 @@ impl State<'_> {
                 ));
             };
             // 'a-1' or '0-8' is not read as level 'a' with -1: a space is needed.
-            if !matches!(line.peek(), Some(c) if c.is_whitespace()) {
+            if matches!(line.peek(), Some(c) if c.is_ascii_digit() || "+-.".contains(c)) {
                 return Err(self.err(
                     line,
                     line.col(),
