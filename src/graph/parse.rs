@@ -398,12 +398,19 @@ impl State<'_> {
         let open = line.col();
         line.pos += 1;
         line.skip_ws();
+        let start = line.pos;
         if let Some(v) = line.number() {
+            let token_is_word = line.chars[start..line.pos].iter().all(|&c| is_name_char(c));
             line.skip_ws();
-            if !line.eat(")") {
+            if line.eat(")") {
+                return Ok(Coef::Value(v));
+            }
+            // A number followed by more is a level named by a number, as in
+            // '(2 0.5, 3 0.7)' for a parent with levels 1, 2 and 3.
+            if !token_is_word || line.at_end() {
                 return Err(self.err(line, line.col(), "expected ')' after the coefficient"));
             }
-            return Ok(Coef::Value(v));
+            line.pos = start;
         }
         let pairs = self.level_list(line, open)?;
         Ok(Coef::Levels(pairs))
@@ -422,6 +429,14 @@ impl State<'_> {
                     "expected a number, or 'level number' pairs separated by commas, inside the parentheses",
                 ));
             };
+            // 'a-1' or '0-8' is not read as level 'a' with -1: a space is needed.
+            if matches!(line.peek(), Some(c) if c.is_ascii_digit() || "+-.".contains(c)) {
+                return Err(self.err(
+                    line,
+                    line.col(),
+                    format!("expected a space, then a number, after level '{}'", clip(&level)),
+                ));
+            }
             line.skip_ws();
             let Some(v) = line.number() else {
                 return Err(self.err(
@@ -565,6 +580,31 @@ mod tests {
         let p = parse("a -> b\na -> b\n", "g.txt").unwrap();
         assert_eq!(p.warnings.len(), 1);
         assert!(p.warnings[0].message.starts_with("g.txt:2:3: duplicate edge"));
+    }
+
+    #[test]
+    fn numeric_level_names_and_spaces_in_level_lists() {
+        // Found by the graph_parse fuzz target: '(0-8)' was read as level
+        // '0' with coefficient -8, and printed as '(0 -8)', which did not parse.
+        let e = parse("z -> x (0-8)\n", "g.txt").unwrap_err();
+        assert_eq!((e.line, e.col), (1, 10), "{e}");
+        assert!(
+            e.message
+                .contains("expected a space, then a number, after level '0'"),
+            "{e}"
+        );
+        let p = parse("edu -> y (2 0.5, 3 -0.7)\nz -> y (1e5)\n", "g.txt").unwrap();
+        let g = &p.graph;
+        let (edu, y, z) = (g.node("edu").unwrap(), g.node("y").unwrap(), g.node("z").unwrap());
+        assert_eq!(
+            g.coef(edu, y),
+            Some(&Coef::Levels(vec![("2".into(), 0.5), ("3".into(), -0.7)]))
+        );
+        assert_eq!(g.coef(z, y), Some(&Coef::Value(1e5)));
+        let again = parse(&g.to_text(), "printed").unwrap().graph;
+        assert_eq!(again.to_text(), g.to_text());
+        assert!(parse("z -> y (-1 2)\n", "g.txt").is_err());
+        assert!(parse("z -> y (2\n", "g.txt").is_err());
     }
 
     #[test]
