@@ -331,3 +331,61 @@ fn threads_do_not_change_the_json() {
     let v: Value = serde_json::from_str(&one).unwrap();
     assert!(v["estimates"][0]["bootstrap"]["replicates"] == 50);
 }
+
+/// `sensitivity --df 1e9` used to run forever: the t quantile's inversion
+/// in statrs does not return at such degrees of freedom (now an expansion
+/// is used above 1e5; see tests/sensitivity.rs).
+#[test]
+fn huge_degrees_of_freedom_finish() {
+    let dir = tempfile::tempdir().unwrap();
+    for df in ["1e9", "1e300"] {
+        let r = cw(
+            dir.path(),
+            &[
+                "sensitivity",
+                "--estimate",
+                "0.5",
+                "--se",
+                "0.1",
+                "--df",
+                df,
+                "--format",
+                "json",
+            ],
+        );
+        assert_eq!(r.code, 0, "{}", r.stderr);
+        let v: Value = serde_json::from_str(&r.stdout).unwrap();
+        assert!(v["robustness_value"]["rv"].as_f64().unwrap() > 0.0);
+    }
+}
+
+#[test]
+fn negative_summary_numbers_name_their_flag() {
+    let dir = tempfile::tempdir().unwrap();
+    let cases: &[(&[&str], &str)] = &[
+        (&["--smd", "0.5", "--se", "-1"], "--se"),
+        (&["--rr", "2", "--ci", "-1,3"], "--ci"),
+        (&["--estimate", "1", "--se", "1", "--df", "-3"], "--df"),
+        (&["--estimate", "1", "--se", "1", "--df", "9", "--q", "-1"], "--q"),
+        (
+            &[
+                "--estimate",
+                "1",
+                "--se",
+                "1",
+                "--df",
+                "9",
+                "--r2-exposure",
+                "-0.1",
+                "--r2-outcome",
+                "0.1",
+            ],
+            "--r2-exposure",
+        ),
+    ];
+    for (args, flag) in cases {
+        let mut a = vec!["sensitivity"];
+        a.extend_from_slice(args);
+        expect(&cw(dir.path(), &a), 2, &[flag]);
+    }
+}

@@ -384,3 +384,22 @@ fn two_panel_figure_from_the_library() {
     assert!(t.iter().any(|s| s == "Partial R\u{b2} scale"));
     assert!(t.iter().any(|s| s.contains("observed covariate")));
 }
+
+/// Student t quantiles at 9.9e4 to 1e300 degrees of freedom against
+/// scipy.stats.t.ppf (tests/scripts/make_t_large_df_fixture.py). Above 1e5
+/// the expansion around the normal quantile is used; its accuracy is that of
+/// the normal quantile (statrs, about 1e-11), hence 1e-9 relative. Before
+/// the expansion, t_quantile did not return for df of about 1e8 and more.
+#[test]
+fn quantiles_at_large_df_match_scipy() {
+    let text = std::fs::read_to_string(crate::helpers::fixture("t_quantile_large_df.json")).unwrap();
+    let r: serde_json::Value = serde_json::from_str(&text).unwrap();
+    for row in r["t_quantile"].as_array().unwrap() {
+        let (p, df, want) = (f(&row[0]), f(&row[1]), f(&row[2]));
+        let got = t_quantile(p, df).unwrap();
+        assert!(
+            (got - want).abs() < 1e-9 * want.abs().max(1.0),
+            "t({p}, {df}): {got} vs {want}"
+        );
+    }
+}

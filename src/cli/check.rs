@@ -35,7 +35,7 @@ pub struct Args {
     #[arg(long, value_name = "CSV")]
     data: PathBuf,
     /// Level at which an adjusted p-value rejects a claim.
-    #[arg(long, default_value_t = 0.05, value_name = "A")]
+    #[arg(long, default_value_t = 0.05, value_name = "A", allow_negative_numbers = true)]
     alpha: f64,
     /// Multiplicity adjustment: holm (family-wise error rate) or bh
     /// (Benjamini-Hochberg, false discovery rate).

@@ -224,6 +224,9 @@ impl DataSource {
                 stdin: Some(bytes),
             });
         }
+        if path.is_dir() {
+            return Err(Error::input(format!("--data {shown}: is a folder, not a CSV file")));
+        }
         if !path.is_file() {
             return Err(Error::input(format!("--data {shown}: no such file")));
         }

@@ -46,34 +46,34 @@ pub struct Args {
     #[arg(long, value_name = "B", allow_negative_numbers = true)]
     estimate: Option<f64>,
     /// Confidence interval of the ratio, as LOWER,UPPER.
-    #[arg(long, value_name = "LO,HI")]
+    #[arg(long, value_name = "LO,HI", allow_hyphen_values = true)]
     ci: Option<String>,
     /// The outcome is common (above about 15%): convert the odds or hazard
     /// ratio to an approximate risk ratio.
     #[arg(long)]
     common_outcome: bool,
     /// Standard error of --smd or --estimate.
-    #[arg(long, value_name = "SE")]
+    #[arg(long, value_name = "SE", allow_negative_numbers = true)]
     se: Option<f64>,
     /// Residual degrees of freedom of the regression behind --estimate.
-    #[arg(long, value_name = "DF")]
+    #[arg(long, value_name = "DF", allow_negative_numbers = true)]
     df: Option<f64>,
     /// Proportion of the estimate to explain away (1 = all of it).
-    #[arg(long, value_name = "Q")]
+    #[arg(long, value_name = "Q", allow_negative_numbers = true)]
     q: Option<f64>,
     /// Significance level for the robustness value and adjusted intervals.
-    #[arg(long, value_name = "ALPHA")]
+    #[arg(long, value_name = "ALPHA", allow_negative_numbers = true)]
     alpha: Option<f64>,
     /// Confidence level of the interval for --smd.
-    #[arg(long, value_name = "LEVEL")]
+    #[arg(long, value_name = "LEVEL", allow_negative_numbers = true)]
     level: Option<f64>,
     /// Hypothesised partial R2 of a confounder with the exposure (comma-separated
     /// list, paired with --r2-outcome).
-    #[arg(long, value_name = "R[,R...]")]
+    #[arg(long, value_name = "R[,R...]", allow_hyphen_values = true)]
     r2_exposure: Option<String>,
     /// Hypothesised partial R2 of a confounder with the outcome (comma-separated
     /// list, paired with --r2-exposure).
-    #[arg(long, value_name = "R[,R...]")]
+    #[arg(long, value_name = "R[,R...]", allow_hyphen_values = true)]
     r2_outcome: Option<String>,
     /// text (a readable summary) or json.
     #[arg(long, default_value = "text", value_parser = ["text", "json"])]

@@ -40,6 +40,9 @@ pub fn t_quantile(p: f64, df: f64) -> Result<f64> {
             "t quantile: degrees of freedom {df} must be positive and finite"
         )));
     }
+    if df > LARGE_DF {
+        return Ok(t_quantile_large_df(normal_quantile(p)?, df));
+    }
     let t = StudentsT::new(0.0, 1.0, df)
         .map_err(|e| Error::Numerical(format!("t distribution with df {df}: {e}")))?;
     let mut x = t.inverse_cdf(p);
@@ -58,6 +61,26 @@ pub fn t_quantile(p: f64, df: f64) -> Result<f64> {
         }
     }
     Ok(x)
+}
+
+/// Above this many degrees of freedom the t quantile comes from its
+/// expansion around the normal quantile: statrs's inversion does not return
+/// for df of about 1e8 and more, and its distribution function loses
+/// accuracy there.
+pub const LARGE_DF: f64 = 1e5;
+
+/// The Cornish-Fisher expansion of the t quantile in powers of 1/df, from
+/// the normal quantile `z` (Abramowitz & Stegun, Handbook of Mathematical
+/// Functions, 1964, 26.7.5, from memory; checked against scipy in
+/// tests/sensitivity.rs). Above [`LARGE_DF`] the first omitted term is below
+/// 1e-20.
+fn t_quantile_large_df(z: f64, df: f64) -> f64 {
+    let z2 = z * z;
+    let g1 = z * (z2 + 1.0) / 4.0;
+    let g2 = z * ((5.0 * z2 + 16.0) * z2 + 3.0) / 96.0;
+    let g3 = z * (((3.0 * z2 + 19.0) * z2 + 17.0) * z2 - 15.0) / 384.0;
+    let g4 = z * ((((79.0 * z2 + 776.0) * z2 + 1482.0) * z2 - 1920.0) * z2 - 945.0) / 92160.0;
+    z + (g1 + (g2 + (g3 + g4 / df) / df) / df) / df
 }
 
 /// The two-sided critical value for a `level` interval: the normal quantile
