@@ -225,7 +225,9 @@ impl DataSource {
             });
         }
         if path.is_dir() {
-            return Err(Error::input(format!("--data {shown}: is a folder, not a CSV file")));
+            return Err(Error::input(format!(
+                "--data {shown}: is a folder, not a CSV file"
+            )));
         }
         if !path.is_file() {
             return Err(Error::input(format!("--data {shown}: no such file")));
