@@ -3,12 +3,10 @@
 
 use super::common::{FormatArg, command_line, load_graph, split_list};
 use causeway::check::{CheckOptions, Correction, run as check};
-use causeway::data::{Dataset, ReadOptions};
 use causeway::report::doc::{FileStamp, ToolInfo};
 use causeway::report::{Format, Stamp, check_text::report_doc};
 use causeway::{Error, Result};
-use std::io::{Read, Write};
-use std::path::Path;
+use std::io::Write;
 use std::path::PathBuf;
 
 /// Test the graph's implications against the data.
@@ -55,24 +53,6 @@ pub struct Args {
     quiet: bool,
 }
 
-/// Reads the data, keeping only the graph's nodes; returns it with the
-/// stamp of the bytes read.
-fn load_data(path: &Path, keep: Vec<String>) -> Result<(Dataset, FileStamp)> {
-    let opts = ReadOptions { keep: Some(keep) };
-    let (bytes, source) = if path.as_os_str() == "-" {
-        let mut bytes = Vec::new();
-        std::io::stdin()
-            .read_to_end(&mut bytes)
-            .map_err(|e| Error::io("<stdin>", e))?;
-        (bytes, "<stdin>".to_string())
-    } else {
-        let bytes = std::fs::read(path).map_err(|e| Error::io(path, e))?;
-        (bytes, path.display().to_string())
-    };
-    let data = Dataset::read(&bytes[..], &source, &opts)?;
-    Ok((data, FileStamp::of(&source, &bytes)))
-}
-
 /// Runs the command.
 pub fn run(a: Args) -> Result<i32> {
     if !(a.alpha > 0.0 && a.alpha < 1.0) {
@@ -84,7 +64,9 @@ pub fn run(a: Args) -> Result<i32> {
     let g = load_graph(&a.graph, a.quiet)?;
     let graph_bytes = std::fs::read(&a.graph).map_err(|e| Error::io(&a.graph, e))?;
     let keep: Vec<String> = (0..g.len()).map(|v| g.name(v).to_string()).collect();
-    let (data, data_stamp) = load_data(&a.data, keep)?;
+    let source = super::flags::DataSource::open(&a.data)?;
+    let data = source.load(keep)?;
+    let data_stamp = source.stamp()?;
     let opts = CheckOptions {
         alpha: a.alpha,
         correction: if a.correction == "bh" {

@@ -42,13 +42,6 @@ pub struct SensitivityInputs {
     pub terms: Vec<TermStat>,
 }
 
-impl SensitivityInputs {
-    /// Partial R2 of a t statistic with `df` degrees of freedom.
-    pub fn partial_r2(t: f64, df: f64) -> f64 {
-        t * t / (t * t + df)
-    }
-}
-
 /// The inputs, or `None` when the outcome is binary (no linear model).
 pub fn sensitivity_inputs(p: &Problem) -> Result<Option<SensitivityInputs>> {
     if p.binary_outcome() {
