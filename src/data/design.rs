@@ -9,7 +9,7 @@
 //! keeps every prediction and slope; it only moves the intercept, see
 //! [`Design::uncenter`]) so that cross-products stay well conditioned.
 
-use super::{Frame, Kind, Rows, rcs_basis, rcs_knots, reduce};
+use super::{Frame, Kind, Rows, Store, rcs_basis, rcs_knots, reduce};
 use nalgebra::{DMatrix, DVector};
 
 /// How continuous covariates enter a model.
@@ -314,6 +314,7 @@ impl Design {
             design: self,
             frame,
             setting,
+            store: None,
         }
     }
 
@@ -341,9 +342,22 @@ pub struct DesignRows<'a> {
     design: &'a Design,
     frame: &'a Frame,
     setting: Setting,
+    store: Option<&'a Store>,
 }
 
-impl DesignRows<'_> {
+impl<'a> DesignRows<'a> {
+    /// The same rows read from `store`, which must hold exactly these rows
+    /// (see [`Store::of`]); `None` keeps filling them on demand.
+    pub fn with_store(self, store: Option<&'a Store>) -> DesignRows<'a> {
+        if let Some(s) = store {
+            assert!(
+                s.nrows() == self.nrows() && s.ncols() == self.ncols(),
+                "store of another design"
+            );
+        }
+        DesignRows { store, ..self }
+    }
+
     fn factor(&self, f: &Factor, start: usize, out: &mut [f64], multiply: bool) {
         let src = &self.frame.col(f.col)[start..start + out.len()];
         // The exposure's value as a*x + b: observed (1, 0), fixed (0, v),
@@ -379,7 +393,15 @@ impl Rows for DesignRows<'_> {
         self.design.terms.len()
     }
 
+    fn stored(&self, start: usize, len: usize) -> Option<&[f64]> {
+        self.store.and_then(|s| s.block(start, len))
+    }
+
     fn fill(&self, start: usize, len: usize, out: &mut [f64]) {
+        if let Some(x) = self.stored(start, len) {
+            out.copy_from_slice(x);
+            return;
+        }
         for (j, term) in self.design.terms.iter().enumerate() {
             let col = &mut out[j * len..(j + 1) * len];
             if term.factors.is_empty() {

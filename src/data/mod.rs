@@ -9,7 +9,8 @@
 //! - [`Design`] lists model terms (intercept, binary, dummies of categorical
 //!   columns, linear / quadratic / restricted cubic spline terms of continuous
 //!   ones, exposure products) and fills blocks of rows on demand through
-//!   [`Rows`], so no `n x p` matrix is ever stored. The spline basis follows
+//!   [`Rows`]; a [`Store`] keeps a design's rows in memory when they fit a
+//!   fixed budget, so that repeated passes read them instead. The spline basis follows
 //!   Harrell, *Regression Modeling Strategies*, 2nd ed. (2015), sec. 2.4.5.
 //!
 //! Missing values are the tokens empty, `NA`, `NaN` and `.`; a row missing
@@ -24,14 +25,16 @@ mod pass;
 mod read;
 mod sample;
 mod spline;
+mod store;
 
 pub use column::{Cell, Column};
 pub use design::{Design, DesignRows, Factor, Setting, Shape, Term, Transform, covariate_terms};
 pub use frame::{Frame, Kind, Role};
-pub use pass::{BLOCK, Block, DenseRows, Rows, map_rows, reduce};
+pub use pass::{BLOCK, Block, DenseRows, Rows, map_rows, reduce, with_buffer};
 pub use read::ReadOptions;
 pub use sample::Sample;
 pub use spline::{rcs_basis, rcs_knots};
+pub use store::Store;
 
 /// A CSV file read into columns.
 #[derive(Debug, Clone)]

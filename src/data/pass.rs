@@ -1,9 +1,14 @@
 //! Passes over the rows of a design in fixed blocks, in parallel (rayon),
 //! with partial results combined in block order so that results do not
 //! depend on the number of threads.
+//!
+//! A source that keeps its rows in memory ([`Store`](super::Store)) lends
+//! each block as it is; any other source fills a buffer that is kept per
+//! thread between passes ([`with_buffer`]).
 
 use nalgebra::DMatrix;
 use rayon::prelude::*;
+use std::cell::Cell;
 
 /// Rows per block.
 pub const BLOCK: usize = 2048;
@@ -19,6 +24,39 @@ pub trait Rows: Sync {
     /// Writes rows `start..start + len` into `out`, column-major with
     /// leading dimension `len` (`out.len() == len * ncols()`).
     fn fill(&self, start: usize, len: usize, out: &mut [f64]);
+    /// Rows `start..start + len` as kept in memory, laid out as by
+    /// [`Rows::fill`], when the source keeps them (`start` is a multiple of
+    /// [`BLOCK`] and `len` that block's length). `None`: call `fill`.
+    fn stored(&self, _start: usize, _len: usize) -> Option<&[f64]> {
+        None
+    }
+}
+
+thread_local! {
+    static BUFFERS: Cell<Vec<Vec<f64>>> = const { Cell::new(Vec::new()) };
+}
+
+/// Runs `f` with a scratch vector taken from the calling thread's spares
+/// (or a new one) and returns it there afterwards, so passes over the rows
+/// do not allocate and clear a block-sized buffer each time. Re-entrant: a
+/// nested call (rayon may run another task while one waits) takes another
+/// vector. The contents on entry are unspecified.
+pub fn with_buffer<T>(f: impl FnOnce(&mut Vec<f64>) -> T) -> T {
+    let mut buf = BUFFERS.with(|b| {
+        let mut spare = b.take();
+        let v = spare.pop();
+        b.set(spare);
+        v.unwrap_or_default()
+    });
+    let out = f(&mut buf);
+    BUFFERS.with(|b| {
+        let mut spare = b.take();
+        if spare.len() < 4 {
+            spare.push(buf);
+        }
+        b.set(spare);
+    });
+    out
 }
 
 /// One block of rows, column-major.
@@ -30,7 +68,7 @@ pub struct Block<'a> {
     /// Number of columns.
     pub p: usize,
     /// `len * p` values, column `j` at `j*len .. (j+1)*len`.
-    pub x: &'a mut [f64],
+    pub x: &'a [f64],
 }
 
 impl Block<'_> {
@@ -45,19 +83,23 @@ impl Block<'_> {
     }
 }
 
-fn fill_block<'a, R: Rows + ?Sized>(rows: &R, b: usize, buf: &'a mut Vec<f64>) -> Block<'a> {
+/// Block `b` of `rows`, lent by the source or filled into `buf`.
+fn fill_block<'a, R: Rows + ?Sized>(rows: &'a R, b: usize, buf: &'a mut Vec<f64>) -> Block<'a> {
     let n = rows.nrows();
     let p = rows.ncols();
     let start = b * BLOCK;
     let len = BLOCK.min(n - start);
-    buf.resize(len * p, 0.0);
-    rows.fill(start, len, &mut buf[..len * p]);
-    Block {
-        start,
-        len,
-        p,
-        x: &mut buf[..len * p],
-    }
+    let x = match rows.stored(start, len) {
+        Some(x) => x,
+        None => {
+            if buf.len() < len * p {
+                buf.resize(len * p, 0.0);
+            }
+            rows.fill(start, len, &mut buf[..len * p]);
+            &buf[..len * p]
+        }
+    };
+    Block { start, len, p, x }
 }
 
 /// Folds every block into a `T`: `step` runs on consecutive blocks of a
@@ -67,20 +109,21 @@ where
     R: Rows + ?Sized,
     T: Send,
     I: Fn() -> T + Sync,
-    S: Fn(&mut T, &mut Block) + Sync,
+    S: Fn(&mut T, &Block) + Sync,
     M: FnMut(&mut T, T),
 {
     let nblocks = rows.nrows().div_ceil(BLOCK);
     let ngroups = nblocks.div_ceil(GROUP);
     let parts: Vec<T> = (0..ngroups)
         .into_par_iter()
-        .map_init(Vec::new, |buf, g| {
-            let mut acc = init();
-            for b in g * GROUP..((g + 1) * GROUP).min(nblocks) {
-                let mut block = fill_block(rows, b, buf);
-                step(&mut acc, &mut block);
-            }
-            acc
+        .map(|g| {
+            with_buffer(|buf| {
+                let mut acc = init();
+                for b in g * GROUP..((g + 1) * GROUP).min(nblocks) {
+                    step(&mut acc, &fill_block(rows, b, buf));
+                }
+                acc
+            })
         })
         .collect();
     let mut it = parts.into_iter();
@@ -99,12 +142,9 @@ where
     F: Fn(&Block, &mut [f64]) + Sync,
 {
     assert_eq!(out.len(), rows.nrows(), "output length");
-    out.par_chunks_mut(BLOCK)
-        .enumerate()
-        .for_each_init(Vec::new, |buf, (b, chunk)| {
-            let block = fill_block(rows, b, buf);
-            f(&block, chunk);
-        });
+    out.par_chunks_mut(BLOCK).enumerate().for_each(|(b, chunk)| {
+        with_buffer(|buf| f(&fill_block(rows, b, buf), chunk));
+    });
 }
 
 /// Rows of a stored matrix (for tests and small problems).

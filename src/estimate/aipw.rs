@@ -82,7 +82,7 @@ impl Method for Aipw {
         let observed = f.om.predict(p, Setting::Observed);
         let (a, y, e) = (p.a(), p.y(), &f.ps.e);
         let de = |i: usize| if f.ps.clipped(i) { 0.0 } else { e[i] * (1.0 - e[i]) };
-        let prop_rows = p.propensity.rows(&p.frame, Setting::Observed);
+        let prop_rows = p.propensity_rows();
         // Influence of arm `arm` (1 or 0), given the augmented terms `t`:
         // d/d beta = (1 - R/q) dm, d/d e = -/+ R (Y - m) / q^2 with
         // R = 1{A = arm} and q = P(A = arm | L).
@@ -146,7 +146,7 @@ impl Method for Aipw {
             )],
             warnings,
             warm: Warm {
-                propensity: Some(f.ps.fit.coef.clone()),
+                propensity: Some(f.ps.coef.clone()),
                 outcome: Some(f.om.coef.clone()),
                 ..Warm::default()
             },

@@ -13,7 +13,6 @@
 use super::propensity::{Propensity, arm_weights};
 use super::{Estimand, Problem};
 use crate::Result;
-use crate::data::Setting;
 use serde::Serialize;
 
 /// Smallest and largest value.
@@ -243,7 +242,7 @@ fn balance(p: &Problem, h1: &[f64], h0: &[f64]) -> Vec<Balance> {
     let a = p.a();
     let r1: Vec<f64> = a.to_vec();
     let r0: Vec<f64> = a.iter().map(|x| 1.0 - x).collect();
-    let rows = p.propensity.rows(&p.frame, Setting::Observed);
+    let rows = p.propensity_rows();
     let n = p.n();
     let mut col = vec![0.0; n];
     let mut out = Vec::new();

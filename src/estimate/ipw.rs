@@ -8,7 +8,6 @@
 use super::contrast::{Arms, effect, interval};
 use super::propensity::{Propensity, arm_weights};
 use super::{Estimand, Estimate, Means, Method, Problem, Warm};
-use crate::data::Setting;
 use crate::model::weighted_sum;
 use crate::{Error, Result};
 
@@ -92,7 +91,7 @@ impl Method for Ipw {
                     h(i).1 * de * r
                 })
                 .collect();
-            let k = weighted_sum(&p.propensity.rows(&p.frame, Setting::Observed), &k_rows);
+            let k = weighted_sum(&p.propensity_rows(), &k_rows);
             drop(k_rows);
             let mut phi = ps.influence(p, &k);
             for (i, f) in phi.iter_mut().enumerate() {
@@ -140,7 +139,7 @@ impl Method for Ipw {
             notes,
             warnings: Vec::new(),
             warm: Warm {
-                propensity: Some(ps.fit.coef.clone()),
+                propensity: Some(ps.coef.clone()),
                 outcome: None,
                 ..Warm::default()
             },

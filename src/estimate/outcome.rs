@@ -16,6 +16,10 @@ pub(crate) struct OutcomeFit {
     coef: DVector<f64>,
     chol: Chol,
     separation: Option<Separation>,
+    /// The linear predictor of every row, exposure as observed.
+    eta: Vec<f64>,
+    /// A logistic fit, to start resamples from.
+    logit: Option<Logit>,
 }
 
 /// A fitted outcome model.
@@ -25,6 +29,7 @@ pub(crate) struct OutcomeModel<'a> {
     pub binary: bool,
     pub chol: Chol,
     pub separation: Option<Separation>,
+    eta: Vec<f64>,
 }
 
 impl<'a> OutcomeModel<'a> {
@@ -40,7 +45,9 @@ impl<'a> OutcomeModel<'a> {
                 .expect("checked above"),
             (Some(_), _) if shared.is_some() => {
                 let f = OutcomeModel::compute(p, w, warm)?;
-                let _ = shared.map(|c| c.outcome.set(f.clone()));
+                if let Some(c) = shared {
+                    let _ = c.outcome.set(f.clone());
+                }
                 f
             }
             (None, Some(f)) => f.clone(),
@@ -57,20 +64,34 @@ impl<'a> OutcomeModel<'a> {
             binary: p.binary_outcome(),
             chol: f.chol,
             separation: f.separation,
+            eta: f.eta,
         })
     }
 
     fn compute(p: &Problem, w: Option<&[f64]>, warm: Option<&DVector<f64>>) -> Result<OutcomeFit> {
         let design = &p.outcome_design;
-        let rows = design.rows(&p.frame, Setting::Observed);
-        let (coef, chol, separation) = if p.binary_outcome() {
-            let start = warm.cloned().unwrap_or_else(|| design.logit_start(p.y(), w));
-            let f = Logit::fit(&rows, p.y(), w, Some(&start), LogitOptions::default())?;
-            let c = f.chol().clone();
-            (f.coef, c, f.separation)
-        } else {
-            let (coef, chol) = Ols::coefficients(&rows, p.y(), w)?;
-            (coef, chol, None)
+        let rows = p.outcome_rows();
+        let opts = LogitOptions::default();
+        // A resample of a binary outcome starts from the full-sample fit,
+        // reusing its information matrix, when that fit is at hand.
+        let full = p.cache.outcome.get().and_then(|c| c.logit.as_ref());
+        let (coef, chol, separation, logit) = match (p.binary_outcome(), w, full) {
+            (true, Some(w), Some(full)) => {
+                let (coef, separation) = full.refit(&rows, p.y(), w, opts)?;
+                // The factor is the full sample's, kept for its aliased
+                // columns only: a resample's influence is never asked for.
+                (coef, full.chol().clone(), separation, None)
+            }
+            (true, _, _) => {
+                let start = warm.cloned().unwrap_or_else(|| design.logit_start(p.y(), w));
+                let f = Logit::fit(&rows, p.y(), w, Some(&start), opts)?;
+                let c = f.chol().clone();
+                (f.coef.clone(), c, f.separation.clone(), w.is_none().then_some(f))
+            }
+            (false, _, _) => {
+                let (coef, chol) = Ols::coefficients(&rows, p.y(), w)?;
+                (coef, chol, None, None)
+            }
         };
         // Under separation the information matrix is near singular and a
         // column may look aliased there while its coefficient is simply not
@@ -93,16 +114,38 @@ impl<'a> OutcomeModel<'a> {
                 "the exposure term is aliased in the outcome model".into(),
             ));
         }
+        let eta = linear_predictor(&rows, &coef);
         Ok(OutcomeFit {
             coef,
             chol,
             separation,
+            eta,
+            logit,
         })
     }
 
-    /// Mean outcome of every row with the exposure set by `setting`.
+    /// Mean outcome of every row with the exposure set by `setting`: the
+    /// observed linear predictor, changed in the terms that involve the
+    /// exposure only.
     pub fn predict(&self, p: &Problem, setting: Setting) -> Vec<f64> {
-        let mut m = linear_predictor(&self.design.rows(&p.frame, setting), &self.coef);
+        let mut m = self.eta.clone();
+        if setting != Setting::Observed {
+            let a = p.exposure;
+            let terms = self.design.terms();
+            let other: Vec<usize> = (0..terms.len()).filter(|&j| !terms[j].uses(a)).collect();
+            let part = self.design.without(&other);
+            let b = DVector::from_iterator(
+                terms.len() - other.len(),
+                (0..terms.len())
+                    .filter(|j| !other.contains(j))
+                    .map(|j| self.coef[j]),
+            );
+            let new = linear_predictor(&part.rows(&p.frame, setting), &b);
+            let old = linear_predictor(&part.rows(&p.frame, Setting::Observed), &b);
+            for ((m, n), o) in m.iter_mut().zip(new).zip(old) {
+                *m += n - o;
+            }
+        }
         if self.binary {
             m.iter_mut().for_each(|x| *x = expit(*x));
         }
@@ -124,10 +167,80 @@ impl<'a> OutcomeModel<'a> {
     /// Row i's influence on `k' (b - beta)`: `x_i' B^-1 k (y_i - mu_i)`.
     pub fn influence(&self, p: &Problem, k: &DVector<f64>, mu_observed: &[f64]) -> Vec<f64> {
         let c = self.chol.solve(k);
-        let mut d = linear_predictor(&self.design.rows(&p.frame, Setting::Observed), &c);
+        let mut d = linear_predictor(&p.outcome_rows(), &c);
         for ((d, y), m) in d.iter_mut().zip(p.y()).zip(mu_observed) {
             *d *= y - m;
         }
         d
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::data::{Dataset, Shape};
+    use crate::estimate::Spec;
+
+    fn problem(binary_exposure: bool) -> Problem {
+        let n = 400;
+        let wave = |k: f64| (0..n).map(|i| (i as f64 * k).sin()).collect::<Vec<f64>>();
+        let (l, m) = (wave(0.37), wave(1.13));
+        let a: Vec<f64> = (0..n)
+            .map(|i| {
+                if binary_exposure {
+                    f64::from(u8::from(l[i] + 0.5 * m[i] > 0.1))
+                } else {
+                    1.0 + l[i] + (i as f64 * 0.71).cos()
+                }
+            })
+            .collect();
+        let y: Vec<f64> = (0..n)
+            .map(|i| a[i] * (1.0 + l[i]) + m[i] * m[i] + (i as f64 * 2.9).sin())
+            .collect();
+        let data = Dataset::from_columns(
+            "t.csv",
+            vec![("a".into(), a), ("y".into(), y), ("l".into(), l), ("m".into(), m)],
+        )
+        .unwrap();
+        let spec = Spec {
+            exposure: "a".into(),
+            outcome: "y".into(),
+            covariates: vec!["l".into(), "m".into()],
+            interact: vec!["l".into()],
+            shape: Shape::Quadratic,
+            ..Spec::default()
+        };
+        Problem::build(&data, &spec).unwrap()
+    }
+
+    #[test]
+    fn predictions_change_only_the_exposure_terms() {
+        // The observed linear predictor corrected in the exposure terms
+        // equals the linear predictor of the design filled under the
+        // setting (an identity of the centred design; 1e-12).
+        for (binary, settings) in [
+            (
+                true,
+                vec![Setting::Fixed(1.0), Setting::Fixed(0.0), Setting::Observed],
+            ),
+            (
+                false,
+                vec![Setting::Shift(1.0), Setting::Fixed(2.5), Setting::Observed],
+            ),
+        ] {
+            let p = problem(binary);
+            let m = OutcomeModel::fit(&p, None, None).unwrap();
+            assert!(p.outcome_design.terms().iter().any(|t| t.factors.len() > 1));
+            for s in settings {
+                let direct = linear_predictor(&p.outcome_design.rows(&p.frame, s), &m.coef);
+                let got = m.predict(&p, s);
+                let worst = direct
+                    .iter()
+                    .zip(&got)
+                    .map(|(a, b)| (a - b).abs())
+                    .fold(0.0, f64::max);
+                assert!(worst < 1e-12, "{s:?}: {worst}");
+            }
+        }
     }
 }

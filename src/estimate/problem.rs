@@ -5,7 +5,7 @@
 //! with a warning naming them.
 
 use super::{Estimand, Scale};
-use crate::data::{Dataset, Design, Frame, Kind, Role, Sample, Setting, Shape};
+use crate::data::{Dataset, Design, DesignRows, Frame, Kind, Role, Sample, Setting, Shape, Store};
 use crate::model::{ALIAS_TOL, Chol, accumulate};
 use crate::{Error, Result};
 use nalgebra::DMatrix;
@@ -92,11 +92,13 @@ pub struct Problem {
     pub(crate) cache: Cache,
 }
 
-/// Full-sample fits, made once on first use.
+/// Full-sample fits and the designs' rows, made once on first use.
 #[derive(Debug, Clone, Default)]
 pub(crate) struct Cache {
     pub propensity: OnceLock<Propensity>,
     pub outcome: OnceLock<OutcomeFit>,
+    propensity_rows: OnceLock<Option<Store>>,
+    outcome_rows: OnceLock<Option<Store>>,
 }
 
 /// Aliased terms of `design` under frequency weights `w` (`None`: all
@@ -269,6 +271,22 @@ impl Problem {
             warnings,
             cache: Cache::default(),
         })
+    }
+
+    /// The rows of the propensity design, read from memory once computed
+    /// when they fit [`Store::MAX_VALUES`].
+    pub fn propensity_rows(&self) -> DesignRows<'_> {
+        let rows = self.propensity.rows(&self.frame, Setting::Observed);
+        let store = self.cache.propensity_rows.get_or_init(|| Store::of(&rows));
+        rows.with_store(store.as_ref())
+    }
+
+    /// The rows of the outcome design with the exposure as observed, read
+    /// from memory as [`Problem::propensity_rows`].
+    pub fn outcome_rows(&self) -> DesignRows<'_> {
+        let rows = self.outcome_design.rows(&self.frame, Setting::Observed);
+        let store = self.cache.outcome_rows.get_or_init(|| Store::of(&rows));
+        rows.with_store(store.as_ref())
     }
 
     /// Outcome values (0/1 when binary).

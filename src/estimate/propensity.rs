@@ -6,7 +6,6 @@
 //! If*, 2020, ch. 12; the ATT and ATC forms are common practice, no source.
 
 use super::{Estimand, Problem, Warm};
-use crate::data::Setting;
 use crate::model::{Logit, LogitOptions, expit, linear_predictor};
 use crate::{Error, Result};
 use nalgebra::DVector;
@@ -15,7 +14,10 @@ use std::borrow::Cow;
 /// A fitted propensity model.
 #[derive(Debug, Clone)]
 pub(crate) struct Propensity {
-    pub fit: Logit,
+    /// Coefficients.
+    pub coef: DVector<f64>,
+    /// The fit with its information matrix (full-sample fits only).
+    fit: Option<Logit>,
     /// Scores after clipping.
     pub e: Vec<f64>,
     /// Scores before clipping, when clipping changed any.
@@ -51,13 +53,26 @@ impl Propensity {
     }
 
     fn compute(p: &Problem, w: Option<&[f64]>, warm: Option<&DVector<f64>>) -> Result<Propensity> {
-        let rows = p.propensity.rows(&p.frame, Setting::Observed);
-        let start = match warm {
-            Some(b) => b.clone(),
-            None => p.propensity.logit_start(p.a(), w),
+        let rows = p.propensity_rows();
+        let opts = LogitOptions::default();
+        // A resample starts from the full-sample fit, reusing its
+        // information matrix, when that fit is at hand.
+        let full = p.cache.propensity.get().and_then(|c| c.fit.as_ref());
+        let (coef, separation, fit) = match (w, full) {
+            (Some(w), Some(full)) => {
+                let (coef, separation) = full.refit(&rows, p.a(), w, opts)?;
+                (coef, separation, None)
+            }
+            _ => {
+                let start = match warm {
+                    Some(b) => b.clone(),
+                    None => p.propensity.logit_start(p.a(), w),
+                };
+                let f = Logit::fit(&rows, p.a(), w, Some(&start), opts)?;
+                (f.coef.clone(), f.separation.clone(), Some(f))
+            }
         };
-        let fit = Logit::fit(&rows, p.a(), w, Some(&start), LogitOptions::default())?;
-        if let Some(s) = &fit.separation {
+        if let Some(s) = &separation {
             return Err(Error::Numerical(format!(
                 "propensity model for '{}': {s}; some units have no chance of the other exposure \
                  (a positivity violation), so weighting cannot be used (clipping the scores with \
@@ -66,7 +81,7 @@ impl Propensity {
                 p.spec.exposure
             )));
         }
-        let mut e = linear_predictor(&rows, &fit.coef);
+        let mut e = linear_predictor(&rows, &coef);
         e.iter_mut().for_each(|x| *x = expit(*x));
         let raw = match p.spec.trim {
             Some(t) if t > 0.0 && e.iter().any(|&x| x < t || x > 1.0 - t) => {
@@ -76,7 +91,7 @@ impl Propensity {
             }
             _ => None,
         };
-        Ok(Propensity { fit, e, raw })
+        Ok(Propensity { coef, fit, e, raw })
     }
 
     /// Row i's score before clipping.
@@ -91,8 +106,9 @@ impl Propensity {
 
     /// Row i's influence on `k' (gamma_hat - gamma)`: `z_i' I^-1 k (A_i - e_i)`.
     pub fn influence(&self, p: &Problem, k: &DVector<f64>) -> Vec<f64> {
-        let c = self.fit.bread_solve(k);
-        let mut d = linear_predictor(&p.propensity.rows(&p.frame, Setting::Observed), &c);
+        let fit = self.fit.as_ref().expect("influence of a full-sample fit");
+        let c = fit.bread_solve(k);
+        let mut d = linear_predictor(&p.propensity_rows(), &c);
         for (i, (d, a)) in d.iter_mut().zip(p.a()).enumerate() {
             *d *= a - self.raw(i);
         }

@@ -48,7 +48,7 @@ pub fn sensitivity_inputs(p: &Problem) -> Result<Option<SensitivityInputs>> {
         return Ok(None);
     }
     let out = Ols::fit(&p.adjusted.rows(&p.frame, Setting::Observed), p.y(), None)?;
-    let exp = Ols::fit(&p.propensity.rows(&p.frame, Setting::Observed), p.a(), None)?;
+    let exp = Ols::fit(&p.propensity_rows(), p.a(), None)?;
     let ja = p
         .adjusted
         .exposure_term()

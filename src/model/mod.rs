@@ -26,7 +26,7 @@ mod ols;
 mod predict;
 
 pub use chol::Chol;
-pub use cross::{Cross, accumulate};
+pub use cross::{Cross, accumulate, score};
 pub use logistic::{Logit, LogitOptions, Separation};
 pub use multinomial::Multinomial;
 pub use ols::Ols;
