@@ -161,7 +161,13 @@ mod tests {
         for p in [3, 8] {
             let n = BLOCK + 300;
             let x = DMatrix::from_fn(n, p, |i, j| ((i * (j + 3)) as f64 * 0.013).sin() + j as f64 * 0.1);
-            let v = |i: usize| if i.is_multiple_of(3) { 0.0 } else { 1.0 + (i % 5) as f64 };
+            let v = |i: usize| {
+                if i.is_multiple_of(3) {
+                    0.0
+                } else {
+                    1.0 + (i % 5) as f64
+                }
+            };
             let c = accumulate(&DenseRows(x.clone()), None, |i, _| (v(i), v(i) * 2.0, 1.0, 0.0));
             let mut xtx = DMatrix::<f64>::zeros(p, p);
             for i in 0..n {

@@ -358,7 +358,9 @@ mod tests {
         assert!((&coef - &newton.coef).amax() < 1e-7, "{coef} {}", newton.coef);
         assert!((&coef - &full.coef).amax() > 1e-3, "the resample moved the fit");
         // Weights on half the rows only (total 1500): same agreement.
-        let half: Vec<f64> = (0..3000).map(|i| f64::from(u8::from(i.is_multiple_of(2)))).collect();
+        let half: Vec<f64> = (0..3000usize)
+            .map(|i| f64::from(u8::from(i.is_multiple_of(2))))
+            .collect();
         let (coef, _) = full.refit(&rows, &y, &half, LogitOptions::default()).unwrap();
         let newton = Logit::fit(&rows, &y, Some(&half), None, LogitOptions::default()).unwrap();
         assert!((&coef - &newton.coef).amax() < 1e-7);
