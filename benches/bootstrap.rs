@@ -12,7 +12,8 @@
 //!
 //! Run: `cargo bench --bench bootstrap` (set `CAUSEWAY_BENCH_ROWS` for
 //! another size, `CAUSEWAY_BENCH_REPLICATES` for another count,
-//! `CAUSEWAY_BENCH_THREADS` for another number of worker threads).
+//! `CAUSEWAY_BENCH_THREADS` for another number of worker threads,
+//! `CAUSEWAY_BENCH_REPEAT` for the number of timed runs, best reported).
 
 #[path = "common/gen.rs"]
 mod generator;
@@ -77,9 +78,18 @@ fn main() {
         bootstrap: replicates,
         ..base.clone()
     };
-    let t2 = Instant::now();
-    let boot = analysis::run(&plan, &data, &opts).expect("bootstrapped analysis");
-    let best = t2.elapsed();
+    // On a shared machine one run can be slowed by other jobs: the best of
+    // CAUSEWAY_BENCH_REPEAT runs (default 3) is reported, every run listed.
+    let repeat = env_usize("CAUSEWAY_BENCH_REPEAT", 3).max(1);
+    let mut runs = Vec::new();
+    let mut boot = None;
+    for _ in 0..repeat {
+        let t2 = Instant::now();
+        boot = Some(analysis::run(&plan, &data, &opts).expect("bootstrapped analysis"));
+        runs.push(t2.elapsed());
+    }
+    let boot = boot.expect("one run");
+    let best = *runs.iter().min().expect("one run");
 
     println!(
         "rows {rows}, covariates {}, replicates {replicates}, threads {threads}",
@@ -100,7 +110,13 @@ fn main() {
     }
     println!("parse CSV                   {parse:.2?}");
     println!("analysis, analytic only     {analytic:.2?}");
-    println!("analysis with {replicates} replicates {best:.2?}");
+    println!(
+        "analysis with {replicates} replicates {best:.2?} (best of {repeat}: {})",
+        runs.iter()
+            .map(|t| format!("{t:.2?}"))
+            .collect::<Vec<_>>()
+            .join(", ")
+    );
     println!(
         "per replicate (3 methods)   {:.2?}",
         best.saturating_sub(analytic) / replicates as u32

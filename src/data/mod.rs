@@ -21,6 +21,7 @@
 mod column;
 mod design;
 mod frame;
+mod kernel;
 mod pass;
 mod read;
 mod sample;
@@ -30,7 +31,7 @@ mod store;
 pub use column::{Cell, Column};
 pub use design::{Design, DesignRows, Factor, Setting, Shape, Term, Transform, covariate_terms};
 pub use frame::{Frame, Kind, Role};
-pub use pass::{BLOCK, Block, DenseRows, Rows, map_rows, reduce, with_buffer};
+pub use pass::{BLOCK, Block, DenseRows, Rows, map_rows, reduce, reduce_into, with_buffer};
 pub use read::ReadOptions;
 pub use sample::Sample;
 pub use spline::{rcs_basis, rcs_knots};

@@ -6,6 +6,7 @@
 //! each block as it is; any other source fills a buffer that is kept per
 //! thread between passes ([`with_buffer`]).
 
+use super::kernel;
 use nalgebra::DMatrix;
 use rayon::prelude::*;
 use std::cell::Cell;
@@ -81,6 +82,26 @@ impl Block<'_> {
     pub fn range(&self) -> std::ops::Range<usize> {
         self.start..self.start + self.len
     }
+
+    /// `out = X b`, the block's rows times `b` (`b.len() == p`,
+    /// `out.len() == len`).
+    pub fn times(&self, b: &[f64], out: &mut [f64]) {
+        assert_eq!(b.len(), self.p, "block product sizes");
+        kernel::times(self.x, self.len, b, out);
+    }
+
+    /// `acc += X'u`, the block's columns times `u` (`u.len() == len`,
+    /// `acc.len() == p`).
+    pub fn times_tr_add(&self, u: &[f64], acc: &mut [f64]) {
+        assert_eq!(acc.len(), self.p, "block product sizes");
+        kernel::times_tr_add(self.x, u, acc);
+    }
+
+    /// Rows `keep[k].0` of the block scaled by `keep[k].1`, column-major
+    /// with `keep.len()` rows, into `out`.
+    pub fn gather_scaled(&self, keep: &[(usize, f64)], out: &mut [f64]) {
+        kernel::gather_scaled(self.x, self.len, keep, out);
+    }
 }
 
 /// Block `b` of `rows`, lent by the source or filled into `buf`.
@@ -104,7 +125,7 @@ fn fill_block<'a, R: Rows + ?Sized>(rows: &'a R, b: usize, buf: &'a mut Vec<f64>
 
 /// Folds every block into a `T`: `step` runs on consecutive blocks of a
 /// group, groups run in parallel, and `merge` joins the groups in order.
-pub fn reduce<R, T, I, S, M>(rows: &R, init: I, step: S, mut merge: M) -> T
+pub fn reduce<R, T, I, S, M>(rows: &R, init: I, step: S, merge: M) -> T
 where
     R: Rows + ?Sized,
     T: Send,
@@ -113,8 +134,7 @@ where
     M: FnMut(&mut T, T),
 {
     let nblocks = rows.nrows().div_ceil(BLOCK);
-    let ngroups = nblocks.div_ceil(GROUP);
-    let parts: Vec<T> = (0..ngroups)
+    let parts: Vec<T> = (0..nblocks.div_ceil(GROUP))
         .into_par_iter()
         .map(|g| {
             with_buffer(|buf| {
@@ -126,6 +146,38 @@ where
             })
         })
         .collect();
+    join(parts, init, merge)
+}
+
+/// As [`reduce`], with each block's slice of `out` (`out.len() ==
+/// rows.nrows()`) handed to `step` to write one value per row.
+pub fn reduce_into<R, T, I, S, M>(rows: &R, out: &mut [f64], init: I, step: S, merge: M) -> T
+where
+    R: Rows + ?Sized,
+    T: Send,
+    I: Fn() -> T + Sync,
+    S: Fn(&mut T, &Block, &mut [f64]) + Sync,
+    M: FnMut(&mut T, T),
+{
+    assert_eq!(out.len(), rows.nrows(), "output length");
+    let parts: Vec<T> = out
+        .par_chunks_mut(GROUP * BLOCK)
+        .enumerate()
+        .map(|(g, chunk)| {
+            with_buffer(|buf| {
+                let mut acc = init();
+                for (k, o) in chunk.chunks_mut(BLOCK).enumerate() {
+                    step(&mut acc, &fill_block(rows, g * GROUP + k, buf), o);
+                }
+                acc
+            })
+        })
+        .collect();
+    join(parts, init, merge)
+}
+
+/// The groups' results merged in order.
+fn join<T>(parts: Vec<T>, init: impl Fn() -> T, mut merge: impl FnMut(&mut T, T)) -> T {
     let mut it = parts.into_iter();
     let mut total = it.next().unwrap_or_else(&init);
     for part in it {
@@ -141,10 +193,7 @@ where
     R: Rows + ?Sized,
     F: Fn(&Block, &mut [f64]) + Sync,
 {
-    assert_eq!(out.len(), rows.nrows(), "output length");
-    out.par_chunks_mut(BLOCK).enumerate().for_each(|(b, chunk)| {
-        with_buffer(|buf| f(&fill_block(rows, b, buf), chunk));
-    });
+    reduce_into(rows, out, || (), |_, b, o| f(b, o), |_, _| ());
 }
 
 /// Rows of a stored matrix (for tests and small problems).

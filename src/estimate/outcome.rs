@@ -75,22 +75,39 @@ impl<'a> OutcomeModel<'a> {
         // A resample of a binary outcome starts from the full-sample fit,
         // reusing its information matrix, when that fit is at hand.
         let full = p.cache.outcome.get().and_then(|c| c.logit.as_ref());
-        let (coef, chol, separation, logit) = match (p.binary_outcome(), w, full) {
+        let exposure = design.exposure_term().unwrap_or(usize::MAX);
+        let (coef, chol, separation, logit, eta, aliased) = match (p.binary_outcome(), w, full) {
             (true, Some(w), Some(full)) => {
-                let (coef, separation) = full.refit(&rows, p.y(), w, opts)?;
-                // The factor is the full sample's, kept for its aliased
-                // columns only: a resample's influence is never asked for.
-                (coef, full.chol().clone(), separation, None)
+                let r = full.refit(&rows, p.y(), w, opts)?;
+                // The factor is the full sample's (a resample's influence is
+                // never asked for); the refit does not factor the new
+                // information, so aliasing is decided here directly.
+                let aliased = super::problem::aliased(design, &p.frame, Some(w)).contains(&exposure);
+                (
+                    r.coef,
+                    full.chol().clone(),
+                    r.separation,
+                    None,
+                    Some(r.eta),
+                    Some(aliased),
+                )
             }
             (true, _, _) => {
                 let start = warm.cloned().unwrap_or_else(|| design.logit_start(p.y(), w));
                 let f = Logit::fit(&rows, p.y(), w, Some(&start), opts)?;
                 let c = f.chol().clone();
-                (f.coef.clone(), c, f.separation.clone(), w.is_none().then_some(f))
+                (
+                    f.coef.clone(),
+                    c,
+                    f.separation.clone(),
+                    w.is_none().then_some(f),
+                    None,
+                    None,
+                )
             }
             (false, _, _) => {
                 let (coef, chol) = Ols::coefficients(&rows, p.y(), w)?;
-                (coef, chol, None, None)
+                (coef, chol, None, None, None, None)
             }
         };
         // Under separation the information matrix is near singular and a
@@ -103,18 +120,17 @@ impl<'a> OutcomeModel<'a> {
         // exposure coefficient: when a column is aliased (terms aliased in
         // the full data are already dropped, so this is rare), decide again
         // with the covariates first, as for the full data.
-        let exposure = design.exposure_term().unwrap_or(usize::MAX);
-        let exposure_aliased = match chol.aliased() {
+        let exposure_aliased = aliased.unwrap_or_else(|| match chol.aliased() {
             a if a.is_empty() => false,
             a if a.contains(&exposure) => true,
             _ => super::problem::aliased(design, &p.frame, w).contains(&exposure),
-        };
+        });
         if exposure_aliased && separation.is_none() {
             return Err(Error::Numerical(
                 "the exposure term is aliased in the outcome model".into(),
             ));
         }
-        let eta = linear_predictor(&rows, &coef);
+        let eta = eta.unwrap_or_else(|| linear_predictor(&rows, &coef));
         Ok(OutcomeFit {
             coef,
             chol,

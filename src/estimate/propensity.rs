@@ -58,10 +58,10 @@ impl Propensity {
         // A resample starts from the full-sample fit, reusing its
         // information matrix, when that fit is at hand.
         let full = p.cache.propensity.get().and_then(|c| c.fit.as_ref());
-        let (coef, separation, fit) = match (w, full) {
+        let (coef, separation, fit, eta) = match (w, full) {
             (Some(w), Some(full)) => {
-                let (coef, separation) = full.refit(&rows, p.a(), w, opts)?;
-                (coef, separation, None)
+                let r = full.refit(&rows, p.a(), w, opts)?;
+                (r.coef, r.separation, None, Some(r.eta))
             }
             _ => {
                 let start = match warm {
@@ -69,7 +69,7 @@ impl Propensity {
                     None => p.propensity.logit_start(p.a(), w),
                 };
                 let f = Logit::fit(&rows, p.a(), w, Some(&start), opts)?;
-                (f.coef.clone(), f.separation.clone(), Some(f))
+                (f.coef.clone(), f.separation.clone(), Some(f), None)
             }
         };
         if let Some(s) = &separation {
@@ -81,7 +81,7 @@ impl Propensity {
                 p.spec.exposure
             )));
         }
-        let mut e = linear_predictor(&rows, &coef);
+        let mut e = eta.unwrap_or_else(|| linear_predictor(&rows, &coef));
         e.iter_mut().for_each(|x| *x = expit(*x));
         let raw = match p.spec.trim {
             Some(t) if t > 0.0 && e.iter().any(|&x| x < t || x > 1.0 - t) => {

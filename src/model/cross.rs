@@ -1,6 +1,6 @@
 //! Block-wise accumulation of weighted cross-products.
 
-use crate::data::{Block, Rows, reduce, with_buffer};
+use crate::data::{Block, Rows, reduce, reduce_into, with_buffer};
 use nalgebra::{DMatrix, DVector, Dyn, MatrixView};
 
 /// Sums over the rows of a design: `X'VX`, `X'u` and two scalars.
@@ -33,33 +33,35 @@ impl Cross {
 
 /// `x_i'beta` for the rows of block `b`.
 fn eta_of(b: &Block, beta: &DVector<f64>) -> Vec<f64> {
-    (MatrixView::<f64, Dyn, Dyn>::from_slice(b.x, b.len, b.p) * beta)
-        .data
-        .into()
+    let mut eta = vec![0.0; b.len];
+    b.times(beta.as_slice(), &mut eta);
+    eta
 }
 
-/// Sums over every row `i`, with `eta_i = x_i'beta` and
-/// `(u, s0, s1) = f(i, eta_i)`: `X'u` and the sums of `s0` and `s1`. Two
-/// products of the rows with vectors per block, no cross-product matrix.
-pub fn score<R, F>(rows: &R, beta: &DVector<f64>, f: F) -> (DVector<f64>, [f64; 2])
+/// Sums over every row `i`, with `eta_i = x_i'beta` (written to `eta`,
+/// one value per row) and `(u, s0, s1) = f(i, eta_i)`: `X'u` and the sums
+/// of `s0` and `s1`. Two products of the rows with vectors per block, no
+/// cross-product matrix.
+pub fn score<R, F>(rows: &R, beta: &DVector<f64>, eta: &mut [f64], f: F) -> (DVector<f64>, [f64; 2])
 where
     R: Rows + ?Sized,
     F: Fn(usize, f64) -> (f64, f64, f64) + Sync,
 {
     let p = rows.ncols();
-    reduce(
+    reduce_into(
         rows,
+        eta,
         || (DVector::zeros(p), [0.0; 2]),
-        |(g, s), b| {
-            let mut u = eta_of(b, beta);
-            for (k, e) in u.iter_mut().enumerate() {
+        |(g, s), b, eta| {
+            b.times(beta.as_slice(), eta);
+            let mut u = vec![0.0; b.len];
+            for (k, (e, u)) in eta.iter().zip(u.iter_mut()).enumerate() {
                 let (ui, s0, s1) = f(b.start + k, *e);
-                *e = ui;
+                *u = ui;
                 s[0] += s0;
                 s[1] += s1;
             }
-            let x = MatrixView::<f64, Dyn, Dyn>::from_slice(b.x, b.len, p);
-            g.gemv_tr(1.0, &x, &DVector::from_vec(u), 1.0);
+            b.times_tr_add(&u, g.as_mut_slice());
         },
         |(g, s), (h, t)| {
             *g += h;
@@ -101,8 +103,7 @@ where
                 acc.s[0] += s0;
                 acc.s[1] += s1;
             }
-            let x = MatrixView::<f64, Dyn, Dyn>::from_slice(b.x, len, p);
-            acc.xtu.gemv_tr(1.0, &x, &DVector::from_vec(u), 1.0);
+            b.times_tr_add(&u, acc.xtu.as_mut_slice());
             let m = keep.len();
             if m == 0 {
                 return;
@@ -111,12 +112,7 @@ where
                 // The kept rows scaled by sqrt(v), column-major, m rows.
                 buf.resize(m * p, 0.0);
                 let z = &mut buf[..m * p];
-                for j in 0..p {
-                    let src = b.col(j);
-                    for (o, &(k, r)) in z[j * m..(j + 1) * m].iter_mut().zip(&keep) {
-                        *o = src[k] * r;
-                    }
-                }
+                b.gather_scaled(&keep, z);
                 if p > 5 && m > 5 {
                     // nalgebra hands this product to matrixmultiply, which
                     // takes the transposed view's strides as they are.

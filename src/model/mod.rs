@@ -27,7 +27,7 @@ mod predict;
 
 pub use chol::Chol;
 pub use cross::{Cross, accumulate, score};
-pub use logistic::{Logit, LogitOptions, Separation};
+pub use logistic::{Logit, LogitOptions, Refit, Separation};
 pub use multinomial::Multinomial;
 pub use ols::Ols;
 pub use predict::{expit, linear_predictor, weighted_sum};

@@ -1,7 +1,7 @@
 //! Row-wise products with a coefficient vector, shared by every prediction.
 
 use crate::data::{Rows, map_rows, reduce};
-use nalgebra::{DVector, Dyn, MatrixView};
+use nalgebra::DVector;
 
 /// The logistic function 1 / (1 + exp(-x)).
 pub fn expit(x: f64) -> f64 {
@@ -15,13 +15,8 @@ pub fn expit(x: f64) -> f64 {
 
 /// `x_i' beta` for every row.
 pub fn linear_predictor<R: Rows + ?Sized>(rows: &R, beta: &DVector<f64>) -> Vec<f64> {
-    let p = rows.ncols();
     let mut out = vec![0.0; rows.nrows()];
-    map_rows(rows, &mut out, |b, o| {
-        let x = MatrixView::<f64, Dyn, Dyn>::from_slice(b.x, b.len, p);
-        let eta = x * beta;
-        o.copy_from_slice(eta.as_slice());
-    });
+    map_rows(rows, &mut out, |b, o| b.times(beta.as_slice(), o));
     out
 }
 
@@ -31,11 +26,7 @@ pub fn weighted_sum<R: Rows + ?Sized>(rows: &R, u: &[f64]) -> DVector<f64> {
     reduce(
         rows,
         || DVector::zeros(p),
-        |acc, b| {
-            let x = MatrixView::<f64, Dyn, Dyn>::from_slice(b.x, b.len, p);
-            let ub = DVector::from_column_slice(&u[b.range()]);
-            acc.gemv_tr(1.0, &x, &ub, 1.0);
-        },
+        |acc, b| b.times_tr_add(&u[b.range()], acc.as_mut_slice()),
         |a, b| *a += b,
     )
 }
