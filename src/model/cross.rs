@@ -38,14 +38,14 @@ fn eta_of(b: &Block, beta: &DVector<f64>) -> Vec<f64> {
     eta
 }
 
-/// Sums over every row `i`, with `eta_i = x_i'beta` (written to `eta`,
-/// one value per row) and `(u, s0, s1) = f(i, eta_i)`: `X'u` and the sums
-/// of `s0` and `s1`. Two products of the rows with vectors per block, no
-/// cross-product matrix.
+/// `X'u` and two sums, with `eta = X beta` written to `eta` (one value per
+/// row): for each block, `f(start, eta_b, u_b)` fills the block's `u` from
+/// its `eta` (rows `start..`) and returns its two sums. Two products of the
+/// rows with vectors per block, no cross-product matrix.
 pub fn score<R, F>(rows: &R, beta: &DVector<f64>, eta: &mut [f64], f: F) -> (DVector<f64>, [f64; 2])
 where
     R: Rows + ?Sized,
-    F: Fn(usize, f64) -> (f64, f64, f64) + Sync,
+    F: Fn(usize, &[f64], &mut [f64]) -> [f64; 2] + Sync,
 {
     let p = rows.ncols();
     reduce_into(
@@ -55,12 +55,9 @@ where
         |(g, s), b, eta| {
             b.times(beta.as_slice(), eta);
             let mut u = vec![0.0; b.len];
-            for (k, (e, u)) in eta.iter().zip(u.iter_mut()).enumerate() {
-                let (ui, s0, s1) = f(b.start + k, *e);
-                *u = ui;
-                s[0] += s0;
-                s[1] += s1;
-            }
+            let t = f(b.start, eta, &mut u);
+            s[0] += t[0];
+            s[1] += t[1];
             b.times_tr_add(&u, g.as_mut_slice());
         },
         |(g, s), (h, t)| {

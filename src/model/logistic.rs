@@ -4,7 +4,7 @@
 //! separation (fitted probabilities numerically 0 or 1).
 
 use super::{ALIAS_TOL, Chol, accumulate, expit, linear_predictor, score};
-use crate::data::Rows;
+use crate::data::{Rows, expit_into};
 use crate::{Error, Result};
 use nalgebra::{DMatrix, DVector};
 
@@ -280,10 +280,16 @@ impl Logit {
         let mut inv = &self.cov * ratio;
         let mut prev: Option<(DVector<f64>, DVector<f64>)> = None;
         for _ in 0..REFIT_MAX_STEPS {
-            let (g, s) = score(rows, &beta, &mut eta, |i, eta| {
-                let mu = expit(eta);
-                let extreme = f64::from(u8::from(w[i] > 0.0 && !(EXTREME..=1.0 - EXTREME).contains(&mu)));
-                (w[i] * (y[i] - mu), extreme, 0.0)
+            let (g, s) = score(rows, &beta, &mut eta, |start, eta, u| {
+                expit_into(eta, u);
+                let mut extreme = 0.0;
+                let (w, y) = (&w[start..start + u.len()], &y[start..start + u.len()]);
+                for ((u, &wi), &yi) in u.iter_mut().zip(w).zip(y) {
+                    let mu = *u;
+                    extreme += f64::from(u8::from(wi > 0.0 && !(EXTREME..=1.0 - EXTREME).contains(&mu)));
+                    *u = wi * (yi - mu);
+                }
+                [extreme, 0.0]
             });
             if s[0] > 0.0 {
                 break;
