@@ -20,8 +20,10 @@ pub struct Store {
 }
 
 impl Store {
-    /// Most values (rows x columns) kept: 2^25, 256 MiB.
-    pub const MAX_VALUES: usize = 1 << 25;
+    /// Most values (rows x columns) kept: 2^24, 128 MiB per design (for
+    /// 32 columns, about 500,000 rows). Above it passes fill blocks on
+    /// demand and memory stays within a small multiple of the data's.
+    pub const MAX_VALUES: usize = 1 << 24;
 
     /// The rows of `rows`, or `None` when they exceed [`Store::MAX_VALUES`].
     pub fn of<R: Rows + ?Sized>(rows: &R) -> Option<Store> {
