@@ -1,7 +1,7 @@
 //! Block-wise accumulation of weighted cross-products.
 
-use crate::data::{Block, Rows, reduce, reduce_into, with_buffer};
-use nalgebra::{DMatrix, DVector, Dyn, MatrixView};
+use crate::data::{Block, Rows, gram_lower_add, reduce, reduce_into, with_buffer};
+use nalgebra::{DMatrix, DVector};
 
 /// Sums over the rows of a design: `X'VX`, `X'u` and two scalars.
 #[derive(Debug, Clone)]
@@ -78,7 +78,7 @@ where
     F: Fn(usize, f64) -> (f64, f64, f64, f64) + Sync,
 {
     let p = rows.ncols();
-    reduce(
+    let mut c = reduce(
         rows,
         || Cross::zeros(p),
         |acc, b| {
@@ -110,34 +110,18 @@ where
                 buf.resize(m * p, 0.0);
                 let z = &mut buf[..m * p];
                 b.gather_scaled(&keep, z);
-                if p > 5 && m > 5 {
-                    // nalgebra hands this product to matrixmultiply, which
-                    // takes the transposed view's strides as they are.
-                    let x = MatrixView::<f64, Dyn, Dyn>::from_slice(z, m, p);
-                    let xt = MatrixView::<f64, Dyn, Dyn, Dyn, Dyn>::from_slice_with_strides_generic(
-                        z,
-                        Dyn(p),
-                        Dyn(m),
-                        Dyn(m),
-                        Dyn(1),
-                    );
-                    acc.xtx.gemm(1.0, &xt, &x, 1.0);
-                } else {
-                    let col = |j: usize| &z[j * m..(j + 1) * m];
-                    for j in 0..p {
-                        for k in 0..=j {
-                            let d: f64 = col(j).iter().zip(col(k)).map(|(a, c)| a * c).sum();
-                            acc.xtx[(j, k)] += d;
-                            if k != j {
-                                acc.xtx[(k, j)] += d;
-                            }
-                        }
-                    }
-                }
+                gram_lower_add(z, m, p, acc.xtx.as_mut_slice());
             });
         },
         |a, b| a.add(b),
-    )
+    );
+    // The blocks added the lower triangle only.
+    for j in 0..p {
+        for k in j + 1..p {
+            c.xtx[(j, k)] = c.xtx[(k, j)];
+        }
+    }
+    c
 }
 
 #[cfg(test)]
