@@ -74,7 +74,8 @@ pub struct Logit {
 
 /// The BFGS update of an inverse Hessian `inv` after a step `s` that
 /// changed the gradient of the objective by `y` (Nocedal & Wright,
-/// *Numerical Optimization*, 2nd ed., 2006, eq. 6.17):
+/// *Numerical Optimization*, 2nd ed., 2006, ch. 6; the equation number,
+/// 6.17, from memory):
 /// `(I - r s y') inv (I - r y s') + r s s'` with `r = 1 / y's`; skipped
 /// when `y's <= 0`, where it would lose positive definiteness.
 fn bfgs_update(inv: &mut DMatrix<f64>, s: &DVector<f64>, y: &DVector<f64>) {

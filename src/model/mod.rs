@@ -2,8 +2,9 @@
 //! design given as [`Rows`](crate::data::Rows), on nalgebra.
 //!
 //! Both fits accumulate the cross-product `X'WX` block by block
-//! ([`accumulate`]), so no `n x n` matrix and no copy of the `n x p` design
-//! is made. Aliased (collinear or constant) columns are found by a Cholesky
+//! ([`accumulate`]), so no `n x n` matrix is made, and the `n x p` design
+//! is held in memory only when it fits the budget of
+//! [`Store`](crate::data::Store). Aliased (collinear or constant) columns are found by a Cholesky
 //! factorisation that skips columns whose residual sum of squares, given the
 //! columns before them, is a negligible share of their own ([`Chol`]); their
 //! coefficients are 0.
@@ -14,7 +15,9 @@
 //!   reweighted least squares; McCullagh & Nelder, *Generalized Linear
 //!   Models*, 2nd ed., 1989, sec. 4.4) with step-halving, warm starts, and
 //!   detection of complete or quasi-complete separation (Albert & Anderson,
-//!   Biometrika 1984;71:1-10) as a typed [`Separation`].
+//!   Biometrika 1984;71:1-10) as a typed [`Separation`]; [`Logit::refit`]
+//!   refits a bootstrap resample from a converged fit by quasi-Newton steps
+//!   (BFGS updates of its inverse information).
 //! - [`Multinomial`]: baseline-category logistic regression for a response
 //!   with more than two levels, by the same Newton scheme.
 
