@@ -19,6 +19,8 @@ use crate::sensitivity::evalue::{self, EValue};
 use crate::sensitivity::robustness::{self, BenchmarkTable, Coefficient, Covariate, RobustnessValue};
 use crate::{Error, Result};
 use serde::Serialize;
+use std::collections::BTreeMap;
+use std::sync::Mutex;
 
 /// Settings of an analysis, from the estimation flags.
 #[derive(Debug, Clone)]
@@ -369,13 +371,23 @@ fn run_bootstrap(
         bca: opts.interval == IntervalKind::Bca,
     };
     // A method that fails in a replicate gives NaN there: it is counted as
-    // failed for that method only. The methods of one replicate share its
-    // model fits (each model is fitted once per resample).
+    // failed for that method only, and its reason is tallied (a count per
+    // message, the same for any order the threads finish in). The methods
+    // of one replicate share its model fits (each model is fitted once per
+    // resample).
+    let reasons: Vec<Mutex<BTreeMap<String, usize>>> = methods.iter().map(|_| Mutex::default()).collect();
     let draws = bootstrap::run(p.n(), &boot, |w| {
         let shared = Warm::for_one_resample(&warm);
         Ok(methods
             .iter()
-            .map(|m| m.point(p, Some(w), Some(&shared)).unwrap_or(f64::NAN))
+            .zip(&reasons)
+            .map(|(m, tally)| {
+                m.point(p, Some(w), Some(&shared)).unwrap_or_else(|e| {
+                    let mut t = tally.lock().unwrap_or_else(|poisoned| poisoned.into_inner());
+                    *t.entry(plain(&e)).or_default() += 1;
+                    f64::NAN
+                })
+            })
             .collect())
     })?;
     let mut warnings = Vec::new();
@@ -386,6 +398,10 @@ fn run_bootstrap(
                 .iter()
                 .map(|w| format!("{} bootstrap: {w}", item.estimate.method)),
         );
+        let tally = reasons[j].lock().unwrap_or_else(|poisoned| poisoned.into_inner());
+        if let Some(why) = failure_reasons(&tally) {
+            warnings.push(format!("{} bootstrap: {why}", item.estimate.method));
+        }
         match s.block(opts.interval) {
             Ok(block) => {
                 item.estimate.ci = block.ci;
@@ -492,6 +508,51 @@ fn evalue_for(
 }
 
 /// An error's message without a flag name that belongs to another command.
+/// The most frequent reasons in a tally of failed fits (message -> count),
+/// for a warning. A message is cut at its first `; ` (what follows is
+/// advice, given in full when the full-sample fit fails) and messages that
+/// differ only in their numbers count as one reason, shown by the first of
+/// them in sorted order.
+fn failure_reasons(tally: &BTreeMap<String, usize>) -> Option<String> {
+    const SHOWN: usize = 2;
+    let total: usize = tally.values().sum();
+    if total == 0 {
+        return None;
+    }
+    let mut groups: BTreeMap<String, (usize, &str)> = BTreeMap::new();
+    for (msg, &k) in tally {
+        let clause = msg.split("; ").next().unwrap_or(msg);
+        let mut key = String::with_capacity(clause.len());
+        for c in clause.chars() {
+            if !c.is_ascii_digit() {
+                key.push(c);
+            } else if !key.ends_with('#') {
+                key.push('#');
+            }
+        }
+        let g = groups.entry(key).or_insert((0, clause));
+        g.0 += k;
+        g.1 = g.1.min(clause);
+    }
+    let mut by_count: Vec<(usize, &str)> = groups.into_values().collect();
+    by_count.sort_by(|a, b| b.0.cmp(&a.0).then(a.1.cmp(b.1)));
+    let shown: Vec<String> = by_count
+        .iter()
+        .take(SHOWN)
+        .map(|(k, m)| format!("{m} ({k} {})", if *k == 1 { "time" } else { "times" }))
+        .collect();
+    let rest = by_count.len().saturating_sub(SHOWN);
+    let more = match rest {
+        0 => String::new(),
+        1 => "; and 1 other reason".to_string(),
+        r => format!("; and {r} other reasons"),
+    };
+    Some(format!(
+        "why fits failed (bootstrap replicates and jackknife samples): {}{more}",
+        shown.join("; ")
+    ))
+}
+
 fn plain(e: &Error) -> String {
     e.to_string()
         .replace("--df ", "the residual degrees of freedom ")
@@ -537,4 +598,29 @@ fn robustness_for(
     )?);
     details.coefficient = Some(c);
     Ok(rv)
+}
+
+#[cfg(test)]
+mod tests {
+    use super::failure_reasons;
+    use std::collections::BTreeMap;
+
+    #[test]
+    fn failure_reasons_group_messages_that_differ_in_numbers() {
+        let tally: BTreeMap<String, usize> = [
+            ("model: 11 rows at 0 or 1; advice", 2),
+            ("model: 9 rows at 0 or 1; advice", 3),
+            ("exposure aliased", 4),
+            ("other", 1),
+        ]
+        .into_iter()
+        .map(|(m, k)| (m.to_string(), k))
+        .collect();
+        assert_eq!(
+            failure_reasons(&tally).unwrap(),
+            "why fits failed (bootstrap replicates and jackknife samples): \
+             model: 11 rows at 0 or 1 (5 times); exposure aliased (4 times); and 1 other reason"
+        );
+        assert_eq!(failure_reasons(&BTreeMap::new()), None);
+    }
 }

@@ -393,6 +393,21 @@ fn failed_replicates_are_counted_and_reported() {
             "{m}: {:?}",
             an.warnings
         );
+        // The reason is reported with its count: no exposed row leaves the
+        // exposure aliased in the outcome model (regression, aipw) and
+        // separates the propensity model (ipw); aipw fits the propensity
+        // model first, so that is its reason.
+        let reason = if m == "regression" {
+            "aliased"
+        } else {
+            "separation"
+        };
+        let why = an
+            .warnings
+            .iter()
+            .find(|w| w.starts_with(&format!("{m} bootstrap: why fits failed")))
+            .unwrap_or_else(|| panic!("{m}: no reason among {:?}", an.warnings));
+        assert!(why.contains(reason) && why.contains(" times)"), "{m}: {why}");
         let ci = e.estimate.ci;
         assert!(
             ci[0].is_finite() && ci[1].is_finite() && ci[0] < ci[1],
