@@ -9,8 +9,9 @@
 //! keeps every prediction and slope; it only moves the intercept, see
 //! [`Design::uncenter`]) so that cross-products stay well conditioned.
 
-use super::{Frame, Kind, Rows, Store, rcs_basis, rcs_knots, reduce};
+use super::{BLOCK, Frame, Kind, Rows, Store, rcs_basis, rcs_knots, reduce};
 use nalgebra::{DMatrix, DVector};
+use rayon::prelude::*;
 
 /// How continuous covariates enter a model.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Default)]
@@ -346,6 +347,38 @@ pub struct DesignRows<'a> {
 }
 
 impl<'a> DesignRows<'a> {
+    /// Term `j` over rows `start..start + col.len()`, into `col`.
+    fn fill_term(&self, j: usize, start: usize, col: &mut [f64]) {
+        let term = &self.design.terms[j];
+        if term.factors.is_empty() {
+            col.fill(1.0);
+            return;
+        }
+        for (k, f) in term.factors.iter().enumerate() {
+            self.factor(f, start, col, k > 0);
+        }
+        let c = self.design.centers[j];
+        if c != 0.0 {
+            col.iter_mut().for_each(|v| *v -= c);
+        }
+    }
+
+    /// Design column `j` over every row, the values [`Rows::fill`] gives
+    /// (copied from the store when there is one, else only that term
+    /// computed).
+    pub fn column(&self, j: usize) -> Vec<f64> {
+        let n = self.nrows();
+        let mut out = vec![0.0; n];
+        out.par_chunks_mut(BLOCK).enumerate().for_each(|(b, chunk)| {
+            let start = b * BLOCK;
+            match self.stored(start, chunk.len()) {
+                Some(x) => chunk.copy_from_slice(&x[j * chunk.len()..(j + 1) * chunk.len()]),
+                None => self.fill_term(j, start, chunk),
+            }
+        });
+        out
+    }
+
     /// The same rows read from `store`, which must hold exactly these rows
     /// (see [`Store::of`]); `None` keeps filling them on demand.
     pub fn with_store(self, store: Option<&'a Store>) -> DesignRows<'a> {
@@ -402,19 +435,8 @@ impl Rows for DesignRows<'_> {
             out.copy_from_slice(x);
             return;
         }
-        for (j, term) in self.design.terms.iter().enumerate() {
-            let col = &mut out[j * len..(j + 1) * len];
-            if term.factors.is_empty() {
-                col.fill(1.0);
-                continue;
-            }
-            for (k, f) in term.factors.iter().enumerate() {
-                self.factor(f, start, col, k > 0);
-            }
-            let c = self.design.centers[j];
-            if c != 0.0 {
-                col.iter_mut().for_each(|v| *v -= c);
-            }
+        for j in 0..self.design.terms.len() {
+            self.fill_term(j, start, &mut out[j * len..(j + 1) * len]);
         }
     }
 }

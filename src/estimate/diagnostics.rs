@@ -243,14 +243,12 @@ fn balance(p: &Problem, h1: &[f64], h0: &[f64]) -> Vec<Balance> {
     let r1: Vec<f64> = a.to_vec();
     let r0: Vec<f64> = a.iter().map(|x| 1.0 - x).collect();
     let rows = p.propensity_rows();
-    let n = p.n();
-    let mut col = vec![0.0; n];
     let mut out = Vec::new();
     for (j, t) in p.propensity.terms().iter().enumerate() {
         if t.is_intercept() {
             continue;
         }
-        crate::data::map_rows(&rows, &mut col, |b, o| o.copy_from_slice(b.col(j)));
+        let col = rows.column(j);
         out.push(Balance {
             covariate: t.name.clone(),
             smd_raw: smd(&col, &r1, &r0),

@@ -198,7 +198,10 @@ mod tests {
     use crate::estimate::Spec;
 
     fn problem(binary_exposure: bool) -> Problem {
-        let n = 400;
+        problem_of(binary_exposure, 400)
+    }
+
+    fn problem_of(binary_exposure: bool, n: usize) -> Problem {
         let wave = |k: f64| (0..n).map(|i| (i as f64 * k).sin()).collect::<Vec<f64>>();
         let (l, m) = (wave(0.37), wave(1.13));
         let a: Vec<f64> = (0..n)
@@ -258,5 +261,23 @@ mod tests {
                 assert!(worst < 1e-12, "{s:?}: {worst}");
             }
         }
+    }
+
+    #[test]
+    fn a_design_column_equals_the_filled_block_column() {
+        // Over several blocks, stored (the propensity design) and streamed
+        // (the outcome design under a fixed exposure), bit for bit.
+        use crate::data::{BLOCK, Rows};
+        let p = problem_of(true, 2 * BLOCK + 77);
+        let check = |rows: &crate::data::DesignRows| {
+            let (n, k) = (rows.nrows(), rows.ncols());
+            let mut all = vec![0.0; n * k];
+            rows.fill(0, n, &mut all);
+            for j in 0..k {
+                assert_eq!(rows.column(j), all[j * n..(j + 1) * n].to_vec(), "column {j}");
+            }
+        };
+        check(&p.propensity_rows());
+        check(&p.outcome_design.rows(&p.frame, Setting::Fixed(1.0)));
     }
 }
