@@ -76,40 +76,6 @@ impl<'a> OutcomeModel<'a> {
         // reusing its information matrix, when that fit is at hand.
         let full = p.cache.outcome.get().and_then(|c| c.logit.as_ref());
         let exposure = design.exposure_term().unwrap_or(usize::MAX);
-        let (coef, chol, separation, logit, eta, aliased) = match (p.binary_outcome(), w, full) {
-            (true, Some(w), Some(full)) => {
-                let r = full.refit(&rows, p.y(), w, opts)?;
-                // The factor is the full sample's (a resample's influence is
-                // never asked for); the refit does not factor the new
-                // information, so aliasing is decided here directly.
-                let aliased = super::problem::aliased(design, &p.frame, Some(w)).contains(&exposure);
-                (
-                    r.coef,
-                    full.chol().clone(),
-                    r.separation,
-                    None,
-                    Some(r.eta),
-                    Some(aliased),
-                )
-            }
-            (true, _, _) => {
-                let start = warm.cloned().unwrap_or_else(|| design.logit_start(p.y(), w));
-                let f = Logit::fit(&rows, p.y(), w, Some(&start), opts)?;
-                let c = f.chol().clone();
-                (
-                    f.coef.clone(),
-                    c,
-                    f.separation.clone(),
-                    w.is_none().then_some(f),
-                    None,
-                    None,
-                )
-            }
-            (false, _, _) => {
-                let (coef, chol) = Ols::coefficients(&rows, p.y(), w)?;
-                (coef, chol, None, None, None, None)
-            }
-        };
         // Under separation the information matrix is near singular and a
         // column may look aliased there while its coefficient is simply not
         // updated; otherwise an aliased exposure (e.g. a replicate with no
@@ -120,24 +86,59 @@ impl<'a> OutcomeModel<'a> {
         // exposure coefficient: when a column is aliased (terms aliased in
         // the full data are already dropped, so this is rare), decide again
         // with the covariates first, as for the full data.
-        let exposure_aliased = aliased.unwrap_or_else(|| match chol.aliased() {
+        let aliased_in = |chol: &Chol| match chol.aliased() {
             a if a.is_empty() => false,
             a if a.contains(&exposure) => true,
             _ => super::problem::aliased(design, &p.frame, w).contains(&exposure),
-        });
-        if exposure_aliased && separation.is_none() {
+        };
+        let (fit, exposure_aliased) = match (p.binary_outcome(), w, full) {
+            (true, Some(w), Some(full)) => {
+                let r = full.refit(&rows, p.y(), w, opts)?;
+                // The refit factors no new information matrix, so aliasing
+                // is decided directly; the factor kept is the full sample's
+                // (a resample's influence is never asked for).
+                let aliased = super::problem::aliased(design, &p.frame, Some(w)).contains(&exposure);
+                let fit = OutcomeFit {
+                    coef: r.coef,
+                    chol: full.chol().clone(),
+                    separation: r.separation,
+                    eta: r.eta,
+                    logit: None,
+                };
+                (fit, aliased)
+            }
+            (true, _, _) => {
+                let start = warm.cloned().unwrap_or_else(|| design.logit_start(p.y(), w));
+                let f = Logit::fit(&rows, p.y(), w, Some(&start), opts)?;
+                let fit = OutcomeFit {
+                    eta: linear_predictor(&rows, &f.coef),
+                    coef: f.coef.clone(),
+                    chol: f.chol().clone(),
+                    separation: f.separation.clone(),
+                    logit: w.is_none().then_some(f),
+                };
+                let aliased = aliased_in(&fit.chol);
+                (fit, aliased)
+            }
+            (false, _, _) => {
+                let (coef, chol) = Ols::coefficients(&rows, p.y(), w)?;
+                let fit = OutcomeFit {
+                    eta: linear_predictor(&rows, &coef),
+                    coef,
+                    chol,
+                    separation: None,
+                    logit: None,
+                };
+                let aliased = aliased_in(&fit.chol);
+                (fit, aliased)
+            }
+        };
+        if exposure_aliased && fit.separation.is_none() {
             return Err(Error::Numerical(
                 "the exposure term is aliased in the outcome model".into(),
             ));
         }
-        let eta = eta.unwrap_or_else(|| linear_predictor(&rows, &coef));
-        Ok(OutcomeFit {
-            coef,
-            chol,
-            separation,
-            eta,
-            logit,
-        })
+        Ok(fit)
     }
 
     /// Mean outcome of every row with the exposure set by `setting`: the
@@ -148,14 +149,9 @@ impl<'a> OutcomeModel<'a> {
         if setting != Setting::Observed {
             let a = p.exposure;
             let terms = self.design.terms();
-            let other: Vec<usize> = (0..terms.len()).filter(|&j| !terms[j].uses(a)).collect();
+            let (own, other): (Vec<usize>, Vec<usize>) = (0..terms.len()).partition(|&j| terms[j].uses(a));
             let part = self.design.without(&other);
-            let b = DVector::from_iterator(
-                terms.len() - other.len(),
-                (0..terms.len())
-                    .filter(|j| !other.contains(j))
-                    .map(|j| self.coef[j]),
-            );
+            let b = DVector::from_iterator(own.len(), own.iter().map(|&j| self.coef[j]));
             let new = linear_predictor(&part.rows(&p.frame, setting), &b);
             let old = linear_predictor(&part.rows(&p.frame, Setting::Observed), &b);
             for ((m, n), o) in m.iter_mut().zip(new).zip(old) {

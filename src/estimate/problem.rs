@@ -276,16 +276,19 @@ impl Problem {
     /// The rows of the propensity design, read from memory once computed
     /// when they fit [`Store::MAX_VALUES`].
     pub fn propensity_rows(&self) -> DesignRows<'_> {
-        let rows = self.propensity.rows(&self.frame, Setting::Observed);
-        let store = self.cache.propensity_rows.get_or_init(|| Store::of(&rows));
-        rows.with_store(store.as_ref())
+        self.stored_rows(&self.propensity, &self.cache.propensity_rows)
     }
 
     /// The rows of the outcome design with the exposure as observed, read
     /// from memory as [`Problem::propensity_rows`].
     pub fn outcome_rows(&self) -> DesignRows<'_> {
-        let rows = self.outcome_design.rows(&self.frame, Setting::Observed);
-        let store = self.cache.outcome_rows.get_or_init(|| Store::of(&rows));
+        self.stored_rows(&self.outcome_design, &self.cache.outcome_rows)
+    }
+
+    /// The observed rows of `design`, with the store kept in `cell`.
+    fn stored_rows<'a>(&'a self, design: &'a Design, cell: &'a OnceLock<Option<Store>>) -> DesignRows<'a> {
+        let rows = design.rows(&self.frame, Setting::Observed);
+        let store = cell.get_or_init(|| Store::of(&rows));
         rows.with_store(store.as_ref())
     }
 

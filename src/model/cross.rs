@@ -1,6 +1,6 @@
 //! Block-wise accumulation of weighted cross-products.
 
-use crate::data::{Block, Rows, gram_lower_add, reduce, reduce_into, with_buffer};
+use crate::data::{Rows, gram_lower_add, reduce, reduce_into, with_buffer};
 use nalgebra::{DMatrix, DVector};
 
 /// Sums over the rows of a design: `X'VX`, `X'u` and two scalars.
@@ -31,39 +31,29 @@ impl Cross {
     }
 }
 
-/// `x_i'beta` for the rows of block `b`.
-fn eta_of(b: &Block, beta: &DVector<f64>) -> Vec<f64> {
-    let mut eta = vec![0.0; b.len];
-    b.times(beta.as_slice(), &mut eta);
-    eta
-}
-
-/// `X'u` and two sums, with `eta = X beta` written to `eta` (one value per
+/// `X'u` and a sum, with `eta = X beta` written to `eta` (one value per
 /// row): for each block, `f(start, eta_b, u_b)` fills the block's `u` from
-/// its `eta` (rows `start..`) and returns its two sums. Two products of the
-/// rows with vectors per block, no cross-product matrix.
-pub fn score<R, F>(rows: &R, beta: &DVector<f64>, eta: &mut [f64], f: F) -> (DVector<f64>, [f64; 2])
+/// its `eta` (rows `start..`) and returns its share of the sum. Two products
+/// of the rows with vectors per block, no cross-product matrix.
+pub fn score<R, F>(rows: &R, beta: &DVector<f64>, eta: &mut [f64], f: F) -> (DVector<f64>, f64)
 where
     R: Rows + ?Sized,
-    F: Fn(usize, &[f64], &mut [f64]) -> [f64; 2] + Sync,
+    F: Fn(usize, &[f64], &mut [f64]) -> f64 + Sync,
 {
     let p = rows.ncols();
     reduce_into(
         rows,
         eta,
-        || (DVector::zeros(p), [0.0; 2]),
+        || (DVector::zeros(p), 0.0),
         |(g, s), b, eta| {
             b.times(beta.as_slice(), eta);
             let mut u = vec![0.0; b.len];
-            let t = f(b.start, eta, &mut u);
-            s[0] += t[0];
-            s[1] += t[1];
+            *s += f(b.start, eta, &mut u);
             b.times_tr_add(&u, g.as_mut_slice());
         },
         |(g, s), (h, t)| {
             *g += h;
-            s[0] += t[0];
-            s[1] += t[1];
+            *s += t;
         },
     )
 }
@@ -83,10 +73,10 @@ where
         || Cross::zeros(p),
         |acc, b| {
             let len = b.len;
-            let eta = match beta {
-                Some(beta) => eta_of(b, beta),
-                None => vec![0.0; len],
-            };
+            let mut eta = vec![0.0; len];
+            if let Some(beta) = beta {
+                b.times(beta.as_slice(), &mut eta);
+            }
             // Rows kept in X'VX and the square roots of their v.
             let mut keep = Vec::with_capacity(len);
             let mut u = vec![0.0; len];
