@@ -16,6 +16,7 @@ pub mod graph_figure;
 pub mod identify_text;
 pub mod latex;
 pub mod markdown;
+pub mod sensitivity_doc;
 pub mod sensitivity_text;
 pub mod svg;
 pub mod text;
