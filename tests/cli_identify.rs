@@ -48,13 +48,24 @@ fn json_keys_match_the_contract() {
     );
     assert_eq!(
         keys(&v["backdoor"]),
-        sorted(&["identified", "minimal_sets", "optimal_set", "open_paths"])
+        sorted(&[
+            "identified",
+            "minimal_sets",
+            "optimal_set",
+            "open_paths",
+            "open_path_edges"
+        ])
     );
     assert_eq!(keys(&v["frontdoor"]), sorted(&["identified", "sets"]));
     assert_eq!(v["strategy"], "backdoor");
     assert_eq!(v["backdoor"]["minimal_sets"], serde_json::json!([["C"]]));
     assert_eq!(v["backdoor"]["optimal_set"], serde_json::json!(["C"]));
     assert_eq!(v["backdoor"]["open_paths"], serde_json::json!([["X", "C", "Y"]]));
+    // The same path as directed edges, each as drawn: C -> X, C -> Y.
+    assert_eq!(
+        v["backdoor"]["open_path_edges"],
+        serde_json::json!([[["C", "X"], ["C", "Y"]]])
+    );
 
     let (r, _d) = run(&[
         "identify",
@@ -70,7 +81,10 @@ fn json_keys_match_the_contract() {
         "C",
     ]);
     let v: Value = serde_json::from_str(&r.stdout).expect("JSON output");
-    assert_eq!(keys(&v["given_set"]), sorted(&["set", "valid", "open_paths"]));
+    assert_eq!(
+        keys(&v["given_set"]),
+        sorted(&["set", "valid", "open_paths", "open_path_edges"])
+    );
     assert_eq!(v["given_set"]["valid"], true);
 }
 
@@ -134,6 +148,11 @@ fn adjust_with_invalid_set_reports_the_open_path() {
     assert_eq!(
         v["given_set"]["open_paths"],
         serde_json::json!([["X", "A", "M", "B", "Y"]])
+    );
+    // X <- A -> M <- B -> Y as edges in the graph's directions.
+    assert_eq!(
+        v["given_set"]["open_path_edges"],
+        serde_json::json!([[["A", "X"], ["A", "M"], ["B", "M"], ["B", "Y"]]])
     );
     // A descendant of the exposure is named as such.
     let g2 = write(dir.path(), "g2.graph", "C -> X\nC -> Y\nX -> D -> Y\n");

@@ -192,7 +192,13 @@ fn inputs_are_unchanged_after_a_run_with_out() {
     let before = snapshot(&paths);
     let r = estimate_in(dir.path(), &["--out", "bundle", "--bootstrap", "20", "--quiet"]);
     assert_eq!(r.code, 0, "{}", r.stderr);
-    for f in ["report.md", "results.json", "table.tex", "figures/graph.svg"] {
+    for f in [
+        "report.md",
+        "results.json",
+        "table.tex",
+        "estimates.csv",
+        "figures/g-graph.svg",
+    ] {
         assert!(dir.path().join("bundle").join(f).is_file(), "{f} written");
     }
     // A second run over the same bundle replaces it, still not the inputs.

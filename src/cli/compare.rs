@@ -9,9 +9,8 @@ use causeway::identify::Strategy;
 use causeway::plan::Plan;
 use causeway::report::bundle::{self, File};
 use causeway::report::compare_doc::{self, Difference, Run, RunResult};
-use causeway::report::doc::{Block, Doc, FileStamp, Stamp};
-use causeway::report::markdown::Markdown;
-use causeway::report::{Exporter, estimate_doc};
+use causeway::report::doc::{Block, DataTable, Doc, FileStamp, Stamp};
+use causeway::report::{csv, estimate_doc};
 use causeway::{Error, Result};
 use serde_json::{Value, json};
 use std::path::PathBuf;
@@ -210,7 +209,8 @@ impl Comparison {
         })
     }
 
-    /// The comparison table's blocks: differences, then the table.
+    /// The comparison's blocks: what differs, then the table (and, for the
+    /// data formats, the tidy table of every estimate).
     pub fn blocks(&self, level: f64) -> Vec<Block> {
         let mut b = Vec::new();
         let diff = compare_doc::differences_blocks(&self.differences);
@@ -220,23 +220,62 @@ impl Comparison {
         }
         b.push(Block::Heading("Estimates under each graph".into()));
         b.push(Block::Table(compare_doc::comparison_table(&self.runs, level)));
+        if let Some(t) = self.data_tables().into_iter().next() {
+            b.push(Block::Data(t));
+        }
         b
     }
 
-    /// The bundle: report.md with a section per graph, results.json,
-    /// table.tex and every graph's figures.
-    pub fn bundle(&self, doc: &Doc, json: &str, level: f64) -> Result<Vec<File>> {
-        let mut blocks = doc.blocks.clone();
+    /// The tidy tables of every run, stacked (`estimates` first).
+    pub fn data_tables(&self) -> Vec<DataTable> {
+        let mut all = Vec::new();
+        for (run, plan) in self.runs.iter().zip(&self.plans) {
+            match &run.result {
+                RunResult::Done(a) => all.extend(csv::analysis_tables(&run.graph, a)),
+                RunResult::Stopped {
+                    strategy,
+                    reason,
+                    check,
+                } => {
+                    let (x, y) = plan.as_ref().map_or((String::new(), String::new()), |p| {
+                        let g = &p.roles.graph;
+                        (
+                            g.name(p.roles.exposure).to_string(),
+                            g.name(p.roles.outcome).to_string(),
+                        )
+                    });
+                    all.push(csv::stopped(&run.graph, &x, &y, *strategy, reason));
+                    all.extend(check.iter().map(|c| csv::check(&run.graph, c)));
+                }
+            }
+        }
+        csv::stack(all)
+    }
+
+    /// The bundle: report.md with `head`, then a section per graph (its
+    /// sub-sections one level down, each text said once), then `tail`;
+    /// results.json; table.tex with every table; the tidy CSV files; and
+    /// every graph's figures, named after the graph.
+    pub fn bundle(&self, doc: &Doc, head: Vec<Block>, tail: Vec<Block>, json: &str) -> Result<Vec<File>> {
+        let mut blocks = head;
         let mut figures = Vec::new();
-        for (i, (run, plan)) in self.runs.iter().zip(&self.plans).enumerate() {
-            let prefix = format!("figures/graph{}-", i + 1);
-            blocks.push(Block::Heading(format!("Under {}", run.graph)));
+        let mut tables = bundle::tables_of(&blocks);
+        let mut taken: Vec<String> = Vec::new();
+        for (run, plan) in self.runs.iter().zip(&self.plans) {
+            let prefix = estimate_doc::figure_prefix(&run.graph, &taken);
+            taken.push(prefix.clone());
+            blocks.push(Block::Heading(format!("Graph {}", run.graph)));
             let Some(plan) = plan else { continue };
             match &run.result {
                 RunResult::Done(a) => {
                     for blk in estimate_doc::analysis_blocks(a, Some(&prefix)) {
                         blocks.push(match blk {
-                            Block::Heading(h) => Block::Heading(format!("{h} ({})", run.graph)),
+                            Block::Heading(h) => Block::Subheading(h),
+                            Block::Table(mut t) => {
+                                t.caption = format!("{} (graph {})", t.caption, run.graph);
+                                tables.push(t.clone());
+                                Block::Table(t)
+                            }
                             other => other,
                         });
                     }
@@ -253,40 +292,31 @@ impl Comparison {
                 }
             }
         }
+        blocks.extend(tail);
         let report = Doc {
             title: doc.title.clone(),
-            blocks,
+            blocks: compare_doc::said_once(blocks),
             stamp: doc.stamp.clone(),
         };
-        let mut files = vec![
-            File {
-                path: "report.md".into(),
-                bytes: Markdown.render(&report).into_bytes(),
-            },
-            File {
-                path: "results.json".into(),
-                bytes: json.as_bytes().to_vec(),
-            },
-            File {
-                path: "table.tex".into(),
-                bytes: bundle::table_tex(doc, compare_doc::comparison_table(&self.runs, level)).into_bytes(),
-            },
-        ];
+        let mut files = bundle::report_files(&report, json, &tables, &self.data_tables());
         files.extend(figures);
         Ok(files)
     }
 }
 
-/// Prints a comparison laid out as `blocks` (and writes its bundle) in the
-/// requested format.
+/// Prints a comparison laid out as `blocks` (and writes its bundle, whose
+/// report.md has `head`, a section per graph, then `tail`) in the requested
+/// format.
+#[allow(clippy::too_many_arguments)]
 pub fn output(
     c: &Comparison,
     title: String,
     blocks: Vec<Block>,
+    head: Vec<Block>,
+    tail: Vec<Block>,
     format: FormatArg,
     out: Option<&PathBuf>,
     inputs: &[&std::path::Path],
-    level: f64,
 ) -> Result<()> {
     let doc = Doc {
         title,
@@ -295,7 +325,7 @@ pub fn output(
     };
     let json_text = to_json(&c.json()?)?;
     if let Some(dir) = out {
-        write_bundle(dir, &c.bundle(&doc, &json_text, level)?, inputs)?;
+        write_bundle(dir, &c.bundle(&doc, head, tail, &json_text)?, inputs)?;
     }
     let text = match causeway::report::Format::from(format).exporter() {
         Some(x) => x.render(&doc),
@@ -324,14 +354,16 @@ pub fn run(a: Args) -> Result<i32> {
         a.flags.outcome,
         inputs.len()
     );
+    let blocks = c.blocks(a.flags.level);
     output(
         &c,
         title,
-        c.blocks(a.flags.level),
+        blocks.clone(),
+        blocks,
+        Vec::new(),
         a.format,
         a.out.as_ref(),
         &paths,
-        a.flags.level,
     )?;
     Ok(if c.analyses().next().is_none() { 3 } else { 0 })
 }

@@ -6,8 +6,8 @@ use super::common::{FormatArg, print_stdout, to_json, write_bundle};
 use super::flags::{self, DataSource, EstimateFlags};
 use causeway::Result;
 use causeway::analysis::{self, Analysis};
-use causeway::report::doc::{Doc, Stamp};
-use causeway::report::estimate_doc;
+use causeway::report::doc::{Block, Doc, Stamp};
+use causeway::report::{csv, estimate_doc};
 use serde_json::{Map, Value, json};
 use std::path::PathBuf;
 
@@ -77,14 +77,18 @@ pub fn run(a: Args) -> Result<i32> {
     let result = analysis::run(&plan, &dataset, &opts)?;
     let stamp = flags::stamp(a.flags.seed, vec![flags::file_stamp(&a.graph)?, data.stamp()?]);
     let value = json(&stamp, &result, result.sample.rows)?;
+    let graph_label = a.graph.display().to_string();
+    let mut blocks = estimate_doc::analysis_blocks(&result, None);
+    blocks.push(Block::Data(csv::estimates(&graph_label, &result)));
     let doc = Doc {
         title: format!("causeway estimate: {} on {}", result.exposure, result.outcome),
-        blocks: estimate_doc::analysis_blocks(&result, None),
+        blocks,
         stamp: Some(stamp.clone()),
     };
     let json_text = to_json(&value)?;
     if let Some(dir) = &a.out {
-        let files = causeway::report::bundle::estimate_bundle(&plan, &result, &doc, &json_text)?;
+        let files =
+            causeway::report::bundle::estimate_bundle(&plan, &result, &doc, &json_text, &graph_label)?;
         write_bundle(dir, &files, &[&a.graph, &a.data])?;
     }
     let text = match causeway::report::Format::from(a.format).exporter() {

@@ -114,7 +114,7 @@ impl Method for Ipw {
         let form = if self.horvitz_thompson {
             "Horvitz-Thompson"
         } else {
-            "normalised (Hajek)"
+            "normalized (Hajek)"
         };
         let notes = vec![format!(
             "{form} inverse probability weights from a logistic propensity model{}",

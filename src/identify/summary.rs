@@ -34,6 +34,9 @@ pub struct BackdoorSummary {
     pub optimal_set: Option<Vec<String>>,
     /// Backdoor paths open when adjusting for nothing.
     pub open_paths: Vec<Vec<String>>,
+    /// The same paths as lists of edges, each `[from, to]` as drawn in
+    /// the graph (a `<->` edge appears as its latent node's two edges).
+    pub open_path_edges: Vec<Vec<[String; 2]>>,
     /// There are more minimal sets than listed.
     #[serde(skip)]
     pub minimal_sets_truncated: bool,
@@ -70,6 +73,8 @@ pub struct GivenSet {
     pub valid: bool,
     /// Backdoor paths the set leaves open.
     pub open_paths: Vec<Vec<String>>,
+    /// The same paths as lists of directed edges `[from, to]`.
+    pub open_path_edges: Vec<Vec<[String; 2]>>,
     /// There are more open paths than listed.
     #[serde(skip)]
     pub open_paths_truncated: bool,
@@ -129,6 +134,26 @@ fn names(g: &Graph, sets: &[Vec<Node>]) -> Vec<Vec<String>> {
     sets.iter().map(|s| g.names_of(s)).collect()
 }
 
+/// Each path as its edges, `[from, to]` in the direction of the graph's
+/// edge between consecutive nodes.
+pub fn path_edges(g: &Graph, paths: &[Vec<Node>]) -> Vec<Vec<[String; 2]>> {
+    paths
+        .iter()
+        .map(|p| {
+            p.windows(2)
+                .map(|w| {
+                    let (a, b) = if g.has_edge(w[0], w[1]) {
+                        (w[0], w[1])
+                    } else {
+                        (w[1], w[0])
+                    };
+                    [g.name(a).to_string(), g.name(b).to_string()]
+                })
+                .collect()
+        })
+        .collect()
+}
+
 /// Applies every criterion of this module to the effect of `x` on `y`, and
 /// checks `given` against the backdoor criterion when it is passed. The
 /// caller makes sure `x` and `y` are distinct observed nodes and that
@@ -143,6 +168,7 @@ pub fn identify(g: &Graph, x: Node, y: Node, given: Option<&[Node]>) -> Identifi
         minimal_sets: names(g, &minimal),
         optimal_set: optimal.as_ref().ok().map(|o| g.names_of(o)),
         open_paths: names(g, &open),
+        open_path_edges: path_edges(g, &open),
         minimal_sets_truncated: minimal_truncated,
         open_paths_truncated: open_truncated,
         optimal_set_reason: optimal.err(),
@@ -173,6 +199,7 @@ pub fn identify(g: &Graph, x: Node, y: Node, given: Option<&[Node]>) -> Identifi
             set: g.names_of(&z),
             valid: check.valid,
             open_paths: names(g, &check.open_paths),
+            open_path_edges: path_edges(g, &check.open_paths),
             open_paths_truncated: check.open_paths_truncated,
             descendants_of_exposure: g.names_of(&check.descendants_of_exposure),
         }

@@ -1,13 +1,17 @@
 //! The report bundle for a paper: `report.md` (with figures), `results.json`,
-//! `table.tex` (a booktabs table in a document that compiles as is) and
-//! `figures/*.svg`. This module only assembles the files; the command writes
-//! them.
+//! `table.tex` (booktabs tables to `\input` in a manuscript) with
+//! `table-standalone.tex` (a document that compiles them alone), one tidy
+//! CSV file per kind of table (`estimates.csv`, `diagnostics.csv`,
+//! `balance.csv`, `sensitivity.csv`, `benchmarks.csv`, `check.csv`) and
+//! `figures/*.svg`, named after the graph. This module only assembles the
+//! files; the command writes them.
 
-use super::doc::{Block, Doc, Exporter};
+use super::doc::{Block, DataTable, Doc, Exporter, Table};
 use super::estimate_doc::{self, figure_paths};
 use super::graph_figure::{self, Marks};
 use super::tipping_figure::{self, Reference, ReferenceKind};
-use super::{balance_figure, latex::Latex, markdown::Markdown};
+use super::{balance_figure, markdown::Markdown};
+use super::{csv, latex};
 use crate::Result;
 use crate::analysis::Analysis;
 use crate::plan::Plan;
@@ -82,27 +86,49 @@ pub fn figures(plan: &Plan, a: Option<&Analysis>, prefix: &str) -> Result<Vec<Fi
     Ok(out)
 }
 
-/// A LaTeX document holding only `table` (and the stamp and cautions).
-pub fn table_tex(doc: &Doc, table: super::Table) -> String {
-    Latex.render(&Doc {
-        title: doc.title.clone(),
-        blocks: vec![Block::Table(table)],
-        stamp: doc.stamp.clone(),
-    })
+/// The tables of a document's blocks, in order.
+pub fn tables_of(blocks: &[Block]) -> Vec<Table> {
+    blocks
+        .iter()
+        .filter_map(|b| match b {
+            Block::Table(t) => Some(t.clone()),
+            _ => None,
+        })
+        .collect()
 }
 
-/// The bundle of `estimate`.
-pub fn estimate_bundle(plan: &Plan, a: &Analysis, doc: &Doc, json: &str) -> Result<Vec<File>> {
+/// The files every bundle has: report.md, results.json, table.tex with
+/// its standalone wrapper, and one CSV file per tidy table.
+pub fn report_files(report: &Doc, json: &str, tables: &[Table], data: &[DataTable]) -> Vec<File> {
+    let mut files = vec![
+        file("report.md", Markdown.render(report)),
+        file("results.json", json.to_string()),
+        file("table.tex", latex::fragment(tables, report.stamp.as_ref())),
+        file("table-standalone.tex", latex::standalone("table.tex")),
+    ];
+    files.extend(
+        data.iter()
+            .map(|t| file(&format!("{}.csv", t.name), csv::data_table(t))),
+    );
+    files
+}
+
+/// The bundle of `estimate`; `graph` is the graph's path as given, which
+/// names the figures and fills the `graph` column of the CSV files.
+pub fn estimate_bundle(plan: &Plan, a: &Analysis, doc: &Doc, json: &str, graph: &str) -> Result<Vec<File>> {
+    let prefix = estimate_doc::figure_prefix(graph, &[]);
     let report = Doc {
         title: doc.title.clone(),
-        blocks: estimate_doc::analysis_blocks(a, Some("figures/")),
+        blocks: estimate_doc::analysis_blocks(a, Some(&prefix)),
         stamp: doc.stamp.clone(),
     };
-    let mut files = vec![
-        file("report.md", Markdown.render(&report)),
-        file("results.json", json.to_string()),
-        file("table.tex", table_tex(doc, estimate_doc::estimates_table(a))),
-    ];
-    files.extend(figures(plan, Some(a), "figures/")?);
+    let tables = tables_of(&report.blocks);
+    let mut files = report_files(
+        &report,
+        json,
+        &tables,
+        &csv::stack(csv::analysis_tables(graph, a)),
+    );
+    files.extend(figures(plan, Some(a), &prefix)?);
     Ok(files)
 }

@@ -4,11 +4,12 @@
 //! with the reason.
 
 use super::doc::{Align, Block, Table};
-use super::estimate_doc::{evalue_cell, interval, num, set_text};
+use super::estimate_doc::{evalue_cell, num, scale_label, set_text, shown, shown_interval};
 use crate::analysis::{Analysis, CheckSummary};
 use crate::graph::GraphDiff;
 use crate::identify::Strategy;
 use serde::Serialize;
+use std::collections::HashSet;
 
 /// The outcome of one graph's run.
 #[derive(Debug, Clone)]
@@ -65,9 +66,62 @@ pub fn differences_blocks(diffs: &[Difference]) -> Vec<Block> {
     }
 }
 
-/// The comparison table: one row per graph and method.
+/// The blocks with each text said once: a paragraph, list, warning or
+/// table note that repeats an earlier one is left out (the cautions and
+/// methods common to every graph of a comparison), and so is a heading left
+/// with nothing under it.
+pub fn said_once(blocks: Vec<Block>) -> Vec<Block> {
+    let mut seen: HashSet<String> = HashSet::new();
+    let mut kept: Vec<Block> = Vec::new();
+    for b in blocks {
+        let key = match &b {
+            Block::Para(p) => Some(p.clone()),
+            Block::Warning(w) => Some(format!("! {w}")),
+            Block::List(items) => Some(items.join("\n")),
+            _ => None,
+        };
+        match (b, key) {
+            (_, Some(k)) if !seen.insert(k.clone()) => {}
+            (Block::Table(mut t), _) => {
+                t.notes.retain(|n| seen.insert(n.clone()));
+                kept.push(Block::Table(t));
+            }
+            (b, _) => kept.push(b),
+        }
+    }
+    let rank = |b: &Block| match b {
+        Block::Heading(_) => Some(1),
+        Block::Subheading(_) => Some(2),
+        _ => None,
+    };
+    let mut out: Vec<Block> = Vec::new();
+    for b in kept.into_iter().rev() {
+        if let Some(r) = rank(&b) {
+            let next = out.iter().rev().find(|n| !matches!(n, Block::Data(_)));
+            if next.is_none_or(|n| rank(n).is_some_and(|nr| nr <= r)) {
+                continue;
+            }
+        }
+        out.push(b);
+    }
+    out.reverse();
+    out
+}
+
+/// The comparison table: one row per graph and method. The interval is the
+/// one each analysis recommends (bootstrap when it ran), named in the
+/// heading.
 pub fn comparison_table(runs: &[Run], level: f64) -> Table {
-    let ci_head = format!("{:.0}% interval", 100.0 * level);
+    let boot = runs.iter().find_map(|r| match &r.result {
+        RunResult::Done(a) => a.estimates.iter().find_map(|e| e.bootstrap.as_ref()),
+        RunResult::Stopped { .. } => None,
+    });
+    let kind = match boot {
+        Some(b) if b.interval == "bca" => "bootstrap BCa".to_string(),
+        Some(b) => format!("bootstrap {}", b.interval),
+        None => "analytic".to_string(),
+    };
+    let ci_head = format!("{:.0}% interval ({kind})", 100.0 * level);
     let mut t = Table::new(
         "The same analysis under each graph",
         &[
@@ -75,6 +129,7 @@ pub fn comparison_table(runs: &[Run], level: f64) -> Table {
             "strategy",
             "set used",
             "method",
+            "scale",
             "estimate",
             &ci_head,
             "E-value (interval)",
@@ -82,7 +137,8 @@ pub fn comparison_table(runs: &[Run], level: f64) -> Table {
     )
     .align(1, Align::Left)
     .align(2, Align::Left)
-    .align(3, Align::Left);
+    .align(3, Align::Left)
+    .align(4, Align::Left);
     for r in runs {
         match &r.result {
             RunResult::Done(a) => {
@@ -104,8 +160,9 @@ pub fn comparison_table(runs: &[Run], level: f64) -> Table {
                         strategy.into(),
                         set_text(&set),
                         e.method.clone(),
-                        num(e.estimate),
-                        interval(e.ci),
+                        scale_label(a, e.scale).into(),
+                        num(shown(a, e.scale, e.estimate)),
+                        shown_interval(a, e.scale, e.ci),
                         ev,
                     ]);
                 }
@@ -116,15 +173,9 @@ pub fn comparison_table(runs: &[Run], level: f64) -> Table {
                 } else {
                     "stopped"
                 };
-                t.row(vec![
-                    r.graph.clone(),
-                    s.into(),
-                    "-".into(),
-                    "-".into(),
-                    "-".into(),
-                    "-".into(),
-                    "-".into(),
-                ]);
+                let mut row = vec![r.graph.clone(), s.into()];
+                row.resize(8, "-".into());
+                t.row(row);
                 t.notes.push(format!("{}: {reason}.", r.graph));
             }
         }

@@ -58,11 +58,80 @@ impl Table {
     }
 }
 
+/// One cell of a [`DataTable`]: a number, a label, or nothing.
+#[derive(Debug, Clone, PartialEq)]
+pub enum Cell {
+    /// A number, written in full precision (empty when not finite).
+    Num(f64),
+    /// A count.
+    Count(usize),
+    /// A label.
+    Text(String),
+    /// A missing value (an empty cell).
+    Empty,
+}
+
+impl Cell {
+    /// A number, or an empty cell for `None`.
+    pub fn opt(v: Option<f64>) -> Cell {
+        v.map_or(Cell::Empty, Cell::Num)
+    }
+
+    /// The cell as written in a data file: numbers in full (shortest
+    /// round-trip) precision, nothing for a missing or non-finite value.
+    pub fn plain(&self) -> String {
+        match self {
+            Cell::Num(v) if v.is_finite() => format!("{v}"),
+            Cell::Num(_) | Cell::Empty => String::new(),
+            Cell::Count(n) => n.to_string(),
+            Cell::Text(s) => s.clone(),
+        }
+    }
+}
+
+/// A machine-readable table: one row per observation, one column per
+/// variable, numbers kept as numbers. The data formats (CSV) write these;
+/// the reading formats (text, Markdown, LaTeX) skip them.
+#[derive(Debug, Clone, Default, PartialEq)]
+pub struct DataTable {
+    /// A short name, also the file stem in a report bundle (`estimates`).
+    pub name: String,
+    /// Column names (lower case, no spaces).
+    pub headers: Vec<String>,
+    /// Rows; each has one cell per column.
+    pub rows: Vec<Vec<Cell>>,
+}
+
+impl DataTable {
+    /// An empty table with these columns.
+    pub fn new(name: &str, headers: &[&str]) -> Self {
+        DataTable {
+            name: name.to_string(),
+            headers: headers.iter().map(|h| h.to_string()).collect(),
+            rows: Vec::new(),
+        }
+    }
+
+    /// Appends a row (padded with empty cells or cut to the columns).
+    pub fn row(&mut self, mut cells: Vec<Cell>) {
+        cells.resize(self.headers.len(), Cell::Empty);
+        self.rows.push(cells);
+    }
+
+    /// Appends the rows of `other` (same columns).
+    pub fn extend(&mut self, other: DataTable) {
+        debug_assert_eq!(self.headers, other.headers);
+        self.rows.extend(other.rows);
+    }
+}
+
 /// One block of a document.
 #[derive(Debug, Clone)]
 pub enum Block {
     /// A section heading.
     Heading(String),
+    /// A heading one level below [`Block::Heading`].
+    Subheading(String),
     /// A paragraph of plain text.
     Para(String),
     /// A bulleted list.
@@ -78,6 +147,8 @@ pub enum Block {
     },
     /// A warning to the reader.
     Warning(String),
+    /// A machine-readable table, written only by the data formats.
+    Data(DataTable),
 }
 
 /// The reproducibility stamp that every output carries.

@@ -6,6 +6,7 @@
 use super::doc::{Align, Block, Table};
 use super::sensitivity_text::sig;
 use crate::analysis::Analysis;
+use crate::estimate::Scale;
 use crate::identify::Strategy;
 use crate::sensitivity::evalue::EValue;
 
@@ -86,59 +87,122 @@ fn method_label(m: &str) -> &str {
     }
 }
 
-fn ci_label(m: &str) -> &str {
-    match m {
-        "sandwich" => "sandwich",
-        "bootstrap-percentile" => "bootstrap percentile",
-        "bootstrap-bca" => "bootstrap BCa",
-        "bootstrap-normal" => "bootstrap normal",
+fn bootstrap_label(kind: &str) -> &str {
+    match kind {
+        "bca" => "BCa",
         other => other,
     }
 }
 
-/// The estimates table of one analysis.
+fn bootstrap_long(kind: &str) -> &str {
+    match kind {
+        "bca" => "bias-corrected and accelerated (BCa)",
+        "normal" => "normal-approximation",
+        other => other,
+    }
+}
+
+/// The scale of an estimate in words: "risk difference (percentage
+/// points)", "risk ratio" or "odds ratio" for a binary outcome; "mean
+/// difference" for a continuous one.
+pub fn scale_label(a: &Analysis, scale: Scale) -> &'static str {
+    match (a.binary_outcome, scale) {
+        (true, Scale::Difference) => "risk difference (percentage points)",
+        (false, Scale::Difference) => "mean difference",
+        (_, Scale::Ratio) => "risk ratio",
+        (_, Scale::Odds) => "odds ratio",
+    }
+}
+
+/// A value on `scale` as shown in reading text: a risk difference in
+/// percentage points (times 100), anything else as estimated. Data formats
+/// (JSON, CSV) keep the estimate as a difference of proportions.
+pub fn shown(a: &Analysis, scale: Scale, v: f64) -> f64 {
+    if a.binary_outcome && scale == Scale::Difference {
+        100.0 * v
+    } else {
+        v
+    }
+}
+
+/// An interval on `scale` as shown in reading text (see [`shown`]).
+pub fn shown_interval(a: &Analysis, scale: Scale, ci: [f64; 2]) -> String {
+    interval([shown(a, scale, ci[0]), shown(a, scale, ci[1])])
+}
+
+/// The estimates table of one analysis. The analytic interval (from the
+/// sandwich standard error) always has its own column; when the bootstrap
+/// ran, its interval stands beside it in a column named for its kind.
 pub fn estimates_table(a: &Analysis) -> Table {
     let level = a.estimates.first().map_or(0.95, |e| e.estimate.level);
-    let ci_head = format!("{:.0}% interval", 100.0 * level);
-    let mut t = Table::new(
-        &format!("Effect of {} on {}", a.exposure, a.outcome),
-        &[
-            "method",
-            "estimand",
-            "scale",
-            "estimate",
-            "std. error",
-            &ci_head,
-            "interval from",
-        ],
-    )
-    .align(1, Align::Left)
-    .align(2, Align::Left)
-    .align(6, Align::Left);
+    let pct = format!("{:.0}%", 100.0 * level);
+    let boot = a.estimates.iter().find_map(|e| e.bootstrap.as_ref());
+    let analytic_head = format!("{pct} interval (analytic)");
+    let boot_head = boot.map(|b| format!("{pct} interval (bootstrap {})", bootstrap_label(&b.interval)));
+    let mut heads = vec![
+        "method",
+        "estimand",
+        "scale",
+        "estimate",
+        "std. error (analytic)",
+        &analytic_head,
+    ];
+    heads.extend(boot_head.as_deref());
+    let mut t = Table::new(&format!("Effect of {} on {}", a.exposure, a.outcome), &heads)
+        .align(1, Align::Left)
+        .align(2, Align::Left);
     for it in &a.estimates {
         let e = &it.estimate;
-        t.row(vec![
+        let sh = |v: f64| num(shown(a, e.scale, v));
+        let mut row = vec![
             method_label(&e.method).into(),
             e.estimand.to_string(),
-            e.scale.to_string(),
-            num(e.estimate),
-            num(e.std_error),
-            interval(e.ci),
-            ci_label(&e.ci_method).into(),
-        ]);
-        if let Some(b) = &it.bootstrap {
-            let failed = if b.failed > 0 {
-                format!(", {} failed", b.failed)
-            } else {
-                String::new()
-            };
-            t.notes.push(format!(
-                "{}: {} bootstrap replicates{failed}; sandwich interval {}.",
-                e.method,
-                b.replicates,
-                interval(it.analytic_ci)
-            ));
+            scale_label(a, e.scale).into(),
+            sh(e.estimate),
+            sh(e.std_error),
+            shown_interval(a, e.scale, it.analytic_ci),
+        ];
+        if boot.is_some() {
+            row.push(match &it.bootstrap {
+                Some(b) => shown_interval(a, e.scale, b.ci),
+                None => "-".into(),
+            });
         }
+        t.row(row);
+    }
+    t.notes.push(
+        if a.estimates.iter().any(|e| e.estimate.scale != Scale::Difference) {
+            "Analytic intervals use the sandwich (M-estimation) standard error, on the log scale for ratios."
+                .into()
+        } else {
+            "Analytic intervals use the sandwich (M-estimation) standard error.".into()
+        },
+    );
+    if a.binary_outcome && a.estimates.iter().any(|e| e.estimate.scale == Scale::Difference) {
+        t.notes.push(
+            "Risk differences are in percentage points (100 times the difference in risk); the results file \
+             keeps them as differences of proportions."
+                .into(),
+        );
+    }
+    if let Some(b) = boot {
+        let failed: Vec<String> = a
+            .estimates
+            .iter()
+            .filter_map(|it| it.bootstrap.as_ref().filter(|b| b.failed > 0).map(|b| (it, b)))
+            .map(|(it, b)| format!("{} {}", it.estimate.method, b.failed))
+            .collect();
+        let failed = if failed.is_empty() {
+            String::new()
+        } else {
+            format!(" (failed: {})", failed.join(", "))
+        };
+        t.notes.push(format!(
+            "Bootstrap intervals: nonparametric {} intervals from {} replicates that refit every model{failed}; \
+             the results file gives the bootstrap interval as the recommended one.",
+            bootstrap_long(&b.interval),
+            b.replicates
+        ));
     }
     t
 }
@@ -242,28 +306,63 @@ pub fn diagnostics_blocks(a: &Analysis) -> Vec<Block> {
 }
 
 /// File names of the figures of one analysis in a report bundle, all
-/// starting with `prefix` (e.g. `figures/`).
+/// starting with `prefix` (e.g. `figures/main-`, see [`figure_prefix`]):
+/// the graph, the balance plot and the sensitivity figure.
 pub fn figure_paths(prefix: &str) -> [String; 3] {
     [
         format!("{prefix}graph.svg"),
         format!("{prefix}balance.svg"),
-        format!("{prefix}tipping-point.svg"),
+        format!("{prefix}sensitivity.svg"),
     ]
 }
 
-/// A methods paragraph an author can adapt, citing the methods used.
-pub fn methods_paragraph(a: &Analysis) -> String {
+/// The figure-name prefix for a graph labelled `label` (a path or a
+/// name): `figures/` and the file stem, made safe for a file name, then
+/// `-` (`figures/main-` for `demo-data/main.graph`). `taken` holds the
+/// prefixes already in use; a repeated stem gets a number.
+pub fn figure_prefix(label: &str, taken: &[String]) -> String {
+    let base = std::path::Path::new(label)
+        .file_stem()
+        .map(|s| s.to_string_lossy().to_string())
+        .unwrap_or_default();
+    let mut stem: String = base
+        .chars()
+        .map(|c| {
+            if c.is_ascii_alphanumeric() || c == '-' || c == '_' {
+                c
+            } else {
+                '-'
+            }
+        })
+        .collect();
+    if stem.trim_matches('-').is_empty() {
+        stem = "graph".into();
+    }
+    let mut prefix = format!("figures/{stem}-");
+    let mut i = 2;
+    while taken.contains(&prefix) {
+        prefix = format!("figures/{stem}{i}-");
+        i += 1;
+    }
+    prefix
+}
+
+/// A methods text an author can adapt, citing the methods used, in three
+/// paragraphs: identification and estimators; standard errors and
+/// intervals; sensitivity. (A comparison says a paragraph shared by its
+/// graphs once.)
+pub fn methods_paragraphs(a: &Analysis) -> Vec<String> {
     let id = &a.identification;
     let mut s = match id.strategy {
         Strategy::Backdoor => format!(
-            "Under the declared causal graph, the effect of {} on {} was identified by the backdoor criterion              (Pearl 2009, Def. 3.3.1), adjusting for {} ({}).",
+            "Under the declared causal graph, the effect of {} on {} was identified by the backdoor criterion (Pearl 2009, Def. 3.3.1), adjusting for {} ({}).",
             a.exposure,
             a.outcome,
             set_text(id.adjustment_set.as_deref().unwrap_or(&[])),
             id.reason
         ),
         Strategy::Frontdoor => format!(
-            "Under the declared causal graph, no measured set satisfied the backdoor criterion; the effect of {} on {}              was identified by the front-door criterion through {} (Pearl 1995).",
+            "Under the declared causal graph, no measured set satisfied the backdoor criterion; the effect of {} on {} was identified by the front-door criterion through {} (Pearl 1995).",
             a.exposure,
             a.outcome,
             set_text(id.frontdoor_set.as_deref().unwrap_or(&[]))
@@ -274,23 +373,42 @@ pub fn methods_paragraph(a: &Analysis) -> String {
         let m = it.estimate.method.as_str();
         s.push(' ');
         s.push_str(match m {
-            "regression" => "The outcome model was standardized over the sample (the parametric g-formula; Robins 1986), with delta-method standard errors.",
-            "ipw" => "Inverse probability weights with normalized (Hajek) weights used a logistic propensity model; standard errors come from the M-estimation sandwich that accounts for the estimated propensity scores (Lunceford & Davidian 2004).",
-            "ipw-ht" => "Horvitz-Thompson inverse probability weighting used a logistic propensity model, with sandwich standard errors (Lunceford & Davidian 2004).",
-            "aipw" => "The augmented inverse probability weighted (doubly robust) estimator combined both models (Robins, Rotnitzky & Zhao 1994), with influence-function standard errors.",
-            "frontdoor" => "The front-door formula was applied by plug-in, with delta-method standard errors (Pearl 1995).",
+            "regression" => "The outcome model was standardized over the sample (the parametric g-formula; Robins 1986).",
+            "ipw" => "Inverse probability weighting with normalized (Hajek) weights used a logistic propensity model, whose estimation the standard error accounts for (Lunceford & Davidian 2004).",
+            "ipw-ht" => "Horvitz-Thompson inverse probability weighting used a logistic propensity model, whose estimation the standard error accounts for (Lunceford & Davidian 2004).",
+            "aipw" => "The augmented inverse probability weighted (doubly robust) estimator combined both models (Robins, Rotnitzky & Zhao 1994).",
+            "frontdoor" => "The front-door formula was applied by plug-in (Pearl 1995).",
             _ => "",
         });
     }
+    let mut paras = vec![s];
+    let mut s = String::new();
+    if !a.estimates.is_empty() {
+        s.push_str(
+            "Analytic standard errors are sandwich (M-estimation) standard errors from the stacked estimating \
+             equations of every fitted model, carried to the effect by the delta method (Stefanski & Boos 2002).",
+        );
+        if a.estimates.iter().any(|e| e.estimate.scale != Scale::Difference) {
+            s.push_str(" Intervals for ratios are formed on the log scale.");
+        }
+    }
     if let Some(b) = a.estimates.iter().find_map(|e| e.bootstrap.as_ref()) {
+        let cite = match b.interval.as_str() {
+            "bca" => "Efron 1987",
+            _ => "Efron & Tibshirani 1993",
+        };
         s.push_str(&format!(
-            " Intervals are nonparametric bootstrap {} intervals from {} replicates refitting every model (Efron 1987).",
-            b.interval, b.replicates
+            " Alongside them, nonparametric bootstrap {} intervals from {} replicates refitting every model \
+             are reported ({cite}).",
+            bootstrap_long(&b.interval),
+            b.replicates
         ));
     }
+    paras.push(s);
+    let mut s = String::new();
     if a.sensitivity.evalue.is_some() {
         s.push_str(
-            " Sensitivity to unmeasured confounding is summarized by the E-value (VanderWeele & Ding 2017)",
+            "Sensitivity to unmeasured confounding is summarized by the E-value (VanderWeele & Ding 2017)",
         );
         s.push_str(if a.sensitivity.robustness_value.is_some() {
             " and by robustness values with benchmark bounds (Cinelli & Hazlett 2020)."
@@ -299,7 +417,9 @@ pub fn methods_paragraph(a: &Analysis) -> String {
         });
     }
     s.push_str(" Analyses used causeway.");
-    s
+    paras.push(s.trim_start().to_string());
+    paras.retain(|p| !p.is_empty());
+    paras
 }
 
 /// Every section of one analysis, in reading order; with `figures` (a file
@@ -344,7 +464,10 @@ pub fn analysis_blocks(a: &Analysis, figures: Option<&str>) -> Vec<Block> {
     b.push(Block::Heading("Sensitivity to unmeasured confounding".into()));
     b.extend(super::sensitivity_doc::sensitivity_blocks(a));
     if a.sensitivity.evalue.is_some() || a.sensitivity.robustness_value.is_some() {
-        b.extend(fig(2, "Tipping points: confounder strengths that would bring the estimate, or its interval, to the null"));
+        b.extend(fig(
+            2,
+            "Sensitivity to unmeasured confounding: how strong a confounder would have to be to change the conclusion",
+        ));
     }
     if let Some(c) = &a.check {
         b.push(Block::Heading("Graph check".into()));
@@ -365,7 +488,7 @@ pub fn analysis_blocks(a: &Analysis, figures: Option<&str>) -> Vec<Block> {
     }
     if figures.is_some() {
         b.push(Block::Heading("Methods paragraph (adapt as needed)".into()));
-        b.push(Block::Para(methods_paragraph(a)));
+        b.extend(methods_paragraphs(a).into_iter().map(Block::Para));
     }
     b
 }

@@ -1,12 +1,17 @@
-//! LaTeX rendering: a complete article that compiles as is, with booktabs
-//! tables. Used for `--format latex` and the bundle's table.tex.
+//! LaTeX rendering with booktabs tables. `--format latex` writes a complete
+//! article that compiles as is; the report bundle writes `table.tex`, a
+//! fragment of tables that a manuscript includes with `\input{table}`
+//! (its preamble needs `\usepackage{booktabs}`), and
+//! `table-standalone.tex`, a small document that inputs the fragment.
 
-use super::doc::{Align, Block, CAUTION, Doc, Exporter, Table};
+use super::doc::{Align, Block, CAUTION, Doc, Exporter, Stamp, Table};
 
 /// Renders documents as a LaTeX article.
 pub struct Latex;
 
-/// Escapes LaTeX special characters.
+/// Escapes LaTeX special characters. Latin letters with accents pass
+/// through (LaTeX reads UTF-8); a few symbols become their commands; any
+/// other character that pdfLaTeX cannot typeset becomes `?`.
 pub fn esc(s: &str) -> String {
     let mut out = String::with_capacity(s.len());
     for c in s.chars() {
@@ -20,10 +25,22 @@ pub fn esc(s: &str) -> String {
             '^' => out.push_str("\\textasciicircum{}"),
             '<' => out.push_str("\\textless{}"),
             '>' => out.push_str("\\textgreater{}"),
+            '|' => out.push_str("\\textbar{}"),
             '×' => out.push_str("$\\times$"),
             '²' => out.push_str("\\textsuperscript{2}"),
+            '±' => out.push_str("$\\pm$"),
+            '≤' => out.push_str("$\\leq$"),
+            '≥' => out.push_str("$\\geq$"),
+            'α' => out.push_str("$\\alpha$"),
+            '·' => out.push_str("$\\cdot$"),
+            '…' => out.push_str("\\dots{}"),
             '–' | '−' => out.push_str("--"),
+            '—' => out.push_str("---"),
+            '‘' | '’' => out.push('\''),
+            '“' => out.push_str("``"),
+            '”' => out.push_str("''"),
             c if c.is_ascii() => out.push(c),
+            c if c.is_alphabetic() && (c as u32) < 0x250 => out.push(c),
             _ => out.push('?'),
         }
     }
@@ -56,6 +73,41 @@ pub fn table(t: &Table) -> String {
     out
 }
 
+/// The stamp as LaTeX comment lines.
+fn stamp_comments(stamp: Option<&Stamp>) -> String {
+    stamp
+        .iter()
+        .flat_map(|s| s.lines())
+        .map(|l| format!("% {}\n", l.replace(['\n', '\r'], " ")))
+        .collect()
+}
+
+/// A fragment for `\input`: the stamp and the caution as comments, then
+/// each table; no preamble and no document environment.
+pub fn fragment(tables: &[Table], stamp: Option<&Stamp>) -> String {
+    let mut out = String::from(
+        "% Tables written by causeway, for \\input{table} in a manuscript whose preamble loads booktabs\n\
+         % (\\usepackage{booktabs}). table-standalone.tex compiles them on their own.\n",
+    );
+    out.push_str(&stamp_comments(stamp));
+    out.push_str(&format!("% {CAUTION}\n"));
+    for t in tables {
+        out.push('\n');
+        out.push_str(&table(t));
+    }
+    out
+}
+
+/// A document that compiles the fragment `name` (e.g. `table.tex`) alone.
+pub fn standalone(name: &str) -> String {
+    format!(
+        "% Compiles {name} on its own: pdflatex table-standalone.tex\n\
+         \\documentclass{{article}}\n\\usepackage[T1]{{fontenc}}\n\\usepackage{{booktabs}}\n\
+         \\usepackage[margin=2cm,landscape]{{geometry}}\n\\begin{{document}}\n\\input{{{}}}\n\\end{{document}}\n",
+        name.trim_end_matches(".tex")
+    )
+}
+
 impl Exporter for Latex {
     fn render(&self, doc: &Doc) -> String {
         let mut out = String::from(
@@ -65,6 +117,7 @@ impl Exporter for Latex {
         for b in &doc.blocks {
             match b {
                 Block::Heading(h) => out.push_str(&format!("\\subsection*{{{}}}\n", esc(h))),
+                Block::Subheading(h) => out.push_str(&format!("\\subsubsection*{{{}}}\n", esc(h))),
                 Block::Para(p) => out.push_str(&format!("{}\n\n", esc(p))),
                 Block::List(items) => {
                     out.push_str("\\begin{itemize}\n");
@@ -78,6 +131,7 @@ impl Exporter for Latex {
                     out.push_str(&format!("% figure: {} ({})\n", esc(path), esc(caption)))
                 }
                 Block::Warning(w) => out.push_str(&format!("\\textbf{{Warning.}} {}\n\n", esc(w))),
+                Block::Data(_) => {}
             }
         }
         out.push_str(&format!("\\subsection*{{Cautions}}\n{}\n\n", esc(CAUTION)));
@@ -87,11 +141,41 @@ impl Exporter for Latex {
                 out.push_str(&format!("{}\\\\\n", esc(&l)));
             }
             out.push_str("\\end{flushleft}\n");
-            for l in s.lines() {
-                out.push_str(&format!("% {}\n", l.replace('\n', " ")));
-            }
+            out.push_str(&stamp_comments(Some(s)));
         }
         out.push_str("\\end{document}\n");
         out
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn specials_are_escaped() {
+        assert_eq!(esc("a_b & 95% {x} #1 $2"), "a\\_b \\& 95\\% \\{x\\} \\#1 \\$2");
+        assert_eq!(
+            esc("x^2 ~ y\\z"),
+            "x\\textasciicircum{}2 \\textasciitilde{} y\\textbackslash{}z"
+        );
+        assert_eq!(
+            esc("a|b <c> R²"),
+            "a\\textbar{}b \\textless{}c\\textgreater{} R\\textsuperscript{2}"
+        );
+        assert_eq!(esc("café ≥ 1 → 2"), "café $\\geq$ 1 ? 2");
+    }
+
+    #[test]
+    fn the_fragment_has_no_preamble_and_the_wrapper_inputs_it() {
+        let mut t = Table::new("Effect of x_1 on y", &["method", "95% interval"]);
+        t.row(vec!["ipw".into(), "0.1 to 0.2".into()]);
+        let f = fragment(&[t], None);
+        assert!(!f.contains("\\documentclass") && !f.contains("\\begin{document}"));
+        assert!(f.contains("\\toprule") && f.contains("\\midrule") && f.contains("\\bottomrule"));
+        assert!(f.contains("Effect of x\\_1 on y") && f.contains("95\\% interval"));
+        let s = standalone("table.tex");
+        assert!(s.contains("\\documentclass{article}") && s.contains("\\input{table}"));
+        assert!(s.contains("\\usepackage{booktabs}"));
     }
 }

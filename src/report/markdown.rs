@@ -37,10 +37,11 @@ pub fn table(t: &Table) -> String {
 impl Exporter for Markdown {
     fn render(&self, doc: &Doc) -> String {
         let mut out = format!("# {}\n", doc.title);
-        for b in &doc.blocks {
+        for b in doc.blocks.iter().filter(|b| !matches!(b, Block::Data(_))) {
             out.push('\n');
             match b {
                 Block::Heading(h) => out.push_str(&format!("## {h}\n")),
+                Block::Subheading(h) => out.push_str(&format!("### {h}\n")),
                 Block::Para(p) => out.push_str(&format!("{p}\n")),
                 Block::List(items) => items.iter().for_each(|i| out.push_str(&format!("- {i}\n"))),
                 Block::Table(t) => out.push_str(&table(t)),
@@ -48,6 +49,7 @@ impl Exporter for Markdown {
                     out.push_str(&format!("![{caption}]({path})\n\n*{caption}*\n"))
                 }
                 Block::Warning(w) => out.push_str(&format!("> **Warning.** {w}\n")),
+                Block::Data(_) => {}
             }
         }
         out.push_str(&format!("\n## Cautions\n\n{CAUTION}\n"));

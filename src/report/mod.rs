@@ -14,6 +14,7 @@ pub mod doc;
 pub mod estimate_doc;
 pub mod graph_figure;
 pub mod identify_text;
+pub mod json;
 pub mod latex;
 pub mod markdown;
 pub mod sensitivity_doc;
@@ -22,7 +23,7 @@ pub mod svg;
 pub mod text;
 pub mod tipping_figure;
 
-pub use doc::{Block, Doc, Exporter, Stamp, Table};
+pub use doc::{Block, Cell, DataTable, Doc, Exporter, Stamp, Table};
 
 /// The output formats of the table-producing commands.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
@@ -33,7 +34,7 @@ pub enum Format {
     Json,
     /// Markdown.
     Markdown,
-    /// A LaTeX article.
+    /// A LaTeX article (tables as booktabs fragments inside).
     Latex,
     /// CSV tables.
     Csv,

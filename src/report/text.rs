@@ -78,6 +78,9 @@ impl Exporter for Text {
         for b in &doc.blocks {
             match b {
                 Block::Heading(h) => out.push_str(&format!("\n{}\n", h.to_uppercase())),
+                Block::Subheading(h) => {
+                    out.push_str(&format!("\n  {h}\n  {}\n", "-".repeat(h.chars().count())))
+                }
                 Block::Para(p) => out.push_str(&wrap(p, "  ", WIDTH)),
                 Block::List(items) => {
                     for it in items {
@@ -88,6 +91,7 @@ impl Exporter for Text {
                 Block::Table(t) => out.push_str(&table(t, "  ")),
                 Block::Figure { path, caption } => out.push_str(&format!("  [figure {path}: {caption}]\n")),
                 Block::Warning(w) => out.push_str(&wrap(&format!("! {w}"), "  ", WIDTH)),
+                Block::Data(_) => {}
             }
         }
         out.push_str("\nCAUTION\n");
