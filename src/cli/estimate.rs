@@ -38,7 +38,7 @@ pub struct Args {
     #[arg(long, value_enum, default_value = "text")]
     pub format: FormatArg,
     /// Also write a report bundle to this folder: report.md, results.json,
-    /// table.tex and figures/*.svg.
+    /// table.tex (with table-standalone.tex), tidy CSV files and figures/*.svg.
     #[arg(long, value_name = "DIR")]
     pub out: Option<PathBuf>,
 }
