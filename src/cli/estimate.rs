@@ -70,6 +70,7 @@ pub fn run(a: Args) -> Result<i32> {
     let data = DataSource::open(&a.data)?;
     let columns = data.header()?;
     let plan = a.flags.plan(g, &columns, &data.shown)?;
+    a.flags.check_benchmarks([&plan])?;
     if plan.strategy == causeway::identify::Strategy::None {
         return Err(causeway::Error::NotIdentified(plan.not_identified_reason()));
     }
