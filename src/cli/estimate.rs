@@ -20,9 +20,12 @@ use std::path::PathBuf;
 /// sensitivity to unmeasured confounding (E-value; robustness value for a
 /// linear outcome). Exit code 3 when the effect is not identified.
 ///
-/// Example:
+/// Examples:
 ///   causeway estimate --graph demo-data/main.graph --data demo-data/study.csv \
 ///       --exposure enrolled --outcome pain_days --categorical role --bootstrap 500 --out report
+///   causeway estimate --graph demo-data/main.graph --data demo-data/study.csv \
+///       --exposure enrolled --outcome pain_days --categorical role \
+///       --benchmark role,age --benchmark-multiples 1,3
 #[derive(clap::Args)]
 #[command(verbatim_doc_comment)]
 pub struct Args {

@@ -344,7 +344,10 @@ pub fn analysis_blocks(a: &Analysis, figures: Option<&str>) -> Vec<Block> {
     b.push(Block::Heading("Sensitivity to unmeasured confounding".into()));
     b.extend(super::sensitivity_doc::sensitivity_blocks(a));
     if a.sensitivity.evalue.is_some() || a.sensitivity.robustness_value.is_some() {
-        b.extend(fig(2, "Tipping points: confounder strengths that would bring the estimate, or its interval, to the null"));
+        b.extend(fig(
+            2,
+            "How strong a hidden confounder would have to be, set against measured covariates as yardsticks",
+        ));
     }
     if let Some(c) = &a.check {
         b.push(Block::Heading("Graph check".into()));
