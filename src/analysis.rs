@@ -16,7 +16,9 @@ use crate::infer::bootstrap::{self, BootOpts, BootstrapBlock, IntervalKind};
 use crate::plan::Plan;
 use crate::sensitivity::SensitivityBlock;
 use crate::sensitivity::evalue::{self, EValue};
-use crate::sensitivity::robustness::{self, BenchmarkTable, Coefficient, Covariate, RobustnessValue};
+use crate::sensitivity::robustness::{
+    self, BenchmarkChoice, BenchmarkTable, Coefficient, Covariate, DEFAULT_BENCHMARKS, RobustnessValue,
+};
 use crate::{Error, Result};
 use serde::Serialize;
 use std::collections::BTreeMap;
@@ -43,6 +45,8 @@ pub struct Options {
     pub progress: bool,
     /// Also test the graph's implications against the data (`--check`).
     pub check: Option<CheckOptions>,
+    /// Benchmark covariates and multiples for the robustness value.
+    pub benchmarks: BenchmarkChoice,
 }
 
 impl Default for Options {
@@ -56,6 +60,7 @@ impl Default for Options {
             threads: 0,
             progress: false,
             check: None,
+            benchmarks: BenchmarkChoice::default(),
         }
     }
 }
@@ -96,10 +101,6 @@ pub struct SensitivityDetails {
     pub evalue_method: Option<String>,
     /// The linear-outcome coefficient behind the robustness value.
     pub coefficient: Option<Coefficient>,
-    /// Benchmarks: a confounder k times as strong as each covariate.
-    pub benchmarks: Option<BenchmarkTable>,
-    /// The covariates' own partial R² (benchmark reference points).
-    pub covariates: Vec<Covariate>,
     /// Why a part of the sensitivity analysis is missing.
     pub notes: Vec<String>,
 }
@@ -202,9 +203,6 @@ pub fn check_summary(plan: &Plan, data: &Dataset, opts: &CheckOptions) -> Result
         rejected_claims,
     })
 }
-
-/// The benchmark multipliers of Cinelli & Hazlett (2020), section 6.
-pub const BENCHMARK_KS: [f64; 3] = [1.0, 2.0, 3.0];
 
 /// The estimation spec for a plan.
 pub fn spec(plan: &Plan, opts: &Options) -> Spec {
@@ -435,6 +433,7 @@ fn sensitivity(
             SensitivityBlock {
                 evalue: None,
                 robustness_value: None,
+                benchmarks: None,
             },
             details,
         ));
@@ -455,12 +454,12 @@ fn sensitivity(
             None
         }
     };
-    let rv = match &inputs {
+    let (rv, benchmarks) = match &inputs {
         Some(s) => match robustness_for(s, opts, &mut details) {
-            Ok(rv) => Some(rv),
+            Ok((rv, table)) => (Some(rv), Some(table)),
             Err(e) => {
                 details.notes.push(format!("no robustness value: {}", plain(&e)));
-                None
+                (None, None)
             }
         },
         None => {
@@ -469,13 +468,14 @@ fn sensitivity(
                     .notes
                     .push("no robustness value: the outcome regression could not be formed".into());
             }
-            None
+            (None, None)
         }
     };
     Ok((
         SensitivityBlock {
             evalue: ev,
             robustness_value: rv,
+            benchmarks,
         },
         details,
     ))
@@ -577,27 +577,50 @@ fn robustness_for(
     s: &SensitivityInputs,
     opts: &Options,
     details: &mut SensitivityDetails,
-) -> Result<RobustnessValue> {
+) -> Result<(RobustnessValue, BenchmarkTable)> {
     let alpha = 1.0 - opts.model.level;
     let c = Coefficient::new(s.estimate, s.std_error, s.df)?;
     let rv = robustness::robustness_value(&c, 1.0, alpha)?;
-    details.covariates = s
-        .terms
-        .iter()
-        .map(|t| Covariate {
-            name: t.term.clone(),
-            r2_exposure: robustness::partial_r2(t.t_exposure, s.df_exposure),
-            r2_outcome: robustness::partial_r2(t.t_outcome, s.df),
-        })
-        .collect();
-    details.benchmarks = Some(robustness::benchmark_table(
-        &c,
-        &details.covariates,
-        &BENCHMARK_KS,
-        alpha,
-    )?);
+    let measured = |t: &estimate::TermStat| Covariate {
+        name: t.term.clone(),
+        r2_exposure: robustness::partial_r2(t.t_exposure, s.df_exposure),
+        r2_outcome: robustness::partial_r2(t.t_outcome, s.df),
+    };
+    let choice = &opts.benchmarks;
+    let mut missing = Vec::new();
+    let (chosen, selection) = match &choice.covariates {
+        None => {
+            let all: Vec<Covariate> = s.terms.iter().map(measured).collect();
+            (robustness::strongest(&c, &all, DEFAULT_BENCHMARKS), "strongest")
+        }
+        Some(names) => {
+            let mut chosen: Vec<Covariate> = Vec::new();
+            for name in names {
+                let terms: Vec<Covariate> = s
+                    .terms
+                    .iter()
+                    .filter(|t| &t.column == name || &t.term == name)
+                    .map(measured)
+                    .filter(|cov| !chosen.iter().any(|d| d.name == cov.name))
+                    .collect();
+                if terms.is_empty() && !chosen.iter().any(|d| &d.name == name) {
+                    missing.push(name.clone());
+                }
+                chosen.extend(terms);
+            }
+            (chosen, "named")
+        }
+    };
+    let mut table = robustness::benchmark_table(&c, &chosen, &choice.multiples, alpha, selection)?;
+    table
+        .skipped
+        .extend(missing.into_iter().map(|name| robustness::Skipped {
+            reason: format!("'{name}' matches no adjustment term of this analysis"),
+            covariate: name,
+            multiple: None,
+        }));
     details.coefficient = Some(c);
-    Ok(rv)
+    Ok((rv, table))
 }
 
 #[cfg(test)]

@@ -422,7 +422,10 @@ fn bundle_csv_files_are_tidy_and_the_report_has_one_section_per_graph() {
         ),
         ("balance.csv", &["smd_before", "smd_after"]),
         ("sensitivity.csv", &["evalue_point", "alpha", "robustness_value"]),
-        ("benchmarks.csv", &["k", "r2_exposure", "adjusted_ci_upper"]),
+        (
+            "benchmarks.csv",
+            &["multiple", "r2_exposure", "adjusted_ci_upper"],
+        ),
     ];
     for (file, cols) in numeric {
         let text = std::fs::read_to_string(out.join(file)).unwrap_or_else(|_| panic!("no {file}"));

@@ -2,11 +2,10 @@
 //! and scipy fixtures (tests/scripts/make_sensitivity_fixtures.py, which
 //! records the library versions), and the `causeway sensitivity` command.
 
-use crate::helpers::{fixture, run};
+use crate::helpers::{fixture, repo, run, run_in};
 use causeway::infer::dist::{normal_cdf, normal_quantile, t_quantile};
-use causeway::report::tipping_figure::{self, R2Panel, Reference, ReferenceKind, RrPanel};
+use causeway::report::sensitivity_figure::{self, Mark, benchmark_yardsticks};
 use causeway::sensitivity::evalue;
-use causeway::sensitivity::frontier::{r2_axis_max, r2_frontiers, rr_frontiers};
 use causeway::sensitivity::robustness::{
     Coefficient, Covariate, adjust, benchmark_bounds, benchmark_table, robustness_value,
 };
@@ -192,20 +191,101 @@ fn json_for_a_regression_coefficient() {
     assert!(f(&adj[1]["estimate"]) < f(&adj[0]["estimate"]));
 }
 
+/// Sentences of an earlier wording that must not come back (they echoed
+/// other programs' output).
+const OLD_WORDING: [&str; 7] = [
+    "could explain the estimate away",
+    "weaker confounding could not",
+    "RV, q = 1",
+    "partial R2 of the exposure",
+    "of the residual variance of both exposure and outcome would bring the estimate to zero",
+    "Even a confounder explaining all the residual variance of the outcome",
+    "k times as strong",
+];
+
+fn flat(s: &str) -> String {
+    s.split_whitespace().collect::<Vec<_>>().join(" ")
+}
+
+fn assert_new_wording_only(out: &str) {
+    for old in OLD_WORDING {
+        assert!(!out.contains(old), "old wording '{old}' in: {out}");
+    }
+}
+
 #[test]
 fn text_reads_plainly_and_cautions() {
     let (r, _d) = run(&["sensitivity", "--rr", "0.5", "--ci", "0.3,0.8"]);
     assert_eq!(r.code, 0, "{}", r.stderr);
-    let flat = |s: &str| s.split_whitespace().collect::<Vec<_>>().join(" ");
     let out = flat(&r.stdout);
-    assert!(out.contains("risk ratio of 3.41 each"), "{out}");
+    // E-value of 1/0.5 = 2: 2 + sqrt(2) = 3.41; of 1/0.8 = 1.25: 1.81.
+    assert!(out.contains("by risk ratios of at least 3.41 each"), "{out}");
+    assert!(
+        out.contains("needed to account for all of it 3.41 with the exposure and with the outcome"),
+        "{out}"
+    );
+    assert!(
+        out.contains("Ties of 1.81 each are enough for the interval to reach 1"),
+        "{out}"
+    );
+    assert!(out.contains("if either tie is weaker, the other must be stronger still"));
     assert!(out.contains("cannot show that there is none"));
     assert!(out.contains("clinical judgement"));
+    assert_new_wording_only(&out);
     let (r, _d) = run(&["sensitivity", "--or", "1.2", "--ci", "0.9,1.6"]);
     assert_eq!(r.code, 0);
     let out = flat(&r.stdout);
-    assert!(out.contains("already includes 1"));
+    assert!(
+        out.contains("The interval reaches 1 even with no hidden confounder"),
+        "{out}"
+    );
     assert!(out.contains("--common-outcome"));
+    assert_new_wording_only(&out);
+}
+
+/// The robustness-value text with the Cinelli & Hazlett (2020) running
+/// example (t = 4.18 with 783 df; from memory: partial R² 2.19%, RV 13.9%,
+/// RV_0.05 7.6%, from the unrounded t): the new labels and reading, none of
+/// the old. With the rounded t the printed values are 7.61% and 2.18%,
+/// within the paper's rounding (see the unit test in robustness.rs).
+#[test]
+fn robustness_text_reads_plainly() {
+    let (r, _d) = run(&["sensitivity", "--estimate", "4.18", "--se", "1", "--df", "783"]);
+    assert_eq!(r.code, 0, "{}", r.stderr);
+    let out = flat(&r.stdout);
+    assert!(
+        out.contains("needed to account for all of it 13.9% of each"),
+        "{out}"
+    );
+    assert!(
+        out.contains("needed for the 95% interval to reach zero 7.61% of each"),
+        "{out}"
+    );
+    assert!(
+        out.contains("what the exposure explains of the outcome 2.18%"),
+        "{out}"
+    );
+    assert!(out.contains(
+        "would have to explain at least 13.9% of the leftover variance of the exposure and of the outcome"
+    ));
+    assert!(out.contains("explaining less than 2.18% of the leftover variance of the exposure could not account for all of the estimate"));
+    assert_new_wording_only(&out);
+    let (r, _d) = run(&[
+        "sensitivity",
+        "--estimate",
+        "4.18",
+        "--se",
+        "1",
+        "--df",
+        "783",
+        "--q",
+        "0.5",
+    ]);
+    assert_eq!(r.code, 0, "{}", r.stderr);
+    let out = flat(&r.stdout);
+    assert!(out.contains("needed to account for 50% of it"), "{out}");
+    assert!(out.contains("to reach 0.500 of it"), "{out}");
+    assert_new_wording_only(&out);
 }
 
 #[test]
@@ -282,6 +362,7 @@ fn bad_flags_are_refused_by_name() {
     }
 }
 
+/// The figure's texts; the SVG must be well-formed XML.
 fn texts(svg: &str) -> Vec<String> {
     let doc = roxmltree::Document::parse(svg).expect("SVG is well-formed XML");
     doc.descendants()
@@ -290,6 +371,10 @@ fn texts(svg: &str) -> Vec<String> {
         .collect()
 }
 
+/// The figure of `sensitivity --figure`, with the worked examples of
+/// VanderWeele & Ding 2017 (RR 3.9, interval 1.8 to 8.7: E-values 7.26 and
+/// 3.00) and Cinelli & Hazlett 2020 (estimate 0.097, s.e. 0.0232, df 783:
+/// RV 13.9%) as check values.
 #[test]
 fn figure_files_parse_and_are_labelled() {
     let (r, d) = run(&[
@@ -304,13 +389,10 @@ fn figure_files_parse_and_are_labelled() {
     assert_eq!(r.code, 0, "{}", r.stderr);
     let svg = std::fs::read_to_string(d.path().join("t.svg")).unwrap();
     let t = texts(&svg);
-    assert!(t.iter().any(|s| s == "E-value 7.26"), "{t:?}");
-    assert!(t.iter().any(|s| s == "E-value, interval 3.00"));
-    assert!(
-        t.iter()
-            .any(|s| s.contains("confounder-exposure association (risk ratio)"))
-    );
-    assert!(svg.contains("stroke-dasharray=\"8 5\""));
+    assert!(t.iter().any(|s| s == "accounts for all of it: 7.26"), "{t:?}");
+    assert!(t.iter().any(|s| s == "interval reaches 1: 3.00"), "{t:?}");
+    assert!(t.iter().any(|s| s == "observed risk ratio"), "{t:?}");
+    assert!(svg.contains("stroke-dasharray=\"7 4\""));
 
     let (r, d) = run(&[
         "sensitivity",
@@ -330,15 +412,17 @@ fn figure_files_parse_and_are_labelled() {
     assert_eq!(r.code, 0, "{}", r.stderr);
     let svg = std::fs::read_to_string(d.path().join("r2.svg")).unwrap();
     let t = texts(&svg);
-    assert!(t.iter().any(|s| s == "RV 13.9%"), "{t:?}");
+    assert!(t.iter().any(|s| s == "accounts for all of it: 13.9%"), "{t:?}");
+    assert!(t.iter().any(|s| s == "hypothesised: 2.00%, 5.00%"), "{t:?}");
     assert!(t.iter().any(|s| s == "hypothesised confounder"));
-    assert!(t.iter().any(|s| s.contains("partial R\u{b2}")));
+    assert!(t.iter().any(|s| s.starts_with("Partial R\u{b2} scale")));
 }
 
-/// Both panels at once, as the estimate report draws them, with benchmark
-/// rows as reference points.
+/// Both strips at once, as the estimate report draws them, with benchmark
+/// rows: one row per covariate, one marker per multiple, and the multiple
+/// that cannot exist named in a note.
 #[test]
-fn two_panel_figure_from_the_library() {
+fn figure_from_the_library() {
     let c = Coefficient::new(0.097, 0.0232, 783.0).unwrap();
     let rv = robustness_value(&c, 1.0, 0.05).unwrap();
     let covs = [Covariate {
@@ -346,43 +430,181 @@ fn two_panel_figure_from_the_library() {
         r2_exposure: 0.009,
         r2_outcome: 0.125,
     }];
-    let table = benchmark_table(&c, &covs, &[1.0, 2.0, 3.0], 0.05).unwrap();
-    let refs: Vec<Reference> = table
-        .rows
-        .iter()
-        .map(|b| Reference {
-            label: format!("{}x {}", b.k, b.covariate),
-            x: b.r2_exposure,
-            y: b.r2_outcome,
-            kind: ReferenceKind::Benchmark,
-        })
-        .collect();
-    let pts: Vec<(f64, f64)> = refs.iter().map(|p| (p.x, p.y)).collect();
-    let r2 = R2Panel {
-        frontiers: r2_frontiers(&c, 1.0, 0.05, r2_axis_max(rv.rv, &pts), 200).unwrap(),
-        robustness: rv,
-        references: refs,
-    };
+    let table = benchmark_table(&c, &covs, &[0.5, 1.0, 200.0], 0.05, "named").unwrap();
+    let rows = benchmark_yardsticks(&table);
+    assert_eq!(rows.len(), 1);
+    assert_eq!(rows[0].points.len(), 2);
+    assert!(matches!(rows[0].points[1].0, Mark::Multiple(k) if k == 1.0));
     let e = evalue::continuous(0.097, 0.0232, 0.4, 0.95).unwrap();
-    let rr = RrPanel {
-        frontiers: rr_frontiers(&e, &[(1.5, 1.3)], 200).unwrap(),
-        references: vec![Reference {
-            label: "smoking".into(),
-            x: 1.5,
-            y: 1.3,
-            kind: ReferenceKind::Observed,
-        }],
-    };
-    let svg = tipping_figure::svg(Some(&rr), Some(&r2)).unwrap();
+    let svg = sensitivity_figure::figure(Some(&e), Some((&rv, rows))).unwrap();
     if let Ok(path) = std::env::var("CAUSEWAY_KEEP_FIGURE") {
         std::fs::write(path, &svg).unwrap();
     }
     let t = texts(&svg);
-    assert!(t.iter().any(|s| s == "1x female"), "{t:?}");
-    assert!(t.iter().any(|s| s == "smoking"));
+    assert!(t.iter().any(|s| s == "female"), "{t:?}");
+    assert!(
+        t.iter().any(|s| s == "female, 200 times as strong: cannot exist"),
+        "{t:?}"
+    );
     assert!(t.iter().any(|s| s.starts_with("Risk-ratio scale")));
-    assert!(t.iter().any(|s| s == "Partial R\u{b2} scale"));
-    assert!(t.iter().any(|s| s.contains("observed covariate")));
+    assert!(
+        t.iter()
+            .any(|s| s == "hidden confounder half as strong as the covariate")
+    );
+}
+
+fn demo_args<'a>(extra: &[&'a str]) -> Vec<&'a str> {
+    let mut a = vec![
+        "estimate",
+        "--graph",
+        "demo-data/main.graph",
+        "--data",
+        "demo-data/study.csv",
+        "--exposure",
+        "enrolled",
+        "--outcome",
+        "pain_days",
+        "--categorical",
+        "role",
+    ];
+    a.extend_from_slice(extra);
+    a
+}
+
+/// The benchmark table in the estimate JSON on the demo data: by default
+/// the three terms whose own strength would bias the estimate most, at
+/// multiples 0.5, 1 and 2; each row equals the library's bound and
+/// corrected estimate for the measured strengths it lists (closed forms:
+/// 1e-12 relative).
+#[test]
+fn estimate_json_carries_the_benchmark_table() {
+    let r = run_in(&repo(""), &demo_args(&["--format", "json"]));
+    assert_eq!(r.code, 0, "{}", r.stderr);
+    let v: Value = serde_json::from_str(&r.stdout).unwrap();
+    let s = &v["sensitivity"];
+    let b = &s["benchmarks"];
+    assert_eq!(b["selection"], "strongest");
+    let ks: Vec<f64> = b["multiples"].as_array().unwrap().iter().map(f).collect();
+    assert_eq!(ks, [0.5, 1.0, 2.0]);
+    let measured = b["measured"].as_array().unwrap();
+    assert_eq!(measured.len(), 3);
+    let names: Vec<&str> = measured
+        .iter()
+        .map(|m| m["covariate"].as_str().unwrap())
+        .collect();
+    assert_eq!(names[0], "baseline_pain", "{names:?}");
+    let rows = b["rows"].as_array().unwrap();
+    assert_eq!(rows.len() + b["skipped"].as_array().unwrap().len(), 9);
+    for row in rows {
+        let m = measured
+            .iter()
+            .find(|m| m["covariate"] == row["covariate"])
+            .unwrap();
+        let cov = Covariate {
+            name: m["covariate"].as_str().unwrap().into(),
+            r2_exposure: f(&m["r2_exposure"]),
+            r2_outcome: f(&m["r2_outcome"]),
+        };
+        let k = f(&row["multiple"]);
+        let (d, y) = benchmark_bounds(&cov, k, k).unwrap();
+        assert!((d - f(&row["r2_exposure"])).abs() < 1e-12 * d.max(1e-3));
+        assert!((y - f(&row["r2_outcome"])).abs() < 1e-12 * y.max(1e-3));
+        let ci: Vec<f64> = row["ci"].as_array().unwrap().iter().map(f).collect();
+        assert!(ci[0] < f(&row["estimate"]) && f(&row["estimate"]) < ci[1]);
+    }
+    // Stronger confounders move the (negative) estimate further towards
+    // zero; a confounder as strong as baseline_pain gives -2.338, as in the
+    // table of earlier releases (k = 1 row, printed to 4 digits).
+    for w in rows.windows(2).filter(|w| w[0]["covariate"] == w[1]["covariate"]) {
+        assert!(f(&w[1]["estimate"]) > f(&w[0]["estimate"]), "{w:?}");
+    }
+    let base = rows
+        .iter()
+        .find(|r| r["covariate"] == "baseline_pain" && f(&r["multiple"]) == 1.0)
+        .unwrap();
+    assert!((f(&base["estimate"]) + 2.338).abs() < 0.0005, "{base}");
+}
+
+/// Named benchmarks: a categorical covariate gives one row per level;
+/// the text report shows the new layout and wording, none of the old.
+#[test]
+fn named_benchmarks_and_report_wording() {
+    let r = run_in(
+        &repo(""),
+        &demo_args(&[
+            "--benchmark",
+            "role,age",
+            "--benchmark-multiples",
+            "1,3",
+            "--format",
+            "json",
+        ]),
+    );
+    assert_eq!(r.code, 0, "{}", r.stderr);
+    let v: Value = serde_json::from_str(&r.stdout).unwrap();
+    let b = &v["sensitivity"]["benchmarks"];
+    assert_eq!(b["selection"], "named");
+    let names: Vec<&str> = b["measured"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .map(|m| m["covariate"].as_str().unwrap())
+        .collect();
+    assert_eq!(names, ["role=office", "role=warehouse", "age"]);
+    assert_eq!(b["rows"].as_array().unwrap().len(), 6);
+
+    let r = run_in(&repo(""), &demo_args(&[]));
+    assert_eq!(r.code, 0, "{}", r.stderr);
+    let out = flat(&r.stdout);
+    for want in [
+        "Risk-ratio scale (E-value",
+        "tied to enrolled and to pain_days by risk ratios of at least 3.32 each",
+        "Partial R² scale (robustness value",
+        "would have to explain at least 38.7% of the leftover variance of enrolled and of pain_days",
+        "For the 95% interval to reach zero, both shares must reach 36.6%",
+        "measured covariate its shares (exposure, outcome) half as strong as strong twice as strong",
+        "baseline_pain 3.10%, 29.7% -2.723 (-2.922 to -2.523) -2.338 (-2.507 to -2.169) -1.548 (-1.621 to -1.474)",
+    ] {
+        assert!(out.contains(want), "'{want}' missing from: {out}");
+    }
+    assert_new_wording_only(&out);
+}
+
+/// Benchmark options are checked before any fitting: exit 2 with the
+/// option named and, for a misspelt covariate, the nearest names.
+#[test]
+fn benchmark_options_are_checked() {
+    let cases: &[(&[&str], &[&str])] = &[
+        (
+            &["--benchmark", "agee"],
+            &["--benchmark", "'agee'", "did you mean age"],
+        ),
+        (
+            &["--benchmark", "standing_hours"],
+            &["--benchmark", "not an adjustment covariate"],
+        ),
+        (&["--benchmark", ","], &["--benchmark"]),
+        (
+            &["--benchmark-multiples", "0,1"],
+            &["--benchmark-multiples", "0 is not a positive multiple"],
+        ),
+        (
+            &["--benchmark-multiples", "1,x"],
+            &["--benchmark-multiples", "'x' is not a number"],
+        ),
+        (
+            &["--benchmark-multiples", "1,1"],
+            &["--benchmark-multiples", "given twice"],
+        ),
+        (&["--benchmark-multiples", ""], &["--benchmark-multiples"]),
+    ];
+    for (extra, wants) in cases {
+        let r = run_in(&repo(""), &demo_args(extra));
+        assert_eq!(r.code, 2, "{extra:?}: {}", r.stderr);
+        for w in *wants {
+            assert!(r.stderr.contains(w), "{extra:?}: '{w}' not in {}", r.stderr);
+        }
+    }
 }
 
 /// Student t quantiles at 9.9e4 to 1e300 degrees of freedom against

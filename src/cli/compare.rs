@@ -101,6 +101,7 @@ pub fn compare(inputs: &[GraphInput], data: &DataSource, f: &EstimateFlags) -> R
         }
         plans.push(Some(plan));
     }
+    f.check_benchmarks(plans.iter().flatten())?;
     // Read every column any graph needs, once.
     let mut keep: Vec<String> = Vec::new();
     let wanted = |p: &&Plan| p.strategy != Strategy::None || opts.check.is_some();

@@ -86,6 +86,8 @@ fn flags(a: &Args) -> EstimateFlags {
         threads: a.threads,
         check: a.check,
         alpha: 0.05,
+        benchmark: None,
+        benchmark_multiples: "0.5,1,2".into(),
         quiet: a.quiet,
     }
 }

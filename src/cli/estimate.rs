@@ -20,9 +20,12 @@ use std::path::PathBuf;
 /// sensitivity to unmeasured confounding (E-value; robustness value for a
 /// linear outcome). Exit code 3 when the effect is not identified.
 ///
-/// Example:
+/// Examples:
 ///   causeway estimate --graph demo-data/main.graph --data demo-data/study.csv \
 ///       --exposure enrolled --outcome pain_days --categorical role --bootstrap 500 --out report
+///   causeway estimate --graph demo-data/main.graph --data demo-data/study.csv \
+///       --exposure enrolled --outcome pain_days --categorical role \
+///       --benchmark role,age --benchmark-multiples 1,3
 #[derive(clap::Args)]
 #[command(verbatim_doc_comment)]
 pub struct Args {
@@ -70,6 +73,7 @@ pub fn run(a: Args) -> Result<i32> {
     let data = DataSource::open(&a.data)?;
     let columns = data.header()?;
     let plan = a.flags.plan(g, &columns, &data.shown)?;
+    a.flags.check_benchmarks([&plan])?;
     if plan.strategy == causeway::identify::Strategy::None {
         return Err(causeway::Error::NotIdentified(plan.not_identified_reason()));
     }

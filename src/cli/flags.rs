@@ -11,6 +11,7 @@ use causeway::graph::Graph;
 use causeway::infer::bootstrap::IntervalKind;
 use causeway::plan::{AdjustChoice, Plan, Roles, split_list};
 use causeway::report::doc::{FileStamp, Stamp, ToolInfo};
+use causeway::sensitivity::robustness::{BenchmarkChoice, check_multiples};
 use causeway::{Error, Result};
 use std::path::{Path, PathBuf};
 
@@ -90,9 +91,47 @@ pub struct EstimateFlags {
         value_name = "ALPHA"
     )]
     pub alpha: f64,
+    /// Benchmarks for the robustness value (linear outcome): adjustment
+    /// covariates, comma-separated. A categorical covariate gives one
+    /// benchmark per level (or name one level, e.g. role=office), a
+    /// quadratic or spline covariate one per term. Default: the 3 terms
+    /// whose own strength would bias the estimate most.
+    #[arg(long, value_name = "COV[,COV]")]
+    pub benchmark: Option<String>,
+    /// How many times as strong as each benchmark the hidden confounder is
+    /// taken to be, comma-separated positive numbers.
+    #[arg(long, value_name = "K[,K]", default_value = "0.5,1,2")]
+    pub benchmark_multiples: String,
     /// Print no progress bar and no warnings on stderr.
     #[arg(long)]
     pub quiet: bool,
+}
+
+/// The names in `known` closest to `name` in edit distance (at most a third
+/// of the name's length, at least 2), closest first.
+fn nearest(name: &str, known: &[String]) -> Vec<String> {
+    fn distance(a: &str, b: &str) -> usize {
+        let b: Vec<char> = b.chars().collect();
+        let mut row: Vec<usize> = (0..=b.len()).collect();
+        for (i, ca) in a.chars().enumerate() {
+            let mut prev = row[0];
+            row[0] = i + 1;
+            for j in 0..b.len() {
+                let cur = row[j + 1];
+                row[j + 1] = (prev + usize::from(ca != b[j])).min(row[j] + 1).min(cur + 1);
+                prev = cur;
+            }
+        }
+        row[b.len()]
+    }
+    let limit = (name.chars().count() / 3).max(2);
+    let mut close: Vec<(usize, &String)> = known
+        .iter()
+        .map(|k| (distance(&name.to_lowercase(), &k.to_lowercase()), k))
+        .filter(|(d, _)| *d <= limit)
+        .collect();
+    close.sort();
+    close.into_iter().take(3).map(|(_, k)| k.clone()).collect()
 }
 
 fn list(s: &Option<String>) -> Vec<String> {
@@ -177,6 +216,7 @@ impl EstimateFlags {
             seed: self.seed,
             threads: self.threads,
             progress: !self.quiet,
+            benchmarks: self.benchmarks()?,
             check: self.check.then(|| CheckOptions {
                 alpha: self.alpha,
                 categorical: list(&self.categorical),
@@ -184,6 +224,72 @@ impl EstimateFlags {
                 ..CheckOptions::default()
             }),
         })
+    }
+
+    /// The benchmark choice of `--benchmark` and `--benchmark-multiples`.
+    fn benchmarks(&self) -> Result<BenchmarkChoice> {
+        let flag = "--benchmark-multiples";
+        let raw = &self.benchmark_multiples;
+        let multiples = split_list(raw)
+            .iter()
+            .map(|x| {
+                x.parse::<f64>()
+                    .map_err(|_| Error::input(format!("{flag} '{raw}': '{x}' is not a number")))
+            })
+            .collect::<Result<Vec<f64>>>()?;
+        check_multiples(&multiples).map_err(|e| {
+            Error::input(format!(
+                "{flag} '{raw}': {e}; give positive numbers such as 0.5,1,2"
+            ))
+        })?;
+        let covariates = match &self.benchmark {
+            None => None,
+            Some(b) => {
+                let names = split_list(b);
+                if names.is_empty() {
+                    return Err(Error::input("--benchmark: expected at least one covariate name"));
+                }
+                Some(names)
+            }
+        };
+        Ok(BenchmarkChoice {
+            covariates,
+            multiples,
+        })
+    }
+
+    /// Refuses a `--benchmark` name that is not an adjustment covariate of
+    /// any of `plans` (nor a term of one, such as `role=office` or
+    /// `age^2`), suggesting the nearest.
+    pub fn check_benchmarks<'a>(&self, plans: impl IntoIterator<Item = &'a Plan>) -> Result<()> {
+        let Some(b) = &self.benchmark else {
+            return Ok(());
+        };
+        let mut known: Vec<String> = Vec::new();
+        for p in plans {
+            for c in p.adjustment_set.iter().flatten() {
+                if !known.contains(c) {
+                    known.push(c.clone());
+                }
+            }
+        }
+        for name in split_list(b) {
+            let column = name.split(['=', '^']).next().unwrap_or(&name);
+            if known.iter().any(|k| k == &name || k == column) {
+                continue;
+            }
+            let hint = match nearest(&name, &known) {
+                n if n.is_empty() && known.is_empty() => {
+                    "; the analysis adjusts for nothing, so there is no covariate to compare with".to_string()
+                }
+                n if n.is_empty() => format!("; the adjustment covariates are {}", known.join(", ")),
+                n => format!("; did you mean {}?", n.join(" or ")),
+            };
+            return Err(Error::input(format!(
+                "--benchmark '{name}': not an adjustment covariate{hint}"
+            )));
+        }
+        Ok(())
     }
 
     /// The plan under one graph, given the data's column names.

@@ -3,10 +3,10 @@
 
 use super::common::{split_list, write_atomic};
 use causeway::report::doc::CAUTION;
+use causeway::report::sensitivity_figure::{self, hypothesised_yardsticks};
 use causeway::report::sensitivity_text::{
     LIMITS, adjusted_section, evalue_section, robustness_section, wrap,
 };
-use causeway::report::tipping_figure::{self, Reference, ReferenceKind};
 use causeway::sensitivity::SensitivityBlock;
 use causeway::sensitivity::evalue::{self, EValue};
 use causeway::sensitivity::robustness::{Adjusted, Coefficient, RobustnessValue, adjust, robustness_value};
@@ -14,17 +14,18 @@ use causeway::{Error, Result};
 use serde::Serialize;
 use std::path::PathBuf;
 
-/// How strong would unmeasured confounding have to be? E-values for a
-/// ratio or a standardized difference, robustness values and bias-adjusted
-/// estimates for a linear-regression coefficient.
+/// How strong would a hidden confounder have to be? E-values for a ratio or
+/// a standardized difference; robustness values and corrected estimates for
+/// a linear-regression coefficient.
 ///
 /// Give exactly one of --rr, --or, --hr, --smd or --estimate.
 ///
-/// Examples:
-///   causeway sensitivity --rr 3.9 --ci 1.8,8.7
+/// Examples (the risk ratio is invented for illustration; the coefficient,
+/// standard error and residual df are those of the demo's main regression):
+///   causeway sensitivity --rr 1.8 --ci 1.3,2.5
 ///   causeway sensitivity --or 1.9 --ci 1.3,2.8 --common-outcome
-///   causeway sensitivity --estimate 0.097 --se 0.0232 --df 783 \
-///       --r2-exposure 0.01,0.05 --r2-outcome 0.05,0.10 --figure tipping.svg
+///   causeway sensitivity --estimate -3.10 --se 0.1145 --df 2992 \
+///       --r2-exposure 0.02,0.05 --r2-outcome 0.10,0.30 --figure sensitivity.svg
 #[derive(clap::Args)]
 #[command(verbatim_doc_comment)]
 #[command(group(clap::ArgGroup::new("input").required(true).multiple(false)
@@ -78,7 +79,7 @@ pub struct Args {
     /// text (a readable summary) or json.
     #[arg(long, default_value = "text", value_parser = ["text", "json"])]
     format: String,
-    /// Also write the tipping-point figure to this SVG file.
+    /// Also write the sensitivity figure to this SVG file.
     #[arg(long, value_name = "FILE.svg")]
     figure: Option<PathBuf>,
     /// Print no notes on standard error.
@@ -255,7 +256,7 @@ pub fn run(a: Args) -> Result<i32> {
         let svg = figure(ev.as_ref(), reg.as_ref())?;
         write_atomic(path, svg.as_bytes(), &[])?;
         if !a.quiet {
-            eprintln!("causeway: wrote the tipping-point figure to {}", path.display());
+            eprintln!("causeway: wrote the sensitivity figure to {}", path.display());
         }
     }
 
@@ -265,6 +266,7 @@ pub fn run(a: Args) -> Result<i32> {
                 block: SensitivityBlock {
                     evalue: ev,
                     robustness_value: reg.as_ref().map(|r| r.rv.clone()),
+                    benchmarks: None,
                 },
                 adjusted: reg.and_then(|r| r.adjusted),
             };
@@ -297,18 +299,10 @@ fn text(ev: Option<&EValue>, reg: Option<&Regression>) -> String {
 
 fn figure(ev: Option<&EValue>, reg: Option<&Regression>) -> Result<String> {
     let r2 = reg.map(|r| {
-        let refs: Vec<Reference> = r
-            .adjusted
-            .iter()
-            .flatten()
-            .map(|a| Reference {
-                label: format!("{:.0}%, {:.0}%", 100.0 * a.r2_exposure, 100.0 * a.r2_outcome),
-                x: a.r2_exposure,
-                y: a.r2_outcome,
-                kind: ReferenceKind::Hypothesised,
-            })
-            .collect();
-        (&r.coef, &r.rv, refs)
+        (
+            &r.rv,
+            hypothesised_yardsticks(r.adjusted.as_deref().unwrap_or_default()),
+        )
     });
-    tipping_figure::figure(ev, r2)
+    sensitivity_figure::figure(ev, r2)
 }

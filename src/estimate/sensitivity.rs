@@ -17,6 +17,8 @@ use serde::Serialize;
 pub struct TermStat {
     /// Term name.
     pub term: String,
+    /// The data column the term is made from.
+    pub column: String,
     /// t in the outcome fit `Y ~ A + L`.
     pub t_outcome: f64,
     /// t in the exposure fit `A ~ L`.
@@ -62,6 +64,10 @@ pub fn sensitivity_inputs(p: &Problem) -> Result<Option<SensitivityInputs>> {
         .filter(|(_, t)| !t.is_intercept())
         .map(|(j, t)| TermStat {
             term: t.name.clone(),
+            column: t
+                .factors
+                .first()
+                .map_or_else(|| t.name.clone(), |f| p.frame.name(f.col).to_string()),
             t_outcome: p.adjusted.position(&t.name).map_or(f64::NAN, |k| to[k]),
             t_exposure: te[j],
         })

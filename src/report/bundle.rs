@@ -9,7 +9,7 @@
 use super::doc::{Block, DataTable, Doc, Exporter, Table};
 use super::estimate_doc::{self, figure_paths};
 use super::graph_figure::{self, Marks};
-use super::tipping_figure::{self, Reference, ReferenceKind};
+use super::sensitivity_figure::{self, benchmark_yardsticks};
 use super::{balance_figure, markdown::Markdown};
 use super::{csv, latex};
 use crate::Result;
@@ -58,30 +58,13 @@ pub fn figures(plan: &Plan, a: Option<&Analysis>, prefix: &str) -> Result<Vec<Fi
     {
         out.push(file(&balance, balance_figure::svg(&d.balance)));
     }
-    let r2 = match (&a.details.coefficient, &a.sensitivity.robustness_value) {
-        (Some(c), Some(rv)) => {
-            let refs = a
-                .details
-                .benchmarks
-                .iter()
-                .flat_map(|t| &t.rows)
-                .filter(|r| r.k == 1.0)
-                .map(|r| Reference {
-                    label: r.covariate.clone(),
-                    x: r.r2_exposure,
-                    y: r.r2_outcome,
-                    kind: ReferenceKind::Benchmark,
-                })
-                .collect();
-            Some((c, rv, refs))
-        }
-        _ => None,
-    };
-    if a.sensitivity.evalue.is_some() || r2.is_some() {
-        out.push(file(
-            &tipping,
-            tipping_figure::figure(a.sensitivity.evalue.as_ref(), r2)?,
-        ));
+    let s = &a.sensitivity;
+    let r2 = s.robustness_value.as_ref().map(|rv| {
+        let rows = s.benchmarks.as_ref().map(benchmark_yardsticks);
+        (rv, rows.unwrap_or_default())
+    });
+    if s.evalue.is_some() || r2.is_some() {
+        out.push(file(&tipping, sensitivity_figure::figure(s.evalue.as_ref(), r2)?));
     }
     Ok(out)
 }

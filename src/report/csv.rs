@@ -309,7 +309,7 @@ pub fn benchmarks(graph: &str, a: &Analysis) -> DataTable {
         &[
             "graph",
             "covariate",
-            "k",
+            "multiple",
             "r2_exposure",
             "r2_outcome",
             "adjusted_estimate",
@@ -317,11 +317,11 @@ pub fn benchmarks(graph: &str, a: &Analysis) -> DataTable {
             "adjusted_ci_upper",
         ],
     );
-    for r in a.details.benchmarks.iter().flat_map(|b| &b.rows) {
+    for r in a.sensitivity.benchmarks.iter().flat_map(|b| &b.rows) {
         t.row(vec![
             text(graph),
             text(&r.covariate),
-            Cell::Num(r.k),
+            Cell::Num(r.multiple),
             Cell::Num(r.r2_exposure),
             Cell::Num(r.r2_outcome),
             Cell::Num(r.estimate),

@@ -466,7 +466,7 @@ pub fn analysis_blocks(a: &Analysis, figures: Option<&str>) -> Vec<Block> {
     if a.sensitivity.evalue.is_some() || a.sensitivity.robustness_value.is_some() {
         b.extend(fig(
             2,
-            "Sensitivity to unmeasured confounding: how strong a confounder would have to be to change the conclusion",
+            "How strong a hidden confounder would have to be, set against measured covariates as yardsticks",
         ));
     }
     if let Some(c) = &a.check {

@@ -18,10 +18,10 @@ pub mod json;
 pub mod latex;
 pub mod markdown;
 pub mod sensitivity_doc;
+pub mod sensitivity_figure;
 pub mod sensitivity_text;
 pub mod svg;
 pub mod text;
-pub mod tipping_figure;
 
 pub use doc::{Block, Cell, DataTable, Doc, Exporter, Stamp, Table};
 

@@ -4,81 +4,117 @@
 
 use super::doc::{Block, Table};
 use super::estimate_doc::{interval, num};
-use super::sensitivity_text::{LIMITS, pct, sig};
+use super::sensitivity_text::{LIMITS, Names, evalue_reading, multiple_label, pct, robustness_reading};
 use crate::analysis::Analysis;
+use crate::sensitivity::robustness::BenchmarkTable;
 
 /// Sensitivity: the E-value and, for a linear outcome, robustness values
 /// with benchmark bounds.
 pub fn sensitivity_blocks(a: &Analysis) -> Vec<Block> {
     let mut b = Vec::new();
+    let names = Names {
+        exposure: &a.exposure,
+        outcome: &a.outcome,
+    };
     if let (Some(e), Some(m)) = (&a.sensitivity.evalue, &a.details.evalue_method) {
-        let limit = match e.ci_limit {
-            Some(l) if l <= 1.0 => {
-                " The interval already includes the null, so its E-value is 1.".to_string()
-            }
-            Some(l) => format!(
-                " To move the interval to include the null, {} each would suffice.",
-                sig(l, 3)
-            ),
-            None => String::new(),
-        };
         b.push(Block::Para(format!(
-            "E-value ({}, from the {m} estimate; scale: {}): an unmeasured confounder associated with both {} and {} \
-             by a risk ratio of {} each, beyond the adjustment, could explain the estimate away; weaker confounding \
-             could not.{limit}",
-            "VanderWeele & Ding 2017",
+            "Risk-ratio scale (E-value, VanderWeele & Ding 2017; the {m} estimate, {}). {}",
             e.scale,
-            a.exposure,
-            a.outcome,
-            sig(e.point, 3)
+            evalue_reading(e, names)
         )));
     }
     if let (Some(rv), Some(c)) = (&a.sensitivity.robustness_value, &a.details.coefficient) {
         b.push(Block::Para(format!(
-            "Robustness value (Cinelli & Hazlett 2020), for the exposure coefficient {} (s.e. {}) of the linear \
-             outcome model without products: the exposure explains {} of the outcome's residual variance; a \
-             confounder explaining {} of the residual variance of both exposure and outcome would bring the \
-             estimate to zero, and one explaining {} of both would make the {:.0}% interval reach zero.",
+            "Partial R\u{b2} scale (robustness value, Cinelli & Hazlett 2020; the exposure coefficient {} with \
+             s.e. {} in the linear outcome model without products). {}",
             num(c.estimate),
             num(c.se),
-            pct(rv.partial_r2_exposure),
-            pct(rv.rv),
-            pct(rv.rv_alpha),
-            100.0 * (1.0 - rv.alpha)
+            robustness_reading(rv, names)
         )));
     }
-    if let Some(t) = &a.details.benchmarks {
-        let mut tab = Table::new(
-            "Bounds on a confounder k times as strong as an observed covariate",
-            &[
-                "covariate",
-                "k",
-                "R² with exposure",
-                "R² with outcome",
-                "adjusted estimate",
-                "adjusted interval",
-            ],
-        );
-        for r in &t.rows {
-            tab.row(vec![
-                r.covariate.clone(),
-                sig(r.k, 2),
-                pct(r.r2_exposure),
-                pct(r.r2_outcome),
-                num(r.estimate),
-                interval(r.ci),
-            ]);
-        }
-        for s in &t.skipped {
-            tab.notes.push(s.clone());
-        }
-        if !tab.rows.is_empty() {
-            b.push(Block::Table(tab));
-        }
+    if let (Some(t), Some(rv), Some(c)) = (
+        &a.sensitivity.benchmarks,
+        &a.sensitivity.robustness_value,
+        &a.details.coefficient,
+    ) {
+        b.extend(benchmark_blocks(t, rv.alpha, c.estimate));
     }
     for n in &a.details.notes {
         b.push(Block::Para(format!("Sensitivity: {n}.")));
     }
     b.push(Block::Para(LIMITS.into()));
     b
+}
+
+/// The benchmark table: one row per measured covariate (model term), one
+/// column per multiple, each cell the corrected estimate and interval.
+/// `estimate` is the uncorrected coefficient, whose sign a corrected
+/// estimate may reverse.
+pub fn benchmark_blocks(t: &BenchmarkTable, alpha: f64, estimate: f64) -> Vec<Block> {
+    let level = format!("{:.0}%", 100.0 * (1.0 - alpha));
+    let mut head = vec![
+        "measured covariate".to_string(),
+        "its shares (exposure, outcome)".to_string(),
+    ];
+    head.extend(t.multiples.iter().map(|&k| multiple_label(k)));
+    let head: Vec<&str> = head.iter().map(String::as_str).collect();
+    let mut tab = Table::new(
+        "Where the estimate would move if a hidden confounder were as strong as a measured covariate, or a multiple of it",
+        &head,
+    );
+    for cov in &t.measured {
+        let mut row = vec![
+            cov.name.clone(),
+            format!("{}, {}", pct(cov.r2_exposure), pct(cov.r2_outcome)),
+        ];
+        for &k in &t.multiples {
+            row.push(match t.row(&cov.name, k) {
+                Some(r) => format!("{} ({})", num(r.estimate), interval(r.ci)),
+                None => "cannot exist".into(),
+            });
+        }
+        tab.row(row);
+    }
+    tab.notes.push(format!(
+        "Each cell: the estimate corrected for a hidden confounder that explains that multiple of what the covariate \
+         explains of both the exposure and the outcome, beyond the other covariates, with its {level} interval. Shares \
+         are partial R\u{b2}."
+    ));
+    tab.notes.push(if t.selection == "named" {
+        "Covariates as named by the analyst.".to_string()
+    } else {
+        format!(
+            "Covariates: the {} adjustment terms whose own strength would bias the estimate most; others can be named.",
+            t.measured.len()
+        )
+    });
+    for s in &t.skipped {
+        tab.notes.push(match s.multiple {
+            Some(k) => format!("{}, {}: {}.", s.covariate, multiple_label(k), s.reason),
+            None => format!("{}.", s.reason),
+        });
+    }
+    let mut out = Vec::new();
+    if !tab.rows.is_empty() {
+        let crossing = t.rows.iter().filter(|r| r.ci[0] <= 0.0 && r.ci[1] >= 0.0).count();
+        let flipped = t.rows.iter().filter(|r| r.estimate * estimate < 0.0).count();
+        let total = t.rows.len();
+        out.push(Block::Para(format!(
+            "Measured covariates as yardsticks: of {total} hidden confounders built from them, {} would bring the \
+             {level} interval to include zero, and {} would reverse the sign of the estimate.",
+            count(crossing),
+            count(flipped)
+        )));
+        out.push(Block::Table(tab));
+    } else {
+        out.extend(tab.notes.into_iter().skip(2).map(Block::Para));
+    }
+    out
+}
+
+fn count(k: usize) -> String {
+    match k {
+        0 => "none".into(),
+        k => k.to_string(),
+    }
 }

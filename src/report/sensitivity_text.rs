@@ -4,7 +4,7 @@
 //! with them. Nothing here computes a statistic.
 
 use crate::sensitivity::evalue::{EValue, SCALE_HR_RARE, SCALE_OR_RARE, SCALE_RR};
-use crate::sensitivity::robustness::{Adjusted, BenchmarkTable, Coefficient, RobustnessValue};
+use crate::sensitivity::robustness::{Adjusted, Coefficient, RobustnessValue};
 use std::fmt::Write;
 
 /// What a sensitivity analysis can and cannot say; printed before the
@@ -42,50 +42,81 @@ pub fn wrap(text: &str, width: usize, indent: &str) -> String {
     super::text::wrap(text, indent, width)
 }
 
-/// The E-value section: the numbers, the conversion used and a reading.
-pub fn evalue_section(e: &EValue) -> String {
-    let mut s = String::new();
-    let _ = writeln!(s, "E-value ({})", e.scale);
-    let _ = writeln!(s, "  for the estimate      {:.2}", e.point);
-    match e.ci_limit {
-        Some(l) => {
-            let _ = writeln!(s, "  for the interval      {l:.2}");
-        }
-        None => {
-            let _ = writeln!(s, "  for the interval      (no interval given)");
+/// How a sentence names the exposure and the outcome: "the exposure" and
+/// "the outcome" for summary numbers, the column names in a report.
+#[derive(Debug, Clone, Copy)]
+pub struct Names<'a> {
+    /// The exposure, as the sentence should call it.
+    pub exposure: &'a str,
+    /// The outcome, as the sentence should call it.
+    pub outcome: &'a str,
+}
+
+impl Default for Names<'_> {
+    fn default() -> Self {
+        Names {
+            exposure: "the exposure",
+            outcome: "the outcome",
         }
     }
-    if e.scale != SCALE_RR {
-        let ci = e
-            .rr_ci
-            .map(|(lo, hi)| format!(" (interval {} to {})", sig(lo, 3), sig(hi, 3)))
-            .unwrap_or_default();
-        let _ = writeln!(s, "  as a risk ratio       {}{ci}", sig(e.rr, 3));
+}
+
+/// The E-value in words: what strength a hidden confounder needs to account
+/// for the whole risk ratio, and for the interval to reach 1.
+pub fn evalue_reading(e: &EValue, n: Names) -> String {
+    if e.rr == 1.0 {
+        return "The risk ratio is 1: there is no association for a hidden confounder to account for.".into();
     }
-    s.push('\n');
-    let mut reading = format!(
-        "Reading: an unmeasured confounder associated with both the exposure and the \
-         outcome by a risk ratio of {:.2} each, over and above the measured covariates, \
-         could explain away the observed risk ratio of {}; weaker confounding could not.",
-        e.point,
-        sig(e.rr, 3)
+    let mut s = format!(
+        "To account for all of the risk ratio of {}, a confounder missing from the analysis would have to be \
+         tied to {} and to {} by risk ratios of at least {:.2} each, over and above the measured covariates; \
+         if either tie is weaker, the other must be stronger still.",
+        sig(e.rr, 3),
+        n.exposure,
+        n.outcome,
+        e.point
     );
     match e.ci_limit {
         Some(l) if l > 1.0 => {
-            let _ = write!(
-                reading,
-                " A risk ratio of {l:.2} each could move the interval to include 1."
-            );
+            let _ = write!(s, " Ties of {l:.2} each are enough for the interval to reach 1.");
         }
-        Some(_) => {
-            reading.push_str(" The interval already includes 1, so no confounding is needed for that.")
-        }
+        Some(_) => s.push_str(" The interval reaches 1 even with no hidden confounder."),
         None => {}
     }
-    if e.rr == 1.0 {
-        reading = "Reading: the risk ratio is 1; there is no association to explain away.".to_string();
+    s
+}
+
+/// The E-value section: the numbers, the conversion used and a reading.
+pub fn evalue_section(e: &EValue) -> String {
+    let mut s = String::new();
+    let _ = writeln!(s, "Risk-ratio scale (E-value; {})", e.scale);
+    let ci = e
+        .rr_ci
+        .map(|(lo, hi)| format!(", interval {} to {}", sig(lo, 3), sig(hi, 3)))
+        .unwrap_or_default();
+    let rows = [
+        (
+            "the association, as a risk ratio",
+            format!("{}{ci}", sig(e.rr, 3)),
+        ),
+        (
+            "needed to account for all of it",
+            format!("{:.2} with the exposure and with the outcome", e.point),
+        ),
+        (
+            "needed for the interval to reach 1",
+            match e.ci_limit {
+                Some(l) if l > 1.0 => format!("{l:.2} with each"),
+                Some(_) => "none: it reaches 1 already".into(),
+                None => "(no interval given)".into(),
+            },
+        ),
+    ];
+    for (label, value) in rows {
+        let _ = writeln!(s, "  {label:<36}  {value}");
     }
-    s.push_str(&wrap(&reading, 78, ""));
+    s.push('\n');
+    s.push_str(&wrap(&evalue_reading(e, Names::default()), 78, ""));
     if e.scale == SCALE_OR_RARE || e.scale == SCALE_HR_RARE {
         s.push_str(&wrap(
             "Note: the ratio is read as a risk ratio, which assumes the outcome is rare \
@@ -104,76 +135,117 @@ pub fn evalue_section(e: &EValue) -> String {
     s
 }
 
+/// The robustness value in words: the equal share of leftover variance a
+/// hidden confounder needs to account for the estimate (or 100·q% of it)
+/// and for the interval to reach that value, and, for q = 1, the least
+/// share of the exposure's leftover variance that can do it at all.
+pub fn robustness_reading(rv: &RobustnessValue, n: Names) -> String {
+    let level = format!("{:.0}%", 100.0 * (1.0 - rv.alpha));
+    let whole = (rv.q - 1.0).abs() < 1e-12;
+    let (part, value) = if whole {
+        ("all of the estimate".to_string(), "zero".to_string())
+    } else {
+        (
+            format!("{:.0}% of the estimate", 100.0 * rv.q),
+            format!("{} times the estimate", sig(1.0 - rv.q, 3)),
+        )
+    };
+    let mut s = format!(
+        "To account for {part}, a confounder missing from the analysis would have to explain at least {} of the \
+         leftover variance of {} and of {} (what the measured covariates leave unexplained); with both shares \
+         below that it cannot.",
+        pct(rv.rv),
+        n.exposure,
+        n.outcome
+    );
+    if rv.rv_alpha > 0.0 {
+        let _ = write!(
+            s,
+            " For the {level} interval to reach {value}, both shares must reach {}.",
+            pct(rv.rv_alpha)
+        );
+    } else {
+        let _ = write!(
+            s,
+            " The {level} interval reaches {value} even with no hidden confounder."
+        );
+    }
+    if whole {
+        let _ = write!(
+            s,
+            " However much of {} it explained, a confounder explaining less than {} of the leftover variance of {} \
+             could not account for all of the estimate ({} is the share of the leftover variance of {} that {} \
+             itself explains).",
+            n.outcome,
+            pct(rv.partial_r2_exposure),
+            n.exposure,
+            pct(rv.partial_r2_exposure),
+            n.outcome,
+            n.exposure
+        );
+    }
+    s
+}
+
 /// The robustness-value section for a regression coefficient.
 pub fn robustness_section(c: &Coefficient, rv: &RobustnessValue) -> String {
     let mut s = String::new();
     let level = format!("{:.0}%", 100.0 * (1.0 - rv.alpha));
-    let _ = writeln!(s, "Robustness value (linear-regression coefficient)");
+    let _ = writeln!(
+        s,
+        "Partial R\u{b2} scale (robustness value; linear-regression coefficient)"
+    );
     let df = if c.df.fract() == 0.0 {
         format!("{:.0}", c.df)
     } else {
         sig(c.df, 4)
     };
+    let whole = (rv.q - 1.0).abs() < 1e-12;
+    let target = if whole {
+        "all of it".to_string()
+    } else {
+        format!("{:.0}% of it", 100.0 * rv.q)
+    };
+    let reach = if whole {
+        "zero".to_string()
+    } else {
+        format!("{} of it", sig(1.0 - rv.q, 3))
+    };
     let rows = [
         (
-            "coefficient".to_string(),
+            "the coefficient".to_string(),
             format!(
-                "{} (standard error {}, t = {:.2}, {df} residual df)",
+                "{}, standard error {}, t = {:.2}, {df} residual df",
                 sig(c.estimate, 3),
                 sig(c.se, 3),
                 c.t()
             ),
         ),
         (
-            "partial R2 of the exposure".to_string(),
+            format!("needed to account for {target}"),
+            format!("{} of each", pct(rv.rv)),
+        ),
+        (
+            format!("needed for the {level} interval to reach {reach}"),
+            format!("{} of each", pct(rv.rv_alpha)),
+        ),
+        (
+            "what the exposure explains of the outcome".to_string(),
             pct(rv.partial_r2_exposure),
         ),
-        (format!("RV, q = {}", rv.q), pct(rv.rv)),
-        (
-            format!("RV, q = {}, alpha = {}", rv.q, rv.alpha),
-            pct(rv.rv_alpha),
-        ),
     ];
+    let width = rows.iter().map(|(l, _)| l.chars().count()).max().unwrap_or(0);
     for (label, value) in rows {
-        let _ = writeln!(s, "  {label:<28}  {value}");
+        let _ = writeln!(s, "  {label:<width$}  {value}");
     }
+    s.push_str(&wrap(
+        "(shares of the leftover variance of the exposure and of the outcome, that is, of what the \
+         measured covariates leave unexplained)",
+        78,
+        "  ",
+    ));
     s.push('\n');
-    let whole = (rv.q - 1.0).abs() < 1e-12;
-    let (target, value) = if whole {
-        ("bring the estimate to zero".to_string(), "zero")
-    } else {
-        (
-            format!("reduce the estimate by {:.0}%", 100.0 * rv.q),
-            "the reduced value",
-        )
-    };
-    let mut reading = format!(
-        "Reading: an unmeasured confounder explaining {} of the residual variance of both \
-         the exposure and the outcome would {target}.",
-        pct(rv.rv)
-    );
-    if rv.rv_alpha > 0.0 {
-        let _ = write!(
-            reading,
-            " One explaining {} of each (or, if unequal, at most that much of either) would \
-             make the {level} interval reach {value}.",
-            pct(rv.rv_alpha)
-        );
-    } else {
-        let _ = write!(
-            reading,
-            " The {level} interval already includes {value} without any confounding."
-        );
-    }
-    if whole {
-        let _ = write!(
-            reading,
-            " Even a confounder explaining all the residual variance of the outcome would \
-             have to explain {} of the exposure's to bring the estimate to zero.",
-            pct(rv.partial_r2_exposure)
-        );
-    }
-    s.push_str(&wrap(&reading, 78, ""));
+    s.push_str(&wrap(&robustness_reading(rv, Names::default()), 78, ""));
     s
 }
 
@@ -181,16 +253,16 @@ pub fn robustness_section(c: &Coefficient, rv: &RobustnessValue) -> String {
 pub fn adjusted_section(rows: &[Adjusted], alpha: f64) -> String {
     let mut s = String::new();
     let level = format!("{:.0}%", 100.0 * (1.0 - alpha));
-    let _ = writeln!(s, "Bias-adjusted for a hypothesised confounder");
+    let _ = writeln!(s, "The estimate corrected for a hypothesised hidden confounder");
     let _ = writeln!(
         s,
-        "  {:>13}  {:>12}  {:>12}  {level} interval",
-        "R2, exposure", "R2, outcome", "estimate"
+        "  {:>16}  {:>16}  {:>12}  {level} interval",
+        "share, exposure", "share, outcome", "corrected"
     );
     for r in rows {
         let _ = writeln!(
             s,
-            "  {:>13}  {:>12}  {:>12}  {} to {}",
+            "  {:>16}  {:>16}  {:>12}  {} to {}",
             pct(r.r2_exposure),
             pct(r.r2_outcome),
             sig(r.estimate, 4),
@@ -199,52 +271,26 @@ pub fn adjusted_section(rows: &[Adjusted], alpha: f64) -> String {
         );
     }
     s.push_str(&wrap(
-        "The estimate is moved towards zero by the largest bias such a confounder could \
-         cause; the interval widens or narrows with the standard error it implies.",
+        "Each row moves the estimate towards zero by the most such a confounder could bias it, and \
+         recomputes the interval with the standard error it implies.",
         78,
         "",
     ));
     s
 }
 
-/// A table of benchmark bounds: confounders k times as strong as an
-/// observed covariate.
-pub fn benchmark_section(t: &BenchmarkTable, alpha: f64) -> String {
-    let mut s = String::new();
-    let level = format!("{:.0}%", 100.0 * (1.0 - alpha));
-    let _ = writeln!(
-        s,
-        "Confounders as strong as observed covariates (k times as strong, both ways)"
-    );
-    let width = t
-        .rows
-        .iter()
-        .map(|r| r.covariate.chars().count())
-        .max()
-        .unwrap_or(9)
-        .max(9);
-    let _ = writeln!(
-        s,
-        "  {:<width$}  {:>4}  {:>12}  {:>11}  {:>12}  {level} interval",
-        "covariate", "k", "R2, exposure", "R2, outcome", "estimate"
-    );
-    for r in &t.rows {
-        let _ = writeln!(
-            s,
-            "  {:<width$}  {:>4}  {:>12}  {:>11}  {:>12}  {} to {}",
-            r.covariate,
-            sig(r.k, 2),
-            pct(r.r2_exposure),
-            pct(r.r2_outcome),
-            sig(r.estimate, 4),
-            sig(r.ci[0], 4),
-            sig(r.ci[1], 4)
-        );
+/// A benchmark multiple in words, for a column heading: "half as strong",
+/// "as strong", "twice as strong", "3 times as strong".
+pub fn multiple_label(k: f64) -> String {
+    if k == 0.5 {
+        "half as strong".into()
+    } else if k == 1.0 {
+        "as strong".into()
+    } else if k == 2.0 {
+        "twice as strong".into()
+    } else {
+        format!("{} times as strong", sig(k, 2).trim_end_matches(".0"))
     }
-    for why in &t.skipped {
-        s.push_str(&wrap(why, 78, "  (skipped) "));
-    }
-    s
 }
 
 #[cfg(test)]
@@ -262,22 +308,17 @@ mod tests {
     }
 
     #[test]
-    fn tables_list_every_row_and_skipped_pair() {
-        use crate::sensitivity::robustness::{Covariate, adjust, benchmark_table};
-        let c = Coefficient::new(0.097, 0.0232, 783.0).unwrap();
-        let covs = [Covariate {
-            name: "female".into(),
-            r2_exposure: 0.009,
-            r2_outcome: 0.125,
-        }];
-        let t = benchmark_table(&c, &covs, &[1.0, 200.0], 0.05).unwrap();
-        let text = benchmark_section(&t, 0.05);
-        assert!(text.contains("female"));
-        assert!(text.contains("(skipped)"));
-        assert!(text.contains("95% interval"));
-        let rows = [adjust(&c, 0.01, 0.05, 0.05).unwrap()];
+    fn adjusted_table_and_multiples_read_plainly() {
+        use crate::sensitivity::robustness::adjust;
+        let c = Coefficient::new(-3.101, 0.1145, 2988.0).unwrap();
+        let rows = [adjust(&c, 0.01, 0.05, 0.1).unwrap()];
         let text = adjusted_section(&rows, 0.1);
         assert!(text.contains("90% interval") && text.contains("1.00%") && text.contains("5.00%"));
+        assert_eq!(multiple_label(0.5), "half as strong");
+        assert_eq!(multiple_label(1.0), "as strong");
+        assert_eq!(multiple_label(2.0), "twice as strong");
+        assert_eq!(multiple_label(3.0), "3.0 times as strong".replace(".0", ""));
+        assert_eq!(multiple_label(1.5), "1.5 times as strong");
     }
 
     #[test]

@@ -26,4 +26,8 @@ pub struct SensitivityBlock {
     pub evalue: Option<evalue::EValue>,
     /// Robustness values, for a linear-regression coefficient.
     pub robustness_value: Option<robustness::RobustnessValue>,
+    /// Benchmark bounds from observed covariates (with the robustness
+    /// value of an analysis); absent where they do not apply.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub benchmarks: Option<robustness::BenchmarkTable>,
 }

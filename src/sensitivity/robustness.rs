@@ -213,9 +213,10 @@ pub fn adjust(c: &Coefficient, r2_exposure: f64, r2_outcome: f64, alpha: f64) ->
 }
 
 /// An observed covariate's strength, used as a benchmark.
-#[derive(Debug, Clone, PartialEq)]
+#[derive(Debug, Clone, PartialEq, Serialize)]
 pub struct Covariate {
-    /// Its name.
+    /// Its name (a model term: `age`, `age^2`, `role=office`).
+    #[serde(rename = "covariate")]
     pub name: String,
     /// Partial R² with the exposure given the other covariates,
     /// R2_{D~Xj|X-j} (from its t statistic in the exposure model:
@@ -235,7 +236,7 @@ pub fn benchmark_bounds(cov: &Covariate, kd: f64, ky: f64) -> Result<(f64, f64)>
     let name = &cov.name;
     if !(kd > 0.0 && ky > 0.0 && kd.is_finite() && ky.is_finite()) {
         return Err(Error::input(format!(
-            "benchmark '{name}': the multipliers must be positive (got {kd}, {ky})"
+            "benchmark '{name}': the multiples must be positive (got {kd}, {ky})"
         )));
     }
     for (r, what) in [(cov.r2_exposure, "exposure"), (cov.r2_outcome, "outcome")] {
@@ -248,8 +249,10 @@ pub fn benchmark_bounds(cov: &Covariate, kd: f64, ky: f64) -> Result<(f64, f64)>
     let (rd, ry) = (cov.r2_exposure, cov.r2_outcome);
     let impossible = |what: &str| {
         Error::input(format!(
-            "benchmark '{name}': a confounder {kd} times as strong in explaining the exposure \
-             and {ky} times in explaining the outcome is impossible ({what} would reach 1)"
+            "no confounder can be {} as strong as '{name}' with the exposure and {} with the \
+             outcome: {what} would reach 1",
+            times(kd),
+            times(ky)
         ))
     };
     if kd * rd >= 1.0 {
@@ -271,14 +274,96 @@ pub fn benchmark_bounds(cov: &Covariate, kd: f64, ky: f64) -> Result<(f64, f64)>
     Ok((r2dz, r2yz))
 }
 
+/// A multiple in words: "half", "1 times", "2 times".
+fn times(k: f64) -> String {
+    if k == 0.5 {
+        "half".to_string()
+    } else {
+        format!("{k} times")
+    }
+}
+
+/// The multiples used when the analyst names none: half as strong, as
+/// strong and twice as strong as the covariate.
+pub const DEFAULT_MULTIPLES: [f64; 3] = [0.5, 1.0, 2.0];
+
+/// How many covariates serve as benchmarks when the analyst names none.
+pub const DEFAULT_BENCHMARKS: usize = 3;
+
+/// Which covariates serve as benchmarks, and at which multiples.
+#[derive(Debug, Clone, PartialEq)]
+pub struct BenchmarkChoice {
+    /// Covariate (column) names; every model term made from a named column
+    /// is benchmarked on its own. `None`: the [`DEFAULT_BENCHMARKS`]
+    /// strongest terms (see [`strongest`]).
+    pub covariates: Option<Vec<String>>,
+    /// Multiples of the covariate's strength, positive, in the order given.
+    pub multiples: Vec<f64>,
+}
+
+impl Default for BenchmarkChoice {
+    fn default() -> Self {
+        BenchmarkChoice {
+            covariates: None,
+            multiples: DEFAULT_MULTIPLES.to_vec(),
+        }
+    }
+}
+
+/// Checks a list of multiples: at least one, each positive and finite,
+/// no repeats. The message says what is wrong without naming an option.
+pub fn check_multiples(ks: &[f64]) -> std::result::Result<(), String> {
+    if ks.is_empty() {
+        return Err("expected at least one multiple".into());
+    }
+    for (i, &k) in ks.iter().enumerate() {
+        if !(k > 0.0 && k.is_finite()) {
+            return Err(format!("{k} is not a positive multiple"));
+        }
+        if ks[..i].contains(&k) {
+            return Err(format!("{k} is given twice"));
+        }
+    }
+    Ok(())
+}
+
+/// The size of the bias that a confounder as strong as `cov` (multiple 1
+/// on both sides) would cause in `c`; infinite when no such confounder can
+/// exist (stronger than any that can).
+pub fn bias_at_one(c: &Coefficient, cov: &Covariate) -> f64 {
+    match benchmark_bounds(cov, 1.0, 1.0) {
+        Ok((d, y)) => c.se * (c.df * y * d / (1.0 - d)).sqrt(),
+        Err(_) => f64::INFINITY,
+    }
+}
+
+/// The `n` covariates that, as confounders of their own strength, would
+/// cause the largest bias in `c` (ties keep the given order).
+pub fn strongest(c: &Coefficient, covariates: &[Covariate], n: usize) -> Vec<Covariate> {
+    let mut ranked: Vec<(f64, &Covariate)> =
+        covariates.iter().map(|cov| (bias_at_one(c, cov), cov)).collect();
+    ranked.sort_by(|a, b| b.0.total_cmp(&a.0));
+    ranked.into_iter().take(n).map(|(_, cov)| cov.clone()).collect()
+}
+
+/// The equal strength s (the same partial R² with the exposure and the
+/// outcome) whose bias equals that of a confounder with partial R²
+/// `r2_exposure` and `r2_outcome`: s²/(1 - s) = r2_outcome · r2_exposure /
+/// (1 - r2_exposure). It places any confounder on the scale of the
+/// robustness value: the bias erases the estimate exactly when s ≥ RV_1.
+pub fn equal_strength(r2_exposure: f64, r2_outcome: f64) -> f64 {
+    let b = r2_outcome * r2_exposure / (1.0 - r2_exposure);
+    rv_of_f(b.sqrt())
+}
+
 /// One row of a benchmark table.
 #[derive(Debug, Clone, PartialEq, Serialize)]
 pub struct BenchmarkRow {
-    /// The observed covariate used as a yardstick.
+    /// The observed covariate (model term) used as a yardstick.
     pub covariate: String,
     /// How many times as strong as the covariate the confounder is (on
     /// both the exposure and the outcome side).
-    pub k: f64,
+    pub multiple: f64,
     /// The bound on the confounder's partial R² with the exposure.
     pub r2_exposure: f64,
     /// The bound on its partial R² with the outcome.
@@ -289,13 +374,46 @@ pub struct BenchmarkRow {
     pub ci: [f64; 2],
 }
 
-/// A benchmark table and the rows that could not be formed.
+/// A (covariate, multiple) pair with no row, and why.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct Skipped {
+    /// The covariate (model term).
+    pub covariate: String,
+    /// The multiple (`None`: the covariate gave no row at all).
+    pub multiple: Option<f64>,
+    /// Why there is no row.
+    pub reason: String,
+}
+
+/// A benchmark table and the pairs that could not be formed.
 #[derive(Debug, Clone, PartialEq, Serialize)]
 pub struct BenchmarkTable {
-    /// Rows in the order of covariates, then multipliers.
+    /// `strongest` (chosen by [`strongest`]) or `named` (by the analyst).
+    pub selection: String,
+    /// The multiples, in the order used.
+    pub multiples: Vec<f64>,
+    /// The benchmark covariates' own strengths, in table order.
+    pub measured: Vec<Covariate>,
+    /// Rows in the order of covariates, then multiples.
     pub rows: Vec<BenchmarkRow>,
-    /// Why a (covariate, k) pair has no row.
-    pub skipped: Vec<String>,
+    /// Why a (covariate, multiple) pair has no row.
+    pub skipped: Vec<Skipped>,
+}
+
+impl BenchmarkTable {
+    /// The row of `covariate` at `multiple`, if it could be formed.
+    pub fn row(&self, covariate: &str, multiple: f64) -> Option<&BenchmarkRow> {
+        self.rows
+            .iter()
+            .find(|r| r.covariate == covariate && r.multiple == multiple)
+    }
+
+    /// Why `covariate` at `multiple` has no row, if it has none.
+    pub fn skipped(&self, covariate: &str, multiple: f64) -> Option<&Skipped> {
+        self.skipped
+            .iter()
+            .find(|r| r.covariate == covariate && r.multiple == Some(multiple))
+    }
 }
 
 /// The benchmark row for a confounder `k` times as strong as `cov`.
@@ -304,7 +422,7 @@ pub fn benchmark(c: &Coefficient, cov: &Covariate, k: f64, alpha: f64) -> Result
     let a = adjust(c, r2dz, r2yz, alpha)?;
     Ok(BenchmarkRow {
         covariate: cov.name.clone(),
-        k,
+        multiple: k,
         r2_exposure: r2dz,
         r2_outcome: r2yz,
         estimate: a.estimate,
@@ -312,28 +430,40 @@ pub fn benchmark(c: &Coefficient, cov: &Covariate, k: f64, alpha: f64) -> Result
     })
 }
 
-/// Benchmark rows for every covariate and every multiplier in `ks`; pairs
+/// Benchmark rows for every covariate and every multiple in `ks`; pairs
 /// that describe an impossible confounder are listed in `skipped` with the
-/// reason, never dropped silently.
+/// reason, never dropped silently. `selection` is recorded as given.
 pub fn benchmark_table(
     c: &Coefficient,
     covariates: &[Covariate],
     ks: &[f64],
     alpha: f64,
+    selection: &str,
 ) -> Result<BenchmarkTable> {
     check_alpha(alpha)?;
+    check_multiples(ks).map_err(|e| Error::input(format!("benchmark multiples: {e}")))?;
     let mut rows = Vec::new();
     let mut skipped = Vec::new();
     for cov in covariates {
         for &k in ks {
             match benchmark(c, cov, k, alpha) {
                 Ok(row) => rows.push(row),
-                Err(Error::Input(msg)) => skipped.push(msg),
+                Err(Error::Input(reason)) => skipped.push(Skipped {
+                    covariate: cov.name.clone(),
+                    multiple: Some(k),
+                    reason,
+                }),
                 Err(e) => return Err(e),
             }
         }
     }
-    Ok(BenchmarkTable { rows, skipped })
+    Ok(BenchmarkTable {
+        selection: selection.to_string(),
+        multiples: ks.to_vec(),
+        measured: covariates.to_vec(),
+        rows,
+        skipped,
+    })
 }
 
 #[cfg(test)]
@@ -473,10 +603,57 @@ mod tests {
             r2_exposure: 0.009,
             r2_outcome: 0.125,
         }];
-        let t = benchmark_table(&c, &covs, &[1.0, 2.0, 3.0, 200.0], 0.05).unwrap();
+        let t = benchmark_table(&c, &covs, &[1.0, 2.0, 3.0, 200.0], 0.05, "named").unwrap();
         assert_eq!(t.rows.len() + t.skipped.len(), 4);
         assert!(!t.skipped.is_empty());
         assert!(t.rows[0].estimate < 0.097 && t.rows[0].estimate > t.rows[1].estimate);
+    }
+
+    /// The equal strength of a confounder erases the estimate exactly when
+    /// it reaches RV_1: at (x, y) on the estimate's frontier it equals RV_1
+    /// (closed forms: 1e-12), and equal strengths map to themselves.
+    #[test]
+    fn equal_strength_is_on_the_robustness_value_scale() {
+        let c = Coefficient::new(-3.101, 0.1145, 2992.0).unwrap();
+        let rv = robustness_value(&c, 1.0, 0.05).unwrap().rv;
+        for x in [0.2, 0.39, 0.6] {
+            // On the frontier y = f² (1 - x) / x the adjusted estimate is zero.
+            let f2 = c.t().powi(2) / c.df;
+            let y = f2 * (1.0 - x) / x;
+            if y < 1.0 {
+                assert!((equal_strength(x, y) - rv).abs() < 1e-12);
+                assert!(adjust(&c, x, y, 0.05).unwrap().estimate.abs() < 1e-9);
+            }
+        }
+        assert!((equal_strength(0.3, 0.3) - 0.3).abs() < 1e-12);
+        assert_eq!(equal_strength(0.0, 0.5), 0.0);
+    }
+
+    /// The default choice ranks covariates by the bias a confounder of
+    /// their own strength would cause; an impossible one ranks first.
+    #[test]
+    fn strongest_ranks_by_bias_at_multiple_one() {
+        let c = Coefficient::new(1.0, 0.2, 500.0).unwrap();
+        let cov = |n: &str, d: f64, y: f64| Covariate {
+            name: n.into(),
+            r2_exposure: d,
+            r2_outcome: y,
+        };
+        let all = [
+            cov("weak", 0.001, 0.001),
+            cov("outcome only", 0.0, 0.4),
+            cov("both", 0.05, 0.05),
+            cov("huge", 0.6, 0.9),
+            cov("middle", 0.01, 0.02),
+        ];
+        let names: Vec<String> = strongest(&c, &all, 3).into_iter().map(|c| c.name).collect();
+        assert_eq!(names, ["huge", "both", "middle"]);
+        assert!(bias_at_one(&c, &all[1]) == 0.0);
+        assert!(check_multiples(&[0.5, 1.0, 2.0]).is_ok());
+        assert!(check_multiples(&[]).is_err());
+        assert!(check_multiples(&[1.0, 0.0]).unwrap_err().contains("0 is not"));
+        assert!(check_multiples(&[1.0, 1.0]).unwrap_err().contains("twice"));
+        assert!(check_multiples(&[f64::NAN]).is_err());
     }
 
     #[test]
