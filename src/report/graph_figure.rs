@@ -665,7 +665,7 @@ pub fn svg(g: &Graph, m: &Marks) -> String {
     let mut kinds: Vec<Role> = geo.nodes.iter().map(|&v| role[v]).collect();
     kinds.sort();
     kinds.dedup();
-    let legend_lines = legend_layout(&kinds, !geo.arcs.is_empty(), geo.width.max(MAX_WIDTH.min(520.0)));
+    let legend_lines = legend_layout(&kinds, !geo.arcs.is_empty(), MAX_WIDTH);
     let legend_h = legend_lines.len() as f64 * (BOX_H + 10.0) + 12.0;
     let width = geo
         .width
