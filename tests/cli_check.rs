@@ -38,7 +38,8 @@ fn check(args: &[&str]) -> (crate::helpers::Run, tempfile::TempDir) {
 // The key sets are those of the `check` JSON in the command-line contract,
 // plus the additions this command makes (n, df, df_denominator, response,
 // partial_correlation per claim; not_tested, rows, missing_by_column,
-// observed, latent, warnings at the top).
+// observed, latent, warnings, adjustment at the top; note,
+// bears_on_adjustment and bearing per claim).
 #[test]
 fn json_keys_match_the_contract() {
     let (r, _d) = check(&["--format", "json"]);
@@ -58,7 +59,8 @@ fn json_keys_match_the_contract() {
             "missing_by_column",
             "observed",
             "latent",
-            "warnings"
+            "warnings",
+            "adjustment"
         ])
     );
     assert_eq!(v["alpha"], 0.05);
@@ -80,7 +82,10 @@ fn json_keys_match_the_contract() {
             "df",
             "df_denominator",
             "response",
-            "partial_correlation"
+            "partial_correlation",
+            "note",
+            "bears_on_adjustment",
+            "bearing"
         ])
     );
     let rejected = imps.iter().filter(|i| i["rejected"] == true).count();
@@ -215,4 +220,115 @@ fn latent_flag_hides_a_column() {
         "{untestable:?}"
     );
     assert!(v["latent"].as_array().unwrap().iter().any(|n| n == "x"));
+}
+
+/// The graph that simulates the data: three covariates, each a cause of the
+/// exposure x and the outcome y, caused in a chain (c1 -> c2 -> c3) so that
+/// they are correlated; w causes both x and y.
+const TRUE_GRAPH: &str = "c1 -> c2 (0.9)\nc2 -> c3 (0.9)\n\
+c1 -> x (0.4)\nc2 -> x (0.4)\nc3 -> x (0.4)\nw -> x (0.6)\n\
+c1 -> y (0.5)\nc2 -> y (0.5)\nc3 -> y (0.5)\nw -> y (0.5)\nx -> y (1)\n";
+
+/// The declared graph leaves out the covariates' chain (common in practice:
+/// covariates drawn with no edges among them) and the edge w -> x.
+const DECLARED: &str = "c1 -> x\nc2 -> x\nc3 -> x\nc1 -> y\nc2 -> y\nc3 -> y\nw -> y\nx -> y\n";
+
+fn covariate_case(extra: &[&str]) -> crate::helpers::Run {
+    let dir = tempfile::tempdir().unwrap();
+    let truth = write(dir.path(), "truth.graph", TRUE_GRAPH);
+    let declared = write(dir.path(), "declared.graph", DECLARED);
+    let csv = dir.path().join("sim.csv").display().to_string();
+    let (r, _) = run(&[
+        "simulate", "--graph", &truth, "--rows", "2000", "--seed", "11", "--output", &csv, "--quiet",
+    ]);
+    assert_eq!(r.code, 0, "{}", r.stderr);
+    let mut args = vec!["check", "--graph", declared.as_str(), "--data", csv.as_str()];
+    args.extend_from_slice(extra);
+    let (r, _) = run(&args);
+    assert_eq!(r.code, 0, "{}", r.stderr);
+    r
+}
+
+// Rejected claims among covariates do not bear on the adjustment set {c1,
+// c2, c3, w}: linking any two of them leaves it valid and chosen. The
+// rejected claim that w and x are independent involves the exposure, so it
+// bears; the text leads with it.
+#[test]
+fn rejected_covariate_claims_do_not_bear_on_the_set() {
+    let r = covariate_case(&["--exposure", "x", "--outcome", "y", "--format", "json"]);
+    let v: Value = serde_json::from_str(&r.stdout).unwrap();
+    let adj = &v["adjustment"];
+    assert_eq!(adj["strategy"], "backdoor");
+    assert_eq!(adj["adjustment_set"], serde_json::json!(["c1", "c2", "c3", "w"]));
+    let imps = v["implications"].as_array().unwrap();
+    let find = |a: &str, b: &str| {
+        imps.iter()
+            .find(|i| (i["a"] == a && i["b"] == b) || (i["a"] == b && i["b"] == a))
+            .unwrap_or_else(|| panic!("a claim for {a} and {b}"))
+    };
+    for (a, b) in [("c1", "c2"), ("c2", "c3"), ("c1", "c3")] {
+        let c = find(a, b);
+        assert_eq!(c["rejected"], true, "{c}");
+        assert_eq!(c["bears_on_adjustment"], false, "{c}");
+        assert!(c["bearing"].as_str().unwrap().contains("would stay valid"), "{c}");
+    }
+    let c = find("w", "x");
+    assert_eq!(c["rejected"], true, "{c}");
+    assert_eq!(c["bears_on_adjustment"], true, "{c}");
+    assert_eq!(c["bearing"], "it involves the exposure");
+    assert_eq!(adj["rejected_bearing"], 1);
+
+    let r = covariate_case(&["--exposure", "x", "--outcome", "y"]);
+    let text = &r.stdout;
+    let lead = text.find("REJECTED CLAIMS THAT BEAR ON THE SET").expect(text);
+    let rest = text
+        .find("REJECTED CLAIMS THAT LEAVE THE SET AS IT IS")
+        .expect(text);
+    assert!(lead < rest, "{text}");
+    let first_rows: Vec<&str> = text
+        .lines()
+        .skip_while(|l| !l.trim_start().starts_with("independent"))
+        .skip(2)
+        .take(1)
+        .collect();
+    assert!(first_rows[0].trim_start().starts_with("w, x"), "{text}");
+    assert!(
+        first_rows[0].contains("REJECTED") && first_rows[0].contains("yes"),
+        "{text}"
+    );
+    let words = text.split_whitespace().collect::<Vec<_>>().join(" ");
+    assert!(
+        words.contains(
+            "estimated with the adjustment set {c1, c2, c3, w}: 1 of the 4 rejected claims bear on it."
+        ),
+        "{words}"
+    );
+}
+
+// Without an exposure and an outcome the claims are not judged: null in
+// the JSON, and the text says so.
+#[test]
+fn without_exposure_and_outcome_relevance_is_not_judged() {
+    let r = covariate_case(&["--format", "json"]);
+    let v: Value = serde_json::from_str(&r.stdout).unwrap();
+    assert!(v["adjustment"].is_null());
+    for i in v["implications"].as_array().unwrap() {
+        assert!(
+            i["bears_on_adjustment"].is_null() && i["bearing"].is_null(),
+            "{i}"
+        );
+    }
+    let r = covariate_case(&[]);
+    let words = r.stdout.split_whitespace().collect::<Vec<_>>().join(" ");
+    assert!(
+        words.contains("bears on the adjustment set cannot be judged here"),
+        "{words}"
+    );
+    assert!(!words.contains("bears on set"), "{words}");
+    // One of the pair alone is a usage error naming the other flag.
+    let dir = tempfile::tempdir().unwrap();
+    let g = write(dir.path(), "g.graph", DECLARED);
+    let (r, _) = run(&["check", "--graph", &g, "--data", "x.csv", "--exposure", "x"]);
+    assert_eq!(r.code, 2, "{}", r.stderr);
+    assert!(r.stderr.contains("--outcome"), "{}", r.stderr);
 }

@@ -14,6 +14,7 @@
 //! graphs that imply the same independencies cannot be told apart this way.
 
 pub mod adjust;
+pub mod bearing;
 pub mod fisher_z;
 pub mod implications;
 pub mod logistic_lr;
@@ -22,6 +23,7 @@ pub mod nested_f;
 pub mod pair;
 
 pub use adjust::{Correction, adjust};
+pub use bearing::{Adjustment, Bearing, judge};
 pub use implications::{Implication, implications};
 pub use pair::{CiTest, Outcome, PairResult, ci_test};
 
@@ -85,6 +87,14 @@ pub struct TestedImplication {
     pub response: Option<String>,
     /// The partial correlation (Fisher's z only).
     pub partial_correlation: Option<f64>,
+    /// A caveat about this test (also among the report's warnings).
+    pub note: Option<String>,
+    /// Whether the claim bears on the adjustment or front-door set chosen
+    /// for the exposure and outcome (`null` when none were named; see
+    /// [`bearing`]).
+    pub bears_on_adjustment: Option<bool>,
+    /// Why it does or does not (`null` when no exposure and outcome were named).
+    pub bearing: Option<String>,
 }
 
 /// A pair of variables (untestable pairs).
@@ -140,6 +150,9 @@ pub struct CheckReport {
     pub latent: Vec<String>,
     /// Caveats about single tests.
     pub warnings: Vec<String>,
+    /// The exposure, outcome and set the claims were judged against
+    /// (`null` when none were named; see [`judge`]).
+    pub adjustment: Option<Adjustment>,
 }
 
 /// The graph with every node that is not a column of `data`, and each of
@@ -226,6 +239,9 @@ pub fn run(g: &Graph, data: &Dataset, opts: &CheckOptions) -> Result<CheckReport
                     df_denominator: t.df_denominator,
                     response: t.response,
                     partial_correlation: t.partial_correlation,
+                    note: t.note,
+                    bears_on_adjustment: None,
+                    bearing: None,
                 });
             }
             Outcome::NotTested(reason) => not_tested.push(NotTested {
@@ -267,6 +283,7 @@ pub fn run(g: &Graph, data: &Dataset, opts: &CheckOptions) -> Result<CheckReport
                 .collect(),
         ),
         warnings,
+        adjustment: None,
     })
 }
 

@@ -2,7 +2,8 @@
 //! observed variables, each tested on the data.
 
 use super::common::{FormatArg, command_line, load_graph, split_list};
-use causeway::check::{CheckOptions, Correction, run as check};
+use causeway::check::{CheckOptions, Correction, judge, run as check};
+use causeway::plan::{AdjustChoice, Plan, Roles};
 use causeway::report::doc::{FileStamp, ToolInfo};
 use causeway::report::{Format, Stamp, check_text::report_doc};
 use causeway::{Error, Result};
@@ -45,6 +46,17 @@ pub struct Args {
     /// Nodes to treat as unobserved although they are columns, comma-separated.
     #[arg(long, value_name = "A,B")]
     latent: Option<String>,
+    /// The exposure: with --outcome, each claim is marked by whether it
+    /// bears on the adjustment (or front-door) set chosen for this effect.
+    #[arg(long, value_name = "NAME", requires = "outcome")]
+    exposure: Option<String>,
+    /// The outcome (with --exposure).
+    #[arg(long, value_name = "NAME", requires = "exposure")]
+    outcome: Option<String>,
+    /// The set the claims are judged against: optimal, minimal, or a
+    /// comma-separated set (as for estimate; needs --exposure and --outcome).
+    #[arg(long, value_name = "SET", requires = "exposure")]
+    adjust: Option<String>,
     /// Output format.
     #[arg(long, value_enum, default_value = "text")]
     format: FormatArg,
@@ -65,6 +77,18 @@ pub fn run(a: Args) -> Result<i32> {
     let graph_bytes = std::fs::read(&a.graph).map_err(|e| Error::io(&a.graph, e))?;
     let keep: Vec<String> = (0..g.len()).map(|v| g.name(v).to_string()).collect();
     let source = super::flags::DataSource::open(&a.data)?;
+    let latent = a.latent.as_deref().map(split_list).unwrap_or_default();
+    // The plan is made before any test runs, so a misspelt name fails fast.
+    let choice = AdjustChoice::parse(a.adjust.as_deref().unwrap_or("optimal"));
+    let plan = match (&a.exposure, &a.outcome) {
+        (Some(x), Some(y)) => {
+            let header = source.header()?;
+            let shown = a.data.display().to_string();
+            let roles = Roles::resolve(g.clone(), Some(&header), Some(&shown), &latent, x, y)?;
+            Some(Plan::new(roles, &choice, false)?)
+        }
+        _ => None,
+    };
     let data = source.load(keep)?;
     let data_stamp = source.stamp()?;
     let opts = CheckOptions {
@@ -75,9 +99,12 @@ pub fn run(a: Args) -> Result<i32> {
             Correction::Holm
         },
         categorical: a.categorical.as_deref().map(split_list).unwrap_or_default(),
-        latent: a.latent.as_deref().map(split_list).unwrap_or_default(),
+        latent,
     };
-    let report = check(&g, &data, &opts)?;
+    let mut report = check(&g, &data, &opts)?;
+    if let Some(plan) = &plan {
+        judge(&mut report, plan, &choice);
+    }
     if !a.quiet {
         for w in &report.warnings {
             eprintln!("causeway: warning: {w}");

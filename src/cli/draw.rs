@@ -29,7 +29,12 @@ pub struct Args {
     /// Nodes to mark as unobserved, comma-separated.
     #[arg(long, value_name = "A,B")]
     latent: Option<String>,
-    /// svg (a figure) or dot (text for graph-drawing tools).
+    /// Data file: graph nodes that are not among its column names are drawn
+    /// as unobserved (only the header line is read).
+    #[arg(long, value_name = "CSV")]
+    data: Option<PathBuf>,
+    /// svg (a figure) or dot (the graph in the DOT language, an export for
+    /// graph-layout programs).
     #[arg(long, default_value = "svg", value_parser = ["svg", "dot"])]
     format: String,
     /// Write to this file instead of standard output.
@@ -43,6 +48,14 @@ pub struct Args {
 /// Runs the command.
 pub fn run(a: Args) -> Result<i32> {
     let mut g = load_graph(&a.graph, a.quiet)?;
+    if let Some(path) = &a.data {
+        let columns = super::flags::DataSource::open(path)?.header()?;
+        for v in 0..g.len() {
+            if !columns.iter().any(|c| c == g.name(v)) {
+                g.set_latent(v, true);
+            }
+        }
+    }
     for name in a.latent.as_deref().map(split_list).unwrap_or_default() {
         let v = resolve(&g, &name, "--latent")?;
         g.set_latent(v, true);

@@ -4,7 +4,9 @@
 //! [`CheckReport`]; the statistics are computed in [`crate::check`].
 
 use super::doc::{Align, Block, Doc, Table};
-use crate::check::{CheckReport, TestedImplication, fisher_z, logistic_lr, multinomial_lr, nested_f};
+use crate::check::{
+    Adjustment, CheckReport, TestedImplication, fisher_z, logistic_lr, multinomial_lr, nested_f,
+};
 use crate::graph::quote;
 
 /// A list of names, quoted as in a graph file when needed.
@@ -60,6 +62,116 @@ pub fn verdict(r: &CheckReport) -> String {
     format!("{lead} at alpha {} after {adj}.", r.alpha)
 }
 
+fn yes_no(b: Option<bool>) -> &'static str {
+    match b {
+        Some(true) => "yes",
+        Some(false) => "no",
+        None => "-",
+    }
+}
+
+/// A claim in words: `a and b given {s}`.
+fn claim_text(i: &TestedImplication) -> String {
+    let given = if i.given.is_empty() {
+        "nothing".to_string()
+    } else {
+        format!("{{{}}}", names(&i.given))
+    };
+    format!("{} and {} given {given}", quote(&i.a), quote(&i.b))
+}
+
+/// The claims in the order of the table: when they were judged against a
+/// set, rejected claims bearing on it first, then other rejected claims,
+/// then the rest; within each group by adjusted p-value.
+fn ordered(r: &CheckReport) -> Vec<&TestedImplication> {
+    let mut order: Vec<&TestedImplication> = r.implications.iter().collect();
+    let group = |i: &TestedImplication| match (i.rejected, i.bears_on_adjustment) {
+        (true, Some(true)) => 0,
+        (true, _) => 1,
+        (false, Some(true)) => 2,
+        _ => 3,
+    };
+    order.sort_by(|a, b| {
+        group(a)
+            .cmp(&group(b))
+            .then(a.p_adjusted.total_cmp(&b.p_adjusted))
+            .then(a.p_value.total_cmp(&b.p_value))
+    });
+    order
+}
+
+/// The set the claims were judged against, in words.
+fn judged_set(a: &Adjustment) -> String {
+    match (&a.adjustment_set, &a.frontdoor_set) {
+        (Some(s), _) => format!("the adjustment set {{{}}}", names(s)),
+        (None, Some(s)) => format!("the front-door set {{{}}}", names(s)),
+        (None, None) => "no set (the effect is not identified under the graph)".to_string(),
+    }
+}
+
+/// The section that says which rejected claims matter for the set used,
+/// placed before the table.
+fn bearing_blocks(r: &CheckReport) -> Vec<Block> {
+    let rejected: Vec<&TestedImplication> = ordered(r).into_iter().filter(|i| i.rejected).collect();
+    let Some(a) = &r.adjustment else {
+        if rejected.is_empty() {
+            return Vec::new();
+        }
+        return vec![Block::Para(
+            "Whether a rejected claim bears on the adjustment set cannot be judged here: no \
+             exposure and outcome were named. Name them to see which rejections could change \
+             the set an estimate uses and which concern only variables that leave it as it is."
+                .to_string(),
+        )];
+    };
+    let count = match (rejected.len(), a.rejected_bearing) {
+        (0, _) => "no claim is rejected".to_string(),
+        (1, 1) => "the one rejected claim bears on it".to_string(),
+        (1, _) => "the one rejected claim does not bear on it".to_string(),
+        (n, 0) => format!("none of the {n} rejected claims bears on it"),
+        (n, k) => format!("{k} of the {n} rejected claims bear on it"),
+    };
+    let mut blocks = vec![Block::Para(format!(
+        "Judged against the effect of {} on {}, estimated with {}: {count}.",
+        quote(&a.exposure),
+        quote(&a.outcome),
+        judged_set(a),
+    ))];
+    let (bear, other): (Vec<_>, Vec<_>) = rejected
+        .into_iter()
+        .partition(|i| i.bears_on_adjustment == Some(true));
+    let item = |i: &&TestedImplication| {
+        format!(
+            "{} (adjusted p {}): {}.",
+            claim_text(i),
+            p_text(i.p_adjusted),
+            i.bearing.as_deref().unwrap_or("not judged")
+        )
+    };
+    if !bear.is_empty() {
+        blocks.push(Block::Heading("Rejected claims that bear on the set".into()));
+        blocks.push(Block::List(bear.iter().map(item).collect()));
+    }
+    if !other.is_empty() {
+        blocks.push(Block::Heading(
+            "Rejected claims that leave the set as it is".into(),
+        ));
+        blocks.push(Block::Para(
+            "The graph is probably wrong about these pairs too, but a link between the two \
+             variables, either way or through a shared unobserved cause, would leave the set \
+             valid and chosen again, so the estimate does not rest on them."
+                .to_string(),
+        ));
+        blocks.push(Block::List(
+            other
+                .iter()
+                .map(|i| format!("{} (adjusted p {}).", claim_text(i), p_text(i.p_adjusted)))
+                .collect(),
+        ));
+    }
+    blocks
+}
+
 /// The document for a check.
 pub fn report_doc(r: &CheckReport) -> Doc {
     let mut blocks = Vec::new();
@@ -78,37 +190,45 @@ pub fn report_doc(r: &CheckReport) -> Doc {
         r.rows,
         r.correction.label()
     )));
+    blocks.extend(bearing_blocks(r));
     if !r.implications.is_empty() {
-        blocks.push(Block::Heading("Claims, by adjusted p-value".into()));
-        let mut t = Table::new(
-            "",
-            &[
-                "independent",
-                "test",
-                "n",
-                "statistic",
-                "p",
-                "adjusted p",
-                "verdict",
-                "given",
-            ],
-        )
-        .align(1, Align::Left)
-        .align(6, Align::Left)
-        .align(7, Align::Left);
-        let mut order: Vec<&TestedImplication> = r.implications.iter().collect();
-        order.sort_by(|a, b| {
-            a.p_adjusted
-                .total_cmp(&b.p_adjusted)
-                .then(a.p_value.total_cmp(&b.p_value))
-        });
-        for i in order {
+        let judged = r.adjustment.is_some();
+        blocks.push(Block::Heading(
+            if judged {
+                "Claims, those bearing on the set first, then by adjusted p-value"
+            } else {
+                "Claims, by adjusted p-value"
+            }
+            .into(),
+        ));
+        let mut headers = vec![
+            "independent",
+            "test",
+            "n",
+            "statistic",
+            "p",
+            "adjusted p",
+            "verdict",
+        ];
+        if judged {
+            headers.push("bears on set");
+        }
+        headers.push("given");
+        let last = headers.len() - 1;
+        let mut t = Table::new("", &headers)
+            .align(1, Align::Left)
+            .align(6, Align::Left)
+            .align(last, Align::Left);
+        if judged {
+            t = t.align(7, Align::Left);
+        }
+        for i in ordered(r) {
             let given = if i.given.is_empty() {
                 "(nothing)".to_string()
             } else {
                 names(&i.given)
             };
-            t.row(vec![
+            let mut row = vec![
                 format!("{}, {}", quote(&i.a), quote(&i.b)),
                 short_test(&i.test).to_string(),
                 i.n.to_string(),
@@ -116,14 +236,26 @@ pub fn report_doc(r: &CheckReport) -> Doc {
                 p_text(i.p_value),
                 p_text(i.p_adjusted),
                 if i.rejected { "REJECTED" } else { "not rejected" }.to_string(),
-                given,
-            ]);
+            ];
+            if judged {
+                row.push(yes_no(i.bears_on_adjustment).to_string());
+            }
+            row.push(given);
+            t.row(row);
         }
         t.notes.push(format!(
             "REJECTED: adjusted p-value at most alpha = {}. n: rows with a value for every \
              variable of the claim. given: the set the two variables are independent given.",
             r.alpha
         ));
+        if judged {
+            t.notes.push(
+                "bears on set: yes when the claim involves the exposure, the outcome or a \
+                 variable on a causal path between them, or when linking the two variables \
+                 would change the set used or make it invalid."
+                    .to_string(),
+            );
+        }
         t.notes.push(
             "Tests: Fisher z, partial correlation of two continuous variables with Fisher's z; \
              logistic LR, likelihood ratio between nested logistic regressions of the binary \
@@ -226,6 +358,9 @@ mod tests {
             df_denominator: None,
             response: None,
             partial_correlation: Some(0.1),
+            note: None,
+            bears_on_adjustment: None,
+            bearing: None,
         }
     }
 
@@ -246,6 +381,7 @@ mod tests {
             observed: vec!["a".into(), "b".into()],
             latent: Vec::new(),
             warnings: vec!["a caveat".into()],
+            adjustment: None,
         }
     }
 
@@ -295,5 +431,47 @@ mod tests {
         );
         assert!(text.contains("! a caveat"));
         assert!(text.contains(crate::report::doc::CAUTION.split_whitespace().next().unwrap()));
+    }
+
+    // Judged against a set: the rejected claim that bears on it leads, with
+    // its reason, before a rejected claim with a smaller p-value that does
+    // not; without a set the text says relevance cannot be judged.
+    #[test]
+    fn bearing_claims_lead() {
+        let mut near = claim("x", "c1", 0.001, 0.01, true);
+        near.bears_on_adjustment = Some(true);
+        near.bearing = Some("it involves the exposure".into());
+        let mut far = claim("c1", "c2", 0.00001, 0.00002, true);
+        far.bears_on_adjustment = Some(false);
+        far.bearing = Some("linking them leaves the set".into());
+        let mut r = report(vec![far.clone(), near.clone()]);
+        let text = Text.render(&report_doc(&r));
+        assert!(text.contains("cannot be judged here"), "{text}");
+        assert!(!text.contains("bears on set"), "{text}");
+        r.adjustment = Some(Adjustment {
+            exposure: "x".into(),
+            outcome: "y".into(),
+            strategy: crate::identify::Strategy::Backdoor,
+            adjustment_set: Some(vec!["c1".into(), "c2".into()]),
+            frontdoor_set: None,
+            bearing: 1,
+            rejected_bearing: 1,
+        });
+        let text = Text.render(&report_doc(&r));
+        let words = text.split_whitespace().collect::<Vec<_>>().join(" ");
+        assert!(
+            words.contains(
+                "estimated with the adjustment set {c1, c2}: 1 of the 2 rejected claims bear on it."
+            ),
+            "{words}"
+        );
+        assert!(words.contains("x and c1 given {s} (adjusted p 0.0100): it involves the exposure."));
+        let lead = text.find("REJECTED CLAIMS THAT BEAR ON THE SET").unwrap();
+        let rest = text.find("REJECTED CLAIMS THAT LEAVE THE SET AS IT IS").unwrap();
+        assert!(lead < rest, "{text}");
+        let row_near = text.find("\n  x, c1 ").unwrap();
+        let row_far = text.find("\n  c1, c2 ").unwrap();
+        assert!(row_near < row_far, "{text}");
+        assert!(!text.contains("cannot be judged"), "{text}");
     }
 }
