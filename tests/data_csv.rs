@@ -108,6 +108,7 @@ fn missing_tokens_drop_rows_and_are_counted_per_column() {
 fn keep_stores_only_the_named_columns() {
     let opts = ReadOptions {
         keep: Some(vec!["b".into()]),
+        ..ReadOptions::default()
     };
     let d = Dataset::read(&b"a,b\nfoo,2\nbar,3\n"[..], "d.csv", &opts).unwrap();
     assert!(d.has_column("a") && d.column("a").is_none());

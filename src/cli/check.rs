@@ -1,7 +1,7 @@
 //! `causeway check`: the conditional independencies the graph implies among
 //! observed variables, each tested on the data.
 
-use super::common::{FormatArg, command_line, load_graph, split_list};
+use super::common::{DelimiterArg, FormatArg, command_line, load_graph, split_list};
 use causeway::check::{CheckOptions, Correction, run as check};
 use causeway::report::doc::{FileStamp, ToolInfo};
 use causeway::report::{Format, Stamp, check_text::report_doc};
@@ -29,9 +29,14 @@ pub struct Args {
     /// The graph file (plain-text edge list).
     #[arg(long, value_name = "FILE")]
     graph: PathBuf,
-    /// CSV data with a header row; `-` reads standard input.
-    #[arg(long, value_name = "CSV")]
+    /// The data: delimited text with a header row (comma, tab or
+    /// semicolon); `-` reads standard input.
+    #[arg(long, value_name = "FILE")]
     data: PathBuf,
+    /// Field separator of the data: comma, tab or semicolon (default: tab
+    /// for a .tsv file, else detected from the header line).
+    #[arg(long, value_enum, value_name = "SEP")]
+    delimiter: Option<DelimiterArg>,
     /// Level at which an adjusted p-value rejects a claim.
     #[arg(long, default_value_t = 0.05, value_name = "A", allow_negative_numbers = true)]
     alpha: f64,
@@ -64,7 +69,7 @@ pub fn run(a: Args) -> Result<i32> {
     let g = load_graph(&a.graph, a.quiet)?;
     let graph_bytes = std::fs::read(&a.graph).map_err(|e| Error::io(&a.graph, e))?;
     let keep: Vec<String> = (0..g.len()).map(|v| g.name(v).to_string()).collect();
-    let source = super::flags::DataSource::open(&a.data)?;
+    let source = super::flags::DataSource::open(&a.data, a.delimiter)?;
     let data = source.load(keep)?;
     let data_stamp = source.stamp()?;
     let opts = CheckOptions {

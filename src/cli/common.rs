@@ -19,14 +19,26 @@ pub fn load_graph(path: &Path, quiet: bool) -> Result<Graph> {
 
 pub use causeway::plan::{node as resolve, split_list};
 
-/// The column names of a CSV file's header line; `-` reads standard input.
-pub fn header_of(path: &Path) -> Result<Vec<String>> {
-    let shown = path.display().to_string();
-    if shown == "-" {
-        return causeway::plan::read_header(std::io::stdin().lock(), "<stdin>");
+/// The `--delimiter` flag's values.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, clap::ValueEnum)]
+pub enum DelimiterArg {
+    /// Comma-separated values.
+    Comma,
+    /// Tab-separated values.
+    Tab,
+    /// Semicolon-separated values.
+    Semicolon,
+}
+
+impl From<DelimiterArg> for causeway::data::Delimiter {
+    fn from(d: DelimiterArg) -> Self {
+        use causeway::data::Delimiter;
+        match d {
+            DelimiterArg::Comma => Delimiter::Comma,
+            DelimiterArg::Tab => Delimiter::Tab,
+            DelimiterArg::Semicolon => Delimiter::Semicolon,
+        }
     }
-    let f = std::fs::File::open(path).map_err(|e| Error::io(path, e))?;
-    causeway::plan::read_header(f, &shown)
 }
 
 /// Writes `text` to standard output; a closed pipe is not an error.

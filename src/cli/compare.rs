@@ -1,7 +1,7 @@
 //! `causeway compare`: the same analysis under several graphs, in one table,
 //! after a summary of how the graphs differ.
 
-use super::common::{FormatArg, print_stdout, to_json, write_bundle};
+use super::common::{DelimiterArg, FormatArg, print_stdout, to_json, write_bundle};
 use super::flags::{self, DataSource, EstimateFlags};
 use causeway::analysis::{self, Analysis};
 use causeway::graph::{self, Graph, diff};
@@ -32,9 +32,14 @@ pub struct Args {
     /// A graph file; repeat the flag for each graph to compare.
     #[arg(long, value_name = "FILE", required = true)]
     pub graph: Vec<PathBuf>,
-    /// The data (CSV with a header row; `-` reads standard input).
-    #[arg(long, value_name = "CSV")]
+    /// The data: delimited text with a header row (comma, tab or
+    /// semicolon); `-` reads standard input.
+    #[arg(long, value_name = "FILE")]
     pub data: PathBuf,
+    /// Field separator of the data: comma, tab or semicolon (default: tab
+    /// for a .tsv file, else detected from the header line).
+    #[arg(long, value_enum, value_name = "SEP")]
+    pub delimiter: Option<DelimiterArg>,
     #[command(flatten)]
     pub flags: EstimateFlags,
     /// Output format on standard output.
@@ -314,7 +319,7 @@ pub fn run(a: Args) -> Result<i32> {
             bytes,
         });
     }
-    let data = DataSource::open(&a.data)?;
+    let data = DataSource::open(&a.data, a.delimiter)?;
     let c = compare(&inputs, &data, &a.flags)?;
     let mut paths: Vec<&std::path::Path> = a.graph.iter().map(|p| p.as_path()).collect();
     paths.push(&a.data);

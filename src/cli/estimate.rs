@@ -2,7 +2,7 @@
 //! it with every method that fits, with intervals, diagnostics and
 //! sensitivity; `--out DIR` writes a report bundle.
 
-use super::common::{FormatArg, print_stdout, to_json, write_bundle};
+use super::common::{DelimiterArg, FormatArg, print_stdout, to_json, write_bundle};
 use super::flags::{self, DataSource, EstimateFlags};
 use causeway::Result;
 use causeway::analysis::{self, Analysis};
@@ -29,9 +29,14 @@ pub struct Args {
     /// The graph file (plain-text edge list).
     #[arg(long, value_name = "FILE")]
     pub graph: PathBuf,
-    /// The data (CSV with a header row; `-` reads standard input).
-    #[arg(long, value_name = "CSV")]
+    /// The data: delimited text with a header row (comma, tab or
+    /// semicolon); `-` reads standard input.
+    #[arg(long, value_name = "FILE")]
     pub data: PathBuf,
+    /// Field separator of the data: comma, tab or semicolon (default: tab
+    /// for a .tsv file, else detected from the header line).
+    #[arg(long, value_enum, value_name = "SEP")]
+    pub delimiter: Option<DelimiterArg>,
     #[command(flatten)]
     pub flags: EstimateFlags,
     /// Output format on standard output.
@@ -67,7 +72,7 @@ pub fn json(stamp: &Stamp, a: &Analysis, rows: usize) -> Result<Value> {
 pub fn run(a: Args) -> Result<i32> {
     let opts = a.flags.options()?;
     let g = flags::graph(&a.graph, a.flags.quiet)?;
-    let data = DataSource::open(&a.data)?;
+    let data = DataSource::open(&a.data, a.delimiter)?;
     let columns = data.header()?;
     let plan = a.flags.plan(g, &columns, &data.shown)?;
     if plan.strategy == causeway::identify::Strategy::None {
