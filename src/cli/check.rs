@@ -1,12 +1,11 @@
 //! `causeway check`: the conditional independencies the graph implies among
 //! observed variables, each tested on the data.
 
-use super::common::{DelimiterArg, FormatArg, command_line, load_graph, split_list};
+use super::common::{DelimiterArg, FormatArg, command_line, load_graph, print_stdout, split_list};
 use causeway::check::{CheckOptions, Correction, run as check};
 use causeway::report::doc::{FileStamp, ToolInfo};
 use causeway::report::{Format, Stamp, check_text::report_doc};
 use causeway::{Error, Result};
-use std::io::Write;
 use std::path::PathBuf;
 
 /// Test the graph's implications against the data.
@@ -21,7 +20,7 @@ use std::path::PathBuf;
 /// the number of tests. Graph nodes that are not columns of --data are
 /// unobserved. The exit code is 0 whatever the verdict.
 ///
-/// Example:
+/// Example (run from the repository root):
 ///   causeway check --graph demo-data/main.graph --data demo-data/study.csv --categorical role
 #[derive(clap::Args)]
 #[command(verbatim_doc_comment)]
@@ -111,11 +110,6 @@ pub fn run(a: Args) -> Result<i32> {
             s
         }
     };
-    let mut stdout = std::io::stdout().lock();
-    match stdout.write_all(text.as_bytes()).and_then(|()| stdout.flush()) {
-        Ok(()) => {}
-        Err(e) if e.kind() == std::io::ErrorKind::BrokenPipe => {}
-        Err(e) => return Err(Error::io("standard output", e)),
-    }
+    print_stdout(&text)?;
     Ok(0)
 }

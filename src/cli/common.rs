@@ -41,11 +41,18 @@ impl From<DelimiterArg> for causeway::data::Delimiter {
     }
 }
 
-/// Writes `text` to standard output; a closed pipe is not an error.
+/// Writes `text` to standard output: see [`print_bytes`].
 pub fn print_stdout(text: &str) -> Result<()> {
+    print_bytes(text.as_bytes())
+}
+
+/// The one place that writes standard output. A reader that has gone away
+/// (`causeway ... | head -1`) is not an error: the rest of the output is
+/// dropped quietly and the command ends with its usual exit code.
+pub fn print_bytes(bytes: &[u8]) -> Result<()> {
     use std::io::Write;
     let mut out = std::io::stdout().lock();
-    match out.write_all(text.as_bytes()).and_then(|()| out.flush()) {
+    match out.write_all(bytes).and_then(|()| out.flush()) {
         Ok(()) => Ok(()),
         Err(e) if e.kind() == std::io::ErrorKind::BrokenPipe => Ok(()),
         Err(e) => Err(Error::io("standard output", e)),

@@ -23,7 +23,7 @@ use std::path::PathBuf;
 /// E-value. Graphs under which the effect is not identified keep their row,
 /// with the reason. Above the table: what differs between the graphs.
 ///
-/// Example:
+/// Example (run from the repository root):
 ///   causeway compare --graph demo-data/main.graph --graph demo-data/hidden-motivation.graph \
 ///       --data demo-data/study.csv --exposure enrolled --outcome pain_days --categorical role
 #[derive(clap::Args)]

@@ -1,6 +1,6 @@
 //! `causeway draw`: the graph as an SVG figure or DOT text.
 
-use super::common::{load_graph, resolve, split_list, write_atomic};
+use super::common::{load_graph, print_stdout, resolve, split_list, write_atomic};
 use causeway::Result;
 use causeway::report::graph_figure::{self, Marks};
 use std::path::PathBuf;
@@ -8,8 +8,8 @@ use std::path::PathBuf;
 /// Draw the graph, with the exposure, outcome, adjustment set and
 /// unobserved nodes marked.
 ///
-/// Example:
-///   causeway draw --graph study.graph --exposure enrolled --outcome pain_days \
+/// Example (run from the repository root):
+///   causeway draw --graph demo-data/main.graph --exposure enrolled --outcome pain_days \
 ///       --adjust age,role --format svg --output graph.svg
 #[derive(clap::Args)]
 #[command(verbatim_doc_comment)]
@@ -69,7 +69,7 @@ pub fn run(a: Args) -> Result<i32> {
     };
     match &a.output {
         Some(path) => write_atomic(path, text.as_bytes(), &[&a.graph])?,
-        None => print!("{text}"),
+        None => print_stdout(&text)?,
     }
     Ok(0)
 }

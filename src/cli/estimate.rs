@@ -20,9 +20,18 @@ use std::path::PathBuf;
 /// sensitivity to unmeasured confounding (E-value; robustness value for a
 /// linear outcome). Exit code 3 when the effect is not identified.
 ///
-/// Example:
+/// The data may be comma-, tab- or semicolon-separated (detected from the
+/// header line; --delimiter overrides). A two-valued exposure may be
+/// numbers or text (e.g. quit/continued): --exposed names the exposed
+/// value; without it the larger number, or the text level that sorts last,
+/// is exposed, and the report says which.
+///
+/// Examples (run from the repository root):
 ///   causeway estimate --graph demo-data/main.graph --data demo-data/study.csv \
-///       --exposure enrolled --outcome pain_days --categorical role --bootstrap 500 --out report
+///       --exposure enrolled --outcome pain_days --categorical role
+///   causeway estimate --graph demo-data/main.graph --data demo-data/study.csv \
+///       --exposure enrolled --outcome pain_days --categorical role --exposed 1 \
+///       --bootstrap 200 --out report
 #[derive(clap::Args)]
 #[command(verbatim_doc_comment)]
 pub struct Args {

@@ -17,9 +17,11 @@ use std::path::PathBuf;
 /// not columns of --data are unobserved. Exit code 3 when neither the
 /// backdoor nor the front-door criterion identifies the effect.
 ///
-/// Example:
-///   causeway identify --graph study.graph --exposure enrolled --outcome pain_days \
-///       --data study.csv --adjust age,role
+/// Examples (run from the repository root):
+///   causeway identify --graph demo-data/main.graph --data demo-data/study.csv \
+///       --exposure enrolled --outcome pain_days
+///   causeway identify --graph demo-data/main.graph --data demo-data/study.csv \
+///       --exposure enrolled --outcome pain_days --adjust age,role --format json
 #[derive(clap::Args)]
 #[command(verbatim_doc_comment)]
 pub struct Args {
