@@ -224,7 +224,14 @@ impl Comparison {
             b.extend(diff);
         }
         b.push(Block::Heading("Estimates under each graph".into()));
-        b.push(Block::Table(compare_doc::comparison_table(&self.runs, level)));
+        let mut table = compare_doc::comparison_table(&self.runs, level);
+        // The same data and exposure under every graph: one coding.
+        if let Some(a) = self.analyses().find(|a| a.exposure_coding.is_some())
+            && let Some(c) = &a.exposure_coding
+        {
+            table.notes.insert(0, format!("{}.", c.sentence(&a.exposure)));
+        }
+        b.push(Block::Table(table));
         b
     }
 
