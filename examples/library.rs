@@ -6,16 +6,17 @@
 use causeway::analysis::{self, Options};
 use causeway::data::{Dataset, ReadOptions};
 use causeway::graph;
-use causeway::plan::{AdjustChoice, Plan, Roles, read_header};
+use causeway::plan::{AdjustChoice, Plan, Roles};
 
 fn main() -> causeway::Result<()> {
     let text = std::fs::read_to_string("demo-data/main.graph")
         .map_err(|e| causeway::Error::io("demo-data/main.graph", e))?;
     let g = graph::parse(&text, "demo-data/main.graph")?.graph;
     let csv = std::path::Path::new("demo-data/study.csv");
-    let columns = read_header(
+    let columns = Dataset::read_header(
         std::fs::File::open(csv).map_err(|e| causeway::Error::io(csv, e))?,
         "study.csv",
+        None,
     )?;
     let roles = Roles::resolve(g, Some(&columns), Some("study.csv"), &[], "enrolled", "pain_days")?;
     let plan = Plan::new(roles, &AdjustChoice::Optimal, false)?;
@@ -29,6 +30,7 @@ fn main() -> causeway::Result<()> {
         csv,
         &ReadOptions {
             keep: Some(analysis::columns(&plan, &opts)),
+            ..ReadOptions::default()
         },
     )?;
     let result = analysis::run(&plan, &data, &opts)?;

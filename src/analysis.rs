@@ -7,7 +7,7 @@
 //! of the command-line contract (the stamp is added by the caller).
 
 use crate::check::{self, CheckOptions, Correction};
-use crate::data::Dataset;
+use crate::data::{Dataset, ExposureCoding};
 use crate::estimate::{
     self, Diagnostics, Estimand, Estimate, Method, Problem, Scale, SensitivityInputs, Spec, Warm,
 };
@@ -130,9 +130,9 @@ pub struct Analysis {
     /// Details for the text report and figures.
     #[serde(skip)]
     pub details: SensitivityDetails,
-    /// The values of a binary exposure coded 0 and 1.
-    #[serde(skip)]
-    pub exposure_coding: Option<(f64, f64)>,
+    /// Which value of a two-valued exposure is exposed (coded 1), and why.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub exposure_coding: Option<ExposureCoding>,
     /// The outcome is binary.
     #[serde(skip)]
     pub binary_outcome: bool,
@@ -245,10 +245,11 @@ pub fn run(plan: &Plan, data: &Dataset, opts: &Options) -> Result<Analysis> {
         if !plan.adjustment_set.iter().flatten().any(|c| c == name) {
             return Err(Error::input(format!(
                 "--interact '{name}' is not in the adjustment set used ({}); products with the exposure \
-                 are formed with adjustment covariates only",
+                 are formed with adjustment covariates only{}",
                 plan.adjustment_set
                     .as_ref()
-                    .map_or("none".to_string(), |s| format!("{{{}}}", s.join(", ")))
+                    .map_or("none".to_string(), |s| format!("{{{}}}", s.join(", "))),
+                crate::error::nearest_names(name, plan.adjustment_set.iter().flatten().map(String::as_str))
             )));
         }
     }
@@ -264,7 +265,11 @@ pub fn run(plan: &Plan, data: &Dataset, opts: &Options) -> Result<Analysis> {
     let methods: Vec<Box<dyn Method>> = names.iter().map(|n| estimate::method(n)).collect::<Result<_>>()?;
     let mut warnings = plan.warnings.clone();
     warnings.extend(problem.warnings.iter().cloned());
-    let mut notes = Vec::new();
+    let mut notes: Vec<String> = problem
+        .exposure_coding
+        .iter()
+        .map(|c| c.sentence(&problem.spec.exposure))
+        .collect();
     let mut estimates = Vec::new();
     for m in &methods {
         let e = m.estimate(&problem)?;
@@ -287,7 +292,7 @@ pub fn run(plan: &Plan, data: &Dataset, opts: &Options) -> Result<Analysis> {
             }
             // A separated propensity model leaves no weights to diagnose;
             // the estimates that do not need them stand, with the reason.
-            Err(e @ Error::Numerical(_)) => {
+            Err(e @ (Error::Numerical(_) | Error::Separation(_))) => {
                 warnings.push(format!("no propensity diagnostics: {e}"));
                 None
             }
@@ -322,7 +327,7 @@ pub fn run(plan: &Plan, data: &Dataset, opts: &Options) -> Result<Analysis> {
         sensitivity,
         warnings,
         details,
-        exposure_coding: problem.exposure_levels(),
+        exposure_coding: problem.exposure_coding.clone(),
         binary_outcome: problem.binary_outcome(),
         notes,
         check,

@@ -15,6 +15,11 @@ pub enum Error {
     /// The effect is not identified by the criteria the tool knows.
     #[error("{0}")]
     NotIdentified(String),
+    /// The data leave no overlap between the exposure groups (separation of
+    /// the propensity model, a positivity violation): bad input, like
+    /// [`Error::Input`].
+    #[error("{0}")]
+    Separation(String),
     /// A numerical failure that makes a result meaningless.
     #[error("{0}")]
     Numerical(String),
@@ -32,7 +37,7 @@ impl Error {
     /// The process exit code for this error (see the command-line contract).
     pub fn exit_code(&self) -> i32 {
         match self {
-            Error::Graph(_) | Error::Input(_) | Error::Io { .. } => 2,
+            Error::Graph(_) | Error::Input(_) | Error::Separation(_) | Error::Io { .. } => 2,
             Error::NotIdentified(_) => 3,
             Error::Numerical(_) => 1,
         }
@@ -54,3 +59,76 @@ impl Error {
 
 /// Result with the crate's error.
 pub type Result<T, E = Error> = std::result::Result<T, E>;
+
+/// The names among `candidates` nearest to `name`, for a "not found"
+/// message: those equal to it ignoring case first, then those within a
+/// small edit distance (Levenshtein, on lower-cased text; at most a third of
+/// the name's length, and at least 1), closest first, at most three.
+/// Returns the text to append to the message, `; did you mean 'a'?` or
+/// `; did you mean one of 'a', 'b'?`, or
+/// nothing when no candidate is near.
+pub fn nearest_names<'a>(name: &str, candidates: impl IntoIterator<Item = &'a str>) -> String {
+    let want = name.to_lowercase();
+    let limit = (want.chars().count() / 3).max(1);
+    let mut near: Vec<(usize, &str)> = candidates
+        .into_iter()
+        .filter(|c| *c != name)
+        .filter_map(|c| {
+            let d = edit_distance(&want, &c.to_lowercase());
+            // A case-only difference ranks before any edit.
+            (d <= limit).then_some((if d == 0 { 0 } else { d + 1 }, c))
+        })
+        .collect();
+    near.sort_by(|a, b| a.0.cmp(&b.0).then_with(|| a.1.cmp(b.1)));
+    near.dedup_by(|a, b| a.1 == b.1);
+    if near.is_empty() {
+        return String::new();
+    }
+    let shown: Vec<String> = near.iter().take(3).map(|(_, c)| format!("'{c}'")).collect();
+    let word = if shown.len() == 1 { "" } else { "one of " };
+    format!("; did you mean {word}{}?", shown.join(", "))
+}
+
+/// Levenshtein distance between two strings, counted in characters.
+fn edit_distance(a: &str, b: &str) -> usize {
+    let b: Vec<char> = b.chars().collect();
+    let mut prev: Vec<usize> = (0..=b.len()).collect();
+    let mut cur = vec![0; b.len() + 1];
+    for (i, ca) in a.chars().enumerate() {
+        cur[0] = i + 1;
+        for (j, &cb) in b.iter().enumerate() {
+            let sub = prev[j] + usize::from(ca != cb);
+            cur[j + 1] = sub.min(prev[j + 1] + 1).min(cur[j] + 1);
+        }
+        std::mem::swap(&mut prev, &mut cur);
+    }
+    prev[b.len()]
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn edit_distances() {
+        assert_eq!(edit_distance("kitten", "sitting"), 3);
+        assert_eq!(edit_distance("", "abc"), 3);
+        assert_eq!(edit_distance("qsmk", "qsmk"), 0);
+    }
+
+    #[test]
+    fn nearest_names_puts_case_first_and_keeps_three() {
+        let cols = ["qsmk", "QSMKK", "sex", "age", "qsmx", "qsm"];
+        assert_eq!(
+            nearest_names("qsmkk", cols),
+            "; did you mean one of 'QSMKK', 'qsmk'?"
+        );
+        let cols = ["wt71", "wt712", "WT711", "wt7111", "wt82"];
+        assert_eq!(
+            nearest_names("wt711", cols),
+            "; did you mean one of 'WT711', 'wt71', 'wt7111'?"
+        );
+        assert_eq!(nearest_names("Age", ["age", "race"]), "; did you mean 'age'?");
+        assert_eq!(nearest_names("weight", ["age", "race"]), "");
+    }
+}

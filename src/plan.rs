@@ -4,10 +4,10 @@
 //! exposure and outcome, the identification under the graph, and the set
 //! the estimate will use (adjustment set or front-door set).
 
+use crate::error::nearest_names;
 use crate::graph::{Graph, Node};
 use crate::identify::{Identification, Strategy, identify};
 use crate::{Error, Result};
-use std::io::Read;
 
 /// Which adjustment set to use under the backdoor strategy.
 #[derive(Debug, Clone, PartialEq, Eq, Default)]
@@ -39,30 +39,6 @@ pub fn split_list(s: &str) -> Vec<String> {
         .map(|x| x.trim().to_string())
         .filter(|x| !x.is_empty())
         .collect()
-}
-
-/// The column names of a CSV header line (a UTF-8 byte-order mark is
-/// dropped); `source` names the data in messages.
-pub fn read_header<R: Read>(reader: R, source: &str) -> Result<Vec<String>> {
-    let mut csv = csv::ReaderBuilder::new()
-        .has_headers(true)
-        .flexible(true)
-        .from_reader(reader);
-    let header = csv
-        .headers()
-        .map_err(|e| Error::input(format!("{source}: cannot read the CSV header line: {e}")))?;
-    let mut names: Vec<String> = header.iter().map(|h| h.trim().to_string()).collect();
-    if let Some(first) = names.first_mut()
-        && let Some(rest) = first.strip_prefix('\u{feff}')
-    {
-        *first = rest.to_string();
-    }
-    if names.iter().all(|n| n.is_empty()) {
-        return Err(Error::input(format!(
-            "{source}: the file is empty or its CSV header line is blank"
-        )));
-    }
-    Ok(names)
 }
 
 /// Why node `v` is unobserved, for messages.
@@ -166,7 +142,8 @@ impl Roles {
 pub fn node(g: &Graph, name: &str, flag: &str) -> Result<Node> {
     g.node(name).ok_or_else(|| {
         Error::input(format!(
-            "{flag} '{name}' is not a node of the graph (names are matched exactly, case-sensitive)"
+            "{flag} '{name}' is not a node of the graph (names are matched exactly, case-sensitive){}",
+            nearest_names(name, (0..g.len()).map(|v| g.name(v)))
         ))
     })
 }

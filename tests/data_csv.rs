@@ -108,6 +108,7 @@ fn missing_tokens_drop_rows_and_are_counted_per_column() {
 fn keep_stores_only_the_named_columns() {
     let opts = ReadOptions {
         keep: Some(vec!["b".into()]),
+        ..ReadOptions::default()
     };
     let d = Dataset::read(&b"a,b\nfoo,2\nbar,3\n"[..], "d.csv", &opts).unwrap();
     assert!(d.has_column("a") && d.column("a").is_none());
@@ -130,4 +131,81 @@ fn text_covariates_become_categorical_with_the_lowest_level_as_reference() {
         ["(intercept)", "role=rider", "role=walker"],
         "driver is the reference (lexical order)"
     );
+}
+
+#[test]
+fn the_delimiter_is_detected_from_the_header_line() {
+    use causeway::data::Delimiter;
+    let cases: &[(&[u8], Delimiter)] = &[
+        (b"a,b,c\n1,2,3\n", Delimiter::Comma),
+        (b"a\tb\tc\n1\t2\t3\n", Delimiter::Tab),
+        (b"a;b;c\n1,5;2,5;3\n", Delimiter::Semicolon),
+        // Separators inside quotes do not count; nor do later lines.
+        (b"\"a,b\";c;d\n1;2;3\n", Delimiter::Semicolon),
+        (b"\xEF\xBB\xBF\r\n\r\na\tb\r\n1\t2\r\n", Delimiter::Tab),
+        // One column, or a tie: comma.
+        (b"a\n1\n", Delimiter::Comma),
+        (b"a,b;c\n", Delimiter::Comma),
+        (b"", Delimiter::Comma),
+    ];
+    for (bytes, want) in cases {
+        assert_eq!(
+            Delimiter::sniff(bytes),
+            *want,
+            "{:?}",
+            String::from_utf8_lossy(bytes)
+        );
+    }
+    assert_eq!(
+        Delimiter::from_path(std::path::Path::new("x/d.TSV")),
+        Some(Delimiter::Tab)
+    );
+    assert_eq!(Delimiter::from_path(std::path::Path::new("d.csv")), None);
+    assert_eq!(Delimiter::parse("semicolon"), Some(Delimiter::Semicolon));
+}
+
+#[test]
+fn tab_and_semicolon_text_reads_like_csv() {
+    let want = read(b"a,b\n1,x\n2,\"y,z\"\n").unwrap();
+    for bytes in [&b"a\tb\n1\tx\n2\t\"y,z\"\n"[..], &b"a;b\n1;x\n2;\"y,z\"\n"[..]] {
+        let d = read(bytes).unwrap();
+        assert_eq!(d.names(), want.names());
+        assert_eq!(d.column("a").unwrap().values, want.column("a").unwrap().values);
+        assert_eq!(d.column("b").unwrap().codes(), want.column("b").unwrap().codes());
+    }
+    // A header longer than one read ahead (8 KiB): detection reads on to
+    // the line's end, and every byte read ahead is read again.
+    let names: Vec<String> = (0..3000).map(|i| format!("c{i}")).collect();
+    let long = format!("{}\n{}\n", names.join("\t"), vec!["1"; 3000].join("\t"));
+    let d = read(long.as_bytes()).unwrap();
+    assert_eq!((d.names().len(), d.nrows()), (3000, 1));
+}
+
+#[test]
+fn a_header_read_with_the_wrong_delimiter_is_named_as_such() {
+    use causeway::data::Delimiter;
+    let opts = ReadOptions {
+        delimiter: Some(Delimiter::Comma),
+        ..ReadOptions::default()
+    };
+    let e = Dataset::read(&b"a\tb\tc\n1\t2\t3\n"[..], "d.txt", &opts).unwrap_err();
+    assert_eq!(
+        e.to_string(),
+        "d.txt:1: read as comma-separated, the header is one field of 5 characters containing tabs; \
+         the file looks tab-separated: use --delimiter tab"
+    );
+    let e = Dataset::read_header(&b"a;b\n"[..], "d.txt", Some(Delimiter::Tab)).unwrap_err();
+    assert!(e.to_string().contains("looks semicolon-separated"), "{e}");
+    // Detected, a one-column file is simply one column.
+    assert_eq!(
+        Dataset::read_header(&b"a b\n1\n"[..], "d.txt", None).unwrap(),
+        ["a b"]
+    );
+}
+
+#[test]
+fn a_missing_column_suggests_the_nearest() {
+    let d = read(b"age,role,bmi\n1,a,2\n").unwrap();
+    let e = d.require("Age").unwrap_err().to_string();
+    assert!(e.ends_with("did you mean 'age'?"), "{e}");
 }

@@ -108,7 +108,7 @@ fn separated_exposure_makes_weighting_refuse_while_regression_runs() {
     let p = Problem::build(&d, &spec(&["x"])).unwrap();
     for m in ["ipw", "aipw"] {
         match method(m).unwrap().estimate(&p) {
-            Err(Error::Numerical(msg)) => assert!(msg.contains("complete separation"), "{msg}"),
+            Err(Error::Separation(msg)) => assert!(msg.contains("complete separation"), "{msg}"),
             other => panic!("{m}: {other:?}"),
         }
     }

@@ -44,7 +44,8 @@ fn sample_reports_63_rows_dropped_for_missing_outcome() {
     assert_eq!(p.sample.dropped_by_column.get("wt82_71"), Some(&63));
     assert_eq!(p.sample.dropped_by_column.len(), 1);
     assert!(p.warnings.iter().any(|w| w.contains("63 of 1629 rows dropped")));
-    assert_eq!(p.exposure_levels(), Some((0.0, 1.0)));
+    let c = p.exposure_coding.as_ref().expect("qsmk is two-valued");
+    assert_eq!((c.unexposed.as_str(), c.exposed.as_str()), ("0", "1"));
 }
 
 #[test]

@@ -325,11 +325,15 @@ fn separated() -> String {
 #[test]
 fn complete_separation_refuses_weighting_and_names_it() {
     let r = estimate(&separated(), &["--format", "json"]);
+    // Bad input (exit 2): the message names the exposure and the covariate
+    // whose ranges do not overlap between the groups.
     expect(
         &r,
-        1,
+        2,
         &[
-            "propensity model for 'x'",
+            "the exposure 'x' is predicted perfectly",
+            "'z' is at least",
+            "in every exposed row",
             "complete separation",
             "positivity violation",
         ],
@@ -338,7 +342,7 @@ fn complete_separation_refuses_weighting_and_names_it() {
     // --trim cannot rescue it: the scores it would clip are 0 and 1.
     expect(
         &estimate(&separated(), &["--trim", "0.05"]),
-        1,
+        2,
         &["complete separation"],
     );
 }
@@ -373,8 +377,13 @@ fn quasi_complete_separation_is_named() {
         .collect();
     expect(
         &estimate(&csv(&rs), &[]),
-        1,
-        &["'x'", "quasi-complete separation", "positivity"],
+        2,
+        &[
+            "the exposure 'x'",
+            "'z' is at least 0 in every exposed row and at most 0 in every unexposed row",
+            "quasi-complete separation",
+            "positivity",
+        ],
     );
 }
 

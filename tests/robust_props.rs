@@ -127,7 +127,7 @@ proptest! {
     #[test]
     fn arbitrary_bytes_never_panic(bytes in proptest::collection::vec(any::<u8>(), 0..2000)) {
         let _ = read(&bytes);
-        let keep = ReadOptions { keep: Some(vec!["a".into(), "b".into()]) };
+        let keep = ReadOptions { keep: Some(vec!["a".into(), "b".into()]), ..ReadOptions::default() };
         let _ = Dataset::read(&bytes[..], "p.csv", &keep);
     }
 

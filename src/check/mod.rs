@@ -165,11 +165,7 @@ fn observed_graph(g: &Graph, data: &Dataset, latent: &[String]) -> Result<Graph>
         }
     }
     for name in latent {
-        let v = g.node(name).ok_or_else(|| {
-            Error::input(format!(
-                "--latent '{name}' is not a node of the graph (nodes are matched to names exactly, case-sensitive)"
-            ))
-        })?;
+        let v = crate::plan::node(&g, name, "--latent")?;
         g.set_latent(v, true);
     }
     Ok(g)
@@ -186,15 +182,12 @@ pub fn run(g: &Graph, data: &Dataset, opts: &CheckOptions) -> Result<CheckReport
         )));
     }
     for name in &opts.categorical {
+        crate::plan::node(g, name, "--categorical")?;
         if !data.has_column(name) {
             return Err(Error::input(format!(
-                "--categorical '{name}' is not a column of {}",
-                data.source()
-            )));
-        }
-        if g.node(name).is_none() {
-            return Err(Error::input(format!(
-                "--categorical '{name}' is not a node of the graph"
+                "--categorical '{name}' is not a column of {}{}",
+                data.source(),
+                crate::error::nearest_names(name, data.names().iter().map(String::as_str))
             )));
         }
     }

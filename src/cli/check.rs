@@ -1,13 +1,12 @@
 //! `causeway check`: the conditional independencies the graph implies among
 //! observed variables, each tested on the data.
 
-use super::common::{FormatArg, command_line, load_graph, split_list};
+use super::common::{DelimiterArg, FormatArg, command_line, load_graph, print_stdout, split_list};
 use causeway::check::{CheckOptions, Correction, judge, run as check};
 use causeway::plan::{AdjustChoice, Plan, Roles};
 use causeway::report::doc::{FileStamp, ToolInfo};
 use causeway::report::{Format, Stamp, check_text::report_doc};
 use causeway::{Error, Result};
-use std::io::Write;
 use std::path::PathBuf;
 
 /// Test the graph's implications against the data.
@@ -22,7 +21,7 @@ use std::path::PathBuf;
 /// the number of tests. Graph nodes that are not columns of --data are
 /// unobserved. The exit code is 0 whatever the verdict.
 ///
-/// Example:
+/// Example (run from the repository root):
 ///   causeway check --graph demo-data/main.graph --data demo-data/study.csv --categorical role
 #[derive(clap::Args)]
 #[command(verbatim_doc_comment)]
@@ -30,9 +29,14 @@ pub struct Args {
     /// The graph file (plain-text edge list).
     #[arg(long, value_name = "FILE")]
     graph: PathBuf,
-    /// CSV data with a header row; `-` reads standard input.
-    #[arg(long, value_name = "CSV")]
+    /// The data: delimited text with a header row (comma, tab or
+    /// semicolon); `-` reads standard input.
+    #[arg(long, value_name = "FILE")]
     data: PathBuf,
+    /// Field separator of the data: comma, tab or semicolon (default: tab
+    /// for a .tsv file, else detected from the header line).
+    #[arg(long, value_enum, value_name = "SEP")]
+    delimiter: Option<DelimiterArg>,
     /// Level at which an adjusted p-value rejects a claim.
     #[arg(long, default_value_t = 0.05, value_name = "A", allow_negative_numbers = true)]
     alpha: f64,
@@ -76,7 +80,7 @@ pub fn run(a: Args) -> Result<i32> {
     let g = load_graph(&a.graph, a.quiet)?;
     let graph_bytes = std::fs::read(&a.graph).map_err(|e| Error::io(&a.graph, e))?;
     let keep: Vec<String> = (0..g.len()).map(|v| g.name(v).to_string()).collect();
-    let source = super::flags::DataSource::open(&a.data)?;
+    let source = super::flags::DataSource::open(&a.data, a.delimiter)?;
     let latent = a.latent.as_deref().map(split_list).unwrap_or_default();
     // The plan is made before any test runs, so a misspelt name fails fast.
     let choice = AdjustChoice::parse(a.adjust.as_deref().unwrap_or("optimal"));
@@ -133,11 +137,6 @@ pub fn run(a: Args) -> Result<i32> {
             s
         }
     };
-    let mut stdout = std::io::stdout().lock();
-    match stdout.write_all(text.as_bytes()).and_then(|()| stdout.flush()) {
-        Ok(()) => {}
-        Err(e) if e.kind() == std::io::ErrorKind::BrokenPipe => {}
-        Err(e) => return Err(Error::io("standard output", e)),
-    }
+    print_stdout(&text)?;
     Ok(0)
 }

@@ -19,21 +19,40 @@ pub fn load_graph(path: &Path, quiet: bool) -> Result<Graph> {
 
 pub use causeway::plan::{node as resolve, split_list};
 
-/// The column names of a CSV file's header line; `-` reads standard input.
-pub fn header_of(path: &Path) -> Result<Vec<String>> {
-    let shown = path.display().to_string();
-    if shown == "-" {
-        return causeway::plan::read_header(std::io::stdin().lock(), "<stdin>");
-    }
-    let f = std::fs::File::open(path).map_err(|e| Error::io(path, e))?;
-    causeway::plan::read_header(f, &shown)
+/// The `--delimiter` flag's values.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, clap::ValueEnum)]
+pub enum DelimiterArg {
+    /// Comma-separated values.
+    Comma,
+    /// Tab-separated values.
+    Tab,
+    /// Semicolon-separated values.
+    Semicolon,
 }
 
-/// Writes `text` to standard output; a closed pipe is not an error.
+impl From<DelimiterArg> for causeway::data::Delimiter {
+    fn from(d: DelimiterArg) -> Self {
+        use causeway::data::Delimiter;
+        match d {
+            DelimiterArg::Comma => Delimiter::Comma,
+            DelimiterArg::Tab => Delimiter::Tab,
+            DelimiterArg::Semicolon => Delimiter::Semicolon,
+        }
+    }
+}
+
+/// Writes `text` to standard output: see [`print_bytes`].
 pub fn print_stdout(text: &str) -> Result<()> {
+    print_bytes(text.as_bytes())
+}
+
+/// The one place that writes standard output. A reader that has gone away
+/// (`causeway ... | head -1`) is not an error: the rest of the output is
+/// dropped quietly and the command ends with its usual exit code.
+pub fn print_bytes(bytes: &[u8]) -> Result<()> {
     use std::io::Write;
     let mut out = std::io::stdout().lock();
-    match out.write_all(text.as_bytes()).and_then(|()| out.flush()) {
+    match out.write_all(bytes).and_then(|()| out.flush()) {
         Ok(()) => Ok(()),
         Err(e) if e.kind() == std::io::ErrorKind::BrokenPipe => Ok(()),
         Err(e) => Err(Error::io("standard output", e)),

@@ -1,7 +1,7 @@
 //! `causeway compare`: the same analysis under several graphs, in one table,
 //! after a summary of how the graphs differ.
 
-use super::common::{FormatArg, print_stdout, to_json, write_bundle};
+use super::common::{DelimiterArg, FormatArg, print_stdout, to_json, write_bundle};
 use super::flags::{self, DataSource, EstimateFlags};
 use causeway::analysis::{self, Analysis};
 use causeway::graph::{self, Graph, diff};
@@ -22,7 +22,7 @@ use std::path::PathBuf;
 /// E-value. Graphs under which the effect is not identified keep their row,
 /// with the reason. Above the table: what differs between the graphs.
 ///
-/// Example:
+/// Example (run from the repository root):
 ///   causeway compare --graph demo-data/main.graph --graph demo-data/hidden-motivation.graph \
 ///       --data demo-data/study.csv --exposure enrolled --outcome pain_days --categorical role
 #[derive(clap::Args)]
@@ -31,9 +31,14 @@ pub struct Args {
     /// A graph file; repeat the flag for each graph to compare.
     #[arg(long, value_name = "FILE", required = true)]
     pub graph: Vec<PathBuf>,
-    /// The data (CSV with a header row; `-` reads standard input).
-    #[arg(long, value_name = "CSV")]
+    /// The data: delimited text with a header row (comma, tab or
+    /// semicolon); `-` reads standard input.
+    #[arg(long, value_name = "FILE")]
     pub data: PathBuf,
+    /// Field separator of the data: comma, tab or semicolon (default: tab
+    /// for a .tsv file, else detected from the header line).
+    #[arg(long, value_enum, value_name = "SEP")]
+    pub delimiter: Option<DelimiterArg>,
     #[command(flatten)]
     pub flags: EstimateFlags,
     /// Output format on standard output.
@@ -220,7 +225,14 @@ impl Comparison {
             b.extend(diff);
         }
         b.push(Block::Heading("Estimates under each graph".into()));
-        b.push(Block::Table(compare_doc::comparison_table(&self.runs, level)));
+        let mut table = compare_doc::comparison_table(&self.runs, level);
+        // The same data and exposure under every graph: one coding.
+        if let Some(a) = self.analyses().find(|a| a.exposure_coding.is_some())
+            && let Some(c) = &a.exposure_coding
+        {
+            table.notes.insert(0, format!("{}.", c.sentence(&a.exposure)));
+        }
+        b.push(Block::Table(table));
         if let Some(t) = self.data_tables().into_iter().next() {
             b.push(Block::Data(t));
         }
@@ -345,7 +357,7 @@ pub fn run(a: Args) -> Result<i32> {
             bytes,
         });
     }
-    let data = DataSource::open(&a.data)?;
+    let data = DataSource::open(&a.data, a.delimiter)?;
     let c = compare(&inputs, &data, &a.flags)?;
     let mut paths: Vec<&std::path::Path> = a.graph.iter().map(|p| p.as_path()).collect();
     paths.push(&a.data);

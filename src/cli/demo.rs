@@ -68,6 +68,7 @@ fn flags(a: &Args) -> EstimateFlags {
     EstimateFlags {
         exposure: "enrolled".into(),
         outcome: "pain_days".into(),
+        exposed: None,
         method: None,
         estimand: "ate".into(),
         adjust: "optimal".into(),

@@ -1,6 +1,6 @@
 //! `causeway draw`: the graph as an SVG figure or DOT text.
 
-use super::common::{load_graph, resolve, split_list, write_atomic};
+use super::common::{DelimiterArg, load_graph, print_stdout, resolve, split_list, write_atomic};
 use causeway::Result;
 use causeway::report::graph_figure::{self, Marks};
 use std::path::PathBuf;
@@ -8,8 +8,8 @@ use std::path::PathBuf;
 /// Draw the graph, with the exposure, outcome, adjustment set and
 /// unobserved nodes marked.
 ///
-/// Example:
-///   causeway draw --graph study.graph --exposure enrolled --outcome pain_days \
+/// Example (run from the repository root):
+///   causeway draw --graph demo-data/main.graph --exposure enrolled --outcome pain_days \
 ///       --adjust age,role --format svg --output graph.svg
 #[derive(clap::Args)]
 #[command(verbatim_doc_comment)]
@@ -31,8 +31,12 @@ pub struct Args {
     latent: Option<String>,
     /// Data file: graph nodes that are not among its column names are drawn
     /// as unobserved (only the header line is read).
-    #[arg(long, value_name = "CSV")]
+    #[arg(long, value_name = "FILE")]
     data: Option<PathBuf>,
+    /// Field separator of the data: comma, tab or semicolon (default: tab
+    /// for a .tsv file, else detected from the header line).
+    #[arg(long, value_enum, value_name = "SEP")]
+    delimiter: Option<DelimiterArg>,
     /// svg (a figure) or dot (the graph in the DOT language, an export for
     /// graph-layout programs).
     #[arg(long, default_value = "svg", value_parser = ["svg", "dot"])]
@@ -49,7 +53,7 @@ pub struct Args {
 pub fn run(a: Args) -> Result<i32> {
     let mut g = load_graph(&a.graph, a.quiet)?;
     if let Some(path) = &a.data {
-        let columns = super::flags::DataSource::open(path)?.header()?;
+        let columns = super::flags::DataSource::open(path, a.delimiter)?.header()?;
         for v in 0..g.len() {
             if !columns.iter().any(|c| c == g.name(v)) {
                 g.set_latent(v, true);
@@ -82,7 +86,7 @@ pub fn run(a: Args) -> Result<i32> {
     };
     match &a.output {
         Some(path) => write_atomic(path, text.as_bytes(), &[&a.graph])?,
-        None => print!("{text}"),
+        None => print_stdout(&text)?,
     }
     Ok(0)
 }

@@ -2,7 +2,7 @@
 //! it with every method that fits, with intervals, diagnostics and
 //! sensitivity; `--out DIR` writes a report bundle.
 
-use super::common::{FormatArg, print_stdout, to_json, write_bundle};
+use super::common::{DelimiterArg, FormatArg, print_stdout, to_json, write_bundle};
 use super::flags::{self, DataSource, EstimateFlags};
 use causeway::Result;
 use causeway::analysis::{self, Analysis};
@@ -20,9 +20,18 @@ use std::path::PathBuf;
 /// sensitivity to unmeasured confounding (E-value; robustness value for a
 /// linear outcome). Exit code 3 when the effect is not identified.
 ///
-/// Examples:
+/// The data may be comma-, tab- or semicolon-separated (detected from the
+/// header line; --delimiter overrides). A two-valued exposure may be
+/// numbers or text (e.g. quit/continued): --exposed names the exposed
+/// value; without it the larger number, or the text level that sorts last,
+/// is exposed, and the report says which.
+///
+/// Examples (run from the repository root):
 ///   causeway estimate --graph demo-data/main.graph --data demo-data/study.csv \
-///       --exposure enrolled --outcome pain_days --categorical role --bootstrap 500 --out report
+///       --exposure enrolled --outcome pain_days --categorical role
+///   causeway estimate --graph demo-data/main.graph --data demo-data/study.csv \
+///       --exposure enrolled --outcome pain_days --categorical role --exposed 1 \
+///       --bootstrap 200 --out report
 ///   causeway estimate --graph demo-data/main.graph --data demo-data/study.csv \
 ///       --exposure enrolled --outcome pain_days --categorical role \
 ///       --benchmark role,age --benchmark-multiples 1,3
@@ -32,9 +41,14 @@ pub struct Args {
     /// The graph file (plain-text edge list).
     #[arg(long, value_name = "FILE")]
     pub graph: PathBuf,
-    /// The data (CSV with a header row; `-` reads standard input).
-    #[arg(long, value_name = "CSV")]
+    /// The data: delimited text with a header row (comma, tab or
+    /// semicolon); `-` reads standard input.
+    #[arg(long, value_name = "FILE")]
     pub data: PathBuf,
+    /// Field separator of the data: comma, tab or semicolon (default: tab
+    /// for a .tsv file, else detected from the header line).
+    #[arg(long, value_enum, value_name = "SEP")]
+    pub delimiter: Option<DelimiterArg>,
     #[command(flatten)]
     pub flags: EstimateFlags,
     /// Output format on standard output.
@@ -70,7 +84,7 @@ pub fn json(stamp: &Stamp, a: &Analysis, rows: usize) -> Result<Value> {
 pub fn run(a: Args) -> Result<i32> {
     let opts = a.flags.options()?;
     let g = flags::graph(&a.graph, a.flags.quiet)?;
-    let data = DataSource::open(&a.data)?;
+    let data = DataSource::open(&a.data, a.delimiter)?;
     let columns = data.header()?;
     let plan = a.flags.plan(g, &columns, &data.shown)?;
     a.flags.check_benchmarks([&plan])?;

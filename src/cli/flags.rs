@@ -2,10 +2,10 @@
 //! the steps they share: reading the data, planning under a graph, running
 //! the analysis and stamping the output.
 
-use super::common::load_graph;
+use super::common::{DelimiterArg, load_graph};
 use causeway::analysis::Options;
 use causeway::check::CheckOptions;
-use causeway::data::{Dataset, ReadOptions, Shape};
+use causeway::data::{Dataset, Delimiter, ReadOptions, Shape};
 use causeway::estimate::{Estimand, Scale, Spec};
 use causeway::graph::Graph;
 use causeway::infer::bootstrap::IntervalKind;
@@ -24,6 +24,11 @@ pub struct EstimateFlags {
     /// The outcome column.
     #[arg(long, value_name = "NAME")]
     pub outcome: String,
+    /// Which value of a two-valued exposure counts as exposed, e.g. quit
+    /// or 1. Default: the larger of two numbers; of two text levels, the
+    /// one that sorts last. Reports always say which was taken.
+    #[arg(long, value_name = "VALUE")]
+    pub exposed: Option<String>,
     /// Methods, comma-separated: regression, ipw, ipw-ht, aipw, frontdoor.
     /// Default: every method that fits the strategy.
     #[arg(long, value_name = "LIST")]
@@ -204,6 +209,7 @@ impl EstimateFlags {
                 trim: self.trim.filter(|&t| t > 0.0),
                 level: self.level,
                 contrast,
+                exposed: self.exposed.clone(),
                 ..Spec::default()
             },
             bootstrap: self.bootstrap,
@@ -302,6 +308,14 @@ impl EstimateFlags {
             &self.exposure,
             &self.outcome,
         )?;
+        for (names, flag) in [
+            (&self.categorical, "--categorical"),
+            (&self.interact, "--interact"),
+        ] {
+            for name in list(names) {
+                causeway::plan::node(&roles.graph, &name, flag)?;
+            }
+        }
         Plan::new(roles, &AdjustChoice::parse(&self.adjust), self.force_adjust)
     }
 }
@@ -314,12 +328,19 @@ pub struct DataSource {
     pub shown: String,
     /// Standard input, read once and kept.
     stdin: Option<Vec<u8>>,
+    /// The field separator; `None`: detected from the header line.
+    delimiter: Option<Delimiter>,
 }
 
 impl DataSource {
-    /// Opens `path`; `-` reads all of standard input now.
-    pub fn open(path: &Path) -> Result<DataSource> {
+    /// Opens `path`; `-` reads all of standard input now. The separator is
+    /// `delimiter` (from `--delimiter`), else tab for a `.tsv` name, else
+    /// detected from the header line.
+    pub fn open(path: &Path, delimiter: Option<DelimiterArg>) -> Result<DataSource> {
         let shown = path.display().to_string();
+        let delimiter = delimiter
+            .map(Delimiter::from)
+            .or_else(|| Delimiter::from_path(path));
         if shown == "-" {
             let mut bytes = Vec::new();
             std::io::Read::read_to_end(&mut std::io::stdin().lock(), &mut bytes)
@@ -328,11 +349,12 @@ impl DataSource {
                 path: path.to_path_buf(),
                 shown: "<stdin>".into(),
                 stdin: Some(bytes),
+                delimiter,
             });
         }
         if path.is_dir() {
             return Err(Error::input(format!(
-                "--data {shown}: is a folder, not a CSV file"
+                "--data {shown}: is a folder, not a data file"
             )));
         }
         if !path.is_file() {
@@ -342,6 +364,7 @@ impl DataSource {
             path: path.to_path_buf(),
             shown,
             stdin: None,
+            delimiter,
         })
     }
 
@@ -351,23 +374,27 @@ impl DataSource {
             path: PathBuf::from(name),
             shown: name.to_string(),
             stdin: Some(bytes.to_vec()),
+            delimiter: None,
         }
     }
 
     /// The column names of the header line.
     pub fn header(&self) -> Result<Vec<String>> {
         match &self.stdin {
-            Some(b) => causeway::plan::read_header(&b[..], &self.shown),
+            Some(b) => Dataset::read_header(&b[..], &self.shown, self.delimiter),
             None => {
                 let f = std::fs::File::open(&self.path).map_err(|e| Error::io(&self.path, e))?;
-                causeway::plan::read_header(f, &self.shown)
+                Dataset::read_header(f, &self.shown, self.delimiter)
             }
         }
     }
 
     /// Reads the columns in `keep`.
     pub fn load(&self, keep: Vec<String>) -> Result<Dataset> {
-        let opts = ReadOptions { keep: Some(keep) };
+        let opts = ReadOptions {
+            keep: Some(keep),
+            delimiter: self.delimiter,
+        };
         match &self.stdin {
             Some(b) => Dataset::read(&b[..], &self.shown, &opts),
             None => Dataset::open(&self.path, &opts),

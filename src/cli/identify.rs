@@ -1,7 +1,8 @@
 //! `causeway identify`: which variables to adjust for, the optimal set,
 //! front-door sets, open backdoor paths and a verdict.
 
-use super::common::{header_of, load_graph, print_stdout, to_json};
+use super::common::{DelimiterArg, load_graph, print_stdout, to_json};
+use super::flags::DataSource;
 use causeway::Result;
 use causeway::identify::{Strategy, identify};
 use causeway::plan::{Roles, split_list};
@@ -16,9 +17,11 @@ use std::path::PathBuf;
 /// not columns of --data are unobserved. Exit code 3 when neither the
 /// backdoor nor the front-door criterion identifies the effect.
 ///
-/// Example:
-///   causeway identify --graph study.graph --exposure enrolled --outcome pain_days \
-///       --data study.csv --adjust age,role
+/// Examples (run from the repository root):
+///   causeway identify --graph demo-data/main.graph --data demo-data/study.csv \
+///       --exposure enrolled --outcome pain_days
+///   causeway identify --graph demo-data/main.graph --data demo-data/study.csv \
+///       --exposure enrolled --outcome pain_days --adjust age,role --format json
 #[derive(clap::Args)]
 #[command(verbatim_doc_comment)]
 pub struct Args {
@@ -31,10 +34,15 @@ pub struct Args {
     /// The outcome variable.
     #[arg(long, value_name = "NAME")]
     outcome: String,
-    /// CSV data; only its header line is read. Graph nodes that are not
-    /// columns are unobserved. `-` reads standard input.
-    #[arg(long, value_name = "CSV")]
+    /// The data (delimited text: comma, tab or semicolon); only its header
+    /// line is read. Graph nodes that are not columns are unobserved. `-`
+    /// reads standard input.
+    #[arg(long, value_name = "FILE")]
     data: Option<PathBuf>,
+    /// Field separator of the data: comma, tab or semicolon (default: tab
+    /// for a .tsv file, else detected from the header line).
+    #[arg(long, value_enum, value_name = "SEP")]
+    delimiter: Option<DelimiterArg>,
     /// Nodes to treat as unobserved, comma-separated.
     #[arg(long, value_name = "A,B")]
     latent: Option<String>,
@@ -52,11 +60,13 @@ pub struct Args {
 /// Runs the command.
 pub fn run(a: Args) -> Result<i32> {
     let g = load_graph(&a.graph, a.quiet)?;
-    let columns = match &a.data {
-        Some(d) => Some(header_of(d)?),
-        None => None,
-    };
-    let shown = a.data.as_ref().map(|d| d.display().to_string());
+    let data = a
+        .data
+        .as_deref()
+        .map(|d| DataSource::open(d, a.delimiter))
+        .transpose()?;
+    let columns = data.as_ref().map(DataSource::header).transpose()?;
+    let shown = data.as_ref().map(|d| d.shown.clone());
     let latent = a.latent.as_deref().map(split_list).unwrap_or_default();
     let roles = Roles::resolve(
         g,

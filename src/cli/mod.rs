@@ -25,8 +25,14 @@ mod simulate;
 /// consistency, correctly specified models). It does not replace study design
 /// review, subject-matter and clinical judgement, or the ethics and reporting
 /// rules that apply to your work.
+///
+/// Examples (run from the repository root):
+///   causeway demo
+///   causeway estimate --graph demo-data/main.graph --data demo-data/study.csv \
+///       --exposure enrolled --outcome pain_days --categorical role
 #[derive(Parser)]
 #[command(name = "causeway", version, propagate_version = true, max_term_width = 100)]
+#[command(verbatim_doc_comment)]
 struct Cli {
     #[command(subcommand)]
     command: Command,

@@ -1,7 +1,7 @@
 //! `causeway sensitivity`: sensitivity to unmeasured confounding from
 //! summary numbers alone (an estimate reported elsewhere).
 
-use super::common::{split_list, write_atomic};
+use super::common::{print_stdout, split_list, write_atomic};
 use causeway::report::doc::CAUTION;
 use causeway::report::sensitivity_figure::{self, hypothesised_yardsticks};
 use causeway::report::sensitivity_text::{
@@ -272,9 +272,9 @@ pub fn run(a: Args) -> Result<i32> {
             };
             let text = serde_json::to_string_pretty(&out)
                 .map_err(|e| Error::Numerical(format!("could not write JSON: {e}")))?;
-            println!("{text}");
+            print_stdout(&format!("{text}\n"))?;
         }
-        _ => print!("{}", text(ev.as_ref(), reg.as_ref())),
+        _ => print_stdout(&text(ev.as_ref(), reg.as_ref()))?,
     }
     Ok(0)
 }

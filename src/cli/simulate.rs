@@ -1,10 +1,9 @@
 //! `causeway simulate`: data drawn from the structural model written in a
 //! graph file, and the true effect of an exposure on an outcome.
 
-use super::common::{load_graph, refuse_inputs, resolve, split_list, write_atomic};
+use super::common::{load_graph, print_bytes, refuse_inputs, resolve, split_list, write_atomic};
 use causeway::simulate::{self, Contrast, Method, Model, Options, Truth, TruthOptions};
 use causeway::{Error, Result};
-use std::io::Write;
 use std::path::PathBuf;
 
 /// Draw data from the structural model that the graph file writes down, and
@@ -30,7 +29,7 @@ use std::path::PathBuf;
 ///
 /// The same seed gives the same bytes on every platform.
 ///
-/// Example:
+/// Example (run from the repository root):
 ///   causeway simulate --graph demo-data/study.graph --rows 3000 --seed 20240611 \
 ///       --exposure enrolled --outcome pain_days --truth truth.json --output study.csv
 #[derive(clap::Args)]
@@ -152,12 +151,7 @@ pub fn run(a: Args) -> Result<i32> {
             }
             write_atomic(path, &csv, &inputs)?
         }
-        None => {
-            let mut out = std::io::stdout().lock();
-            out.write_all(&csv)
-                .and_then(|_| out.flush())
-                .map_err(|e| Error::io("standard output", e))?;
-        }
+        None => print_bytes(&csv)?,
     }
     if let (Some(t), false) = (&truth, a.quiet) {
         eprint!("{}", describe(t));

@@ -109,7 +109,7 @@ pub fn covariate_terms(frame: &Frame, col: usize, shape: Shape) -> Vec<Term> {
     };
     match frame.kind(col) {
         Kind::Binary { low, high } => {
-            let label = if *low == 0.0 && *high == 1.0 {
+            let label = if low == "0" && high == "1" {
                 name.to_string()
             } else {
                 format!("{name}={high}")

@@ -2,10 +2,17 @@
 //! complete-case rows and coded by kind.
 //!
 //! Kinds (common practice, no source): a column with exactly two distinct
-//! values is binary and coded 0/1, the larger value as 1 (for the exposure:
-//! "exposed"); a column holding text, or named categorical, is categorical
-//! with one code per level and the lowest level as reference (numeric order
-//! when every level is a number, else lexical); anything else is numeric.
+//! values is binary and coded 0/1, the larger value as 1; a column holding
+//! text, or named categorical, is categorical with one code per level and
+//! the lowest level as reference (numeric order when every level is a
+//! number, else by character codes); anything else is numeric.
+//!
+//! The exposure ([`Frame::push_exposure`]) may also be text with two
+//! levels. Its exposed level (coded 1) is the one the analyst names, else
+//! the larger of two numbers, else the level that sorts last (the same
+//! order as categorical levels: `quit` before `continued`? no: `continued`
+//! sorts first, so `quit` is exposed). The [`ExposureCoding`] says which
+//! level was taken and why, for every report to repeat.
 
 use super::{Dataset, Sample};
 use crate::{Error, Result};
@@ -13,12 +20,13 @@ use crate::{Error, Result};
 /// What a column is, over the analysis sample.
 #[derive(Debug, Clone, PartialEq)]
 pub enum Kind {
-    /// Exactly two values, stored as 0 (`low`) and 1 (`high`).
+    /// Exactly two values, stored as 0 (`low`) and 1 (`high`); the labels
+    /// are the values as written (a number in its shortest form).
     Binary {
         /// The value coded 0.
-        low: f64,
+        low: String,
         /// The value coded 1 ("exposed" for an exposure).
-        high: f64,
+        high: String,
     },
     /// A number used as is.
     Numeric,
@@ -27,6 +35,36 @@ pub enum Kind {
         /// Level names in code order.
         levels: Vec<String>,
     },
+}
+
+/// How a two-valued exposure was coded: which value is "exposed" (1).
+#[derive(Debug, Clone, PartialEq, Eq, serde::Serialize)]
+pub struct ExposureCoding {
+    /// The value coded 1.
+    pub exposed: String,
+    /// The value coded 0.
+    pub unexposed: String,
+    /// Why that value: `given` (named by the analyst), `larger value`, or
+    /// `sorts last` (of two text levels).
+    pub rule: &'static str,
+}
+
+impl ExposureCoding {
+    /// The coding in one sentence, for reports.
+    pub fn sentence(&self, exposure: &str) -> String {
+        let why = match self.rule {
+            "given" => "as the analyst named it".to_string(),
+            "larger value" => {
+                "by default the larger of its two values; the exposed value can be named instead".to_string()
+            }
+            _ => "by default, of its two levels, the one that sorts last; the exposed level can be named instead"
+                .to_string(),
+        };
+        format!(
+            "exposure coding: {exposure} = {} is taken as exposed and {exposure} = {} as unexposed ({why})",
+            self.exposed, self.unexposed
+        )
+    }
 }
 
 /// How a column is to be read.
@@ -103,6 +141,93 @@ impl Frame {
         Ok(self.push(name, Kind::Categorical { levels }, values))
     }
 
+    /// Adds the exposure column `name` of `data` over `sample`'s rows. Two
+    /// values, numbers or text, are coded 0/1, `exposed` (when given) as 1,
+    /// else the larger number or the text level that sorts last; more than
+    /// two numbers stay numeric (a continuous exposure). Text with more
+    /// than two levels is refused, as is an `exposed` value that is not one
+    /// of two values.
+    pub fn push_exposure(
+        &mut self,
+        data: &Dataset,
+        sample: &Sample,
+        name: &str,
+        exposed: Option<&str>,
+    ) -> Result<(usize, Option<ExposureCoding>)> {
+        let col = data.require(name)?;
+        let src = data.source();
+        // The distinct values present in the sample, in sorted order, and
+        // each row's index into them.
+        let (codes, levels): (Vec<f64>, Vec<String>) = if col.is_text() {
+            col.check_finite(src, name)?;
+            let (codes, levels) = col.codes().expect("a text column has codes");
+            code_levels(sample.keep.iter().map(|&i| codes[i]), levels)
+        } else {
+            let v = col.numeric(src, name, "the exposure")?;
+            let values: Vec<f64> = sample.keep.iter().map(|&i| v[i]).collect();
+            let (values, kind) = code_numeric(values);
+            match kind {
+                Kind::Binary { low, high } => (values, vec![low, high]),
+                kind => {
+                    if let Some(e) = exposed {
+                        return Err(Error::input(format!(
+                            "--exposed '{e}': the exposure '{name}' takes {} in the complete rows, not two; \
+                             --exposed applies to a two-valued exposure",
+                            count_values(&values)
+                        )));
+                    }
+                    return Ok((self.push(name, kind, values), None));
+                }
+            }
+        };
+        match levels.len() {
+            2 => {}
+            1 => return Ok((self.push(name, Kind::Numeric, codes), None)),
+            k => {
+                let shown: Vec<String> = levels.iter().take(6).map(|l| format!("'{l}'")).collect();
+                let more = if k > 6 { ", ..." } else { "" };
+                return Err(Error::input(format!(
+                    "{src}: the exposure '{name}' holds text with {k} levels ({}{more}); an exposure must be \
+                     a number or take two values: recode it to two levels (exposed and unexposed); exposures \
+                     of more than two levels are not supported yet",
+                    shown.join(", ")
+                )));
+            }
+        }
+        let (exposed_at, rule) = match exposed {
+            None if col.is_text() => (1, "sorts last"),
+            None => (1, "larger value"),
+            Some(e) => {
+                let e = e.trim();
+                let same = |l: &String| {
+                    l == e || matches!((l.parse::<f64>(), e.parse::<f64>()), (Ok(a), Ok(b)) if a == b)
+                };
+                match levels.iter().position(same) {
+                    Some(k) => (k, "given"),
+                    None => {
+                        return Err(Error::input(format!(
+                            "--exposed '{e}' is not a value of the exposure '{name}' in the complete rows; \
+                             its values are '{}' and '{}'",
+                            levels[0], levels[1]
+                        )));
+                    }
+                }
+            }
+        };
+        let hit = exposed_at as f64;
+        let values = codes.iter().map(|&c| f64::from(u8::from(c == hit))).collect();
+        let coding = ExposureCoding {
+            exposed: levels[exposed_at].clone(),
+            unexposed: levels[1 - exposed_at].clone(),
+            rule,
+        };
+        let kind = Kind::Binary {
+            low: coding.unexposed.clone(),
+            high: coding.exposed.clone(),
+        };
+        Ok((self.push(name, kind, values), Some(coding)))
+    }
+
     /// Index of column `name`.
     pub fn index(&self, name: &str) -> Option<usize> {
         self.names.iter().position(|n| n == name)
@@ -147,7 +272,26 @@ fn code_numeric(mut v: Vec<f64>) -> (Vec<f64>, Kind) {
     for x in v.iter_mut() {
         *x = if *x == high { 1.0 } else { 0.0 };
     }
-    (v, Kind::Binary { low, high })
+    (
+        v,
+        Kind::Binary {
+            low: format!("{}", low + 0.0),
+            high: format!("{}", high + 0.0),
+        },
+    )
+}
+
+/// "3 values (1, 2, 5)" or "12 values": the distinct values of a column.
+fn count_values(v: &[f64]) -> String {
+    let mut d: Vec<f64> = v.to_vec();
+    d.sort_by(f64::total_cmp);
+    d.dedup();
+    if d.len() <= 5 {
+        let shown: Vec<String> = d.iter().map(|x| format!("{x}")).collect();
+        format!("{} values ({})", d.len(), shown.join(", "))
+    } else {
+        format!("{} values", d.len())
+    }
 }
 
 /// Levels of a numeric column named categorical, in numeric order.
@@ -206,7 +350,13 @@ mod tests {
     fn binary_codes_the_larger_value_as_one() {
         let (v, k) = code_numeric(vec![2.0, 5.0, 5.0, 2.0]);
         assert_eq!(v, vec![0.0, 1.0, 1.0, 0.0]);
-        assert_eq!(k, Kind::Binary { low: 2.0, high: 5.0 });
+        assert_eq!(
+            k,
+            Kind::Binary {
+                low: "2".into(),
+                high: "5".into()
+            }
+        );
         let (_, k) = code_numeric(vec![1.0, 2.0, 3.0]);
         assert_eq!(k, Kind::Numeric);
     }

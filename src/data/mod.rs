@@ -30,10 +30,10 @@ mod store;
 
 pub use column::{Cell, Column};
 pub use design::{Design, DesignRows, Factor, Setting, Shape, Term, Transform, covariate_terms};
-pub use frame::{Frame, Kind, Role};
+pub use frame::{ExposureCoding, Frame, Kind, Role};
 pub(crate) use kernel::{expit_into, gram_lower_add};
 pub use pass::{BLOCK, Block, DenseRows, Rows, map_rows, reduce, reduce_into, with_buffer};
-pub use read::ReadOptions;
+pub use read::{Delimiter, ReadOptions};
 pub use sample::Sample;
 pub use spline::{rcs_basis, rcs_knots};
 pub use store::Store;
@@ -122,8 +122,9 @@ impl Dataset {
     pub fn require(&self, name: &str) -> crate::Result<&Column> {
         self.column(name).ok_or_else(|| {
             crate::Error::input(format!(
-                "{}: no column '{name}' (columns are matched to names exactly, case-sensitive)",
-                self.source
+                "{}: no column '{name}' (columns are matched to names exactly, case-sensitive){}",
+                self.source,
+                crate::error::nearest_names(name, self.names.iter().map(String::as_str))
             ))
         })
     }

@@ -1,6 +1,9 @@
-//! Reading a CSV file with a header row into columns (csv crate, byte
-//! records, no text allocated per cell). A UTF-8 byte-order mark and CRLF
-//! line ends are accepted; blank lines are skipped.
+//! Reading a delimited text file with a header row into columns (csv
+//! crate, byte records, no text allocated per cell). The separator is a
+//! comma, a tab or a semicolon: given, implied by a `.tsv` name, or detected
+//! from the header line ([`Delimiter::sniff`]); fields in double quotes may
+//! hold it. A UTF-8 byte-order mark and CRLF line ends are accepted; blank
+//! lines are skipped.
 //!
 //! Line numbers in messages come from [`LineCounter`], which watches the
 //! bytes as the CSV reader takes them: the reader's own record positions
@@ -91,6 +94,136 @@ pub struct ReadOptions {
     /// Store only these columns (others are checked for shape but not kept).
     /// `None` keeps every column.
     pub keep: Option<Vec<String>>,
+    /// The field separator; `None` detects it from the header line (see
+    /// [`Delimiter::sniff`]).
+    pub delimiter: Option<Delimiter>,
+}
+
+/// The field separator of a delimited text file.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum Delimiter {
+    /// `,`
+    Comma,
+    /// A tab.
+    Tab,
+    /// `;`
+    Semicolon,
+}
+
+impl Delimiter {
+    /// Every separator, in the order that breaks ties when detecting.
+    pub const ALL: [Delimiter; 3] = [Delimiter::Comma, Delimiter::Tab, Delimiter::Semicolon];
+
+    /// The byte that separates fields.
+    pub fn byte(self) -> u8 {
+        match self {
+            Delimiter::Comma => b',',
+            Delimiter::Tab => b'\t',
+            Delimiter::Semicolon => b';',
+        }
+    }
+
+    /// The separator's name: comma, tab or semicolon.
+    pub fn name(self) -> &'static str {
+        match self {
+            Delimiter::Comma => "comma",
+            Delimiter::Tab => "tab",
+            Delimiter::Semicolon => "semicolon",
+        }
+    }
+
+    /// The separator called `name` (comma, tab or semicolon).
+    pub fn parse(name: &str) -> Option<Delimiter> {
+        Delimiter::ALL.into_iter().find(|d| d.name() == name.trim())
+    }
+
+    /// The separator a file name implies: tab for `.tsv`, else none.
+    pub fn from_path(path: &Path) -> Option<Delimiter> {
+        let ext = path.extension()?.to_str()?.to_ascii_lowercase();
+        (ext == "tsv").then_some(Delimiter::Tab)
+    }
+
+    /// The separator of the text that starts with `prefix`: the one of
+    /// comma, tab and semicolon found most often, outside double quotes, on
+    /// the first line that is not blank (the header); ties go to the
+    /// earlier in [`Delimiter::ALL`]; comma when none is there (one column).
+    pub fn sniff(prefix: &[u8]) -> Delimiter {
+        let counts = first_line_counts(prefix);
+        let mut best = Delimiter::Comma;
+        for d in Delimiter::ALL {
+            if counts[d as usize] > counts[best as usize] {
+                best = d;
+            }
+        }
+        best
+    }
+}
+
+/// How often each separator of [`Delimiter::ALL`] appears outside double
+/// quotes on the first line of `prefix` that is not blank.
+fn first_line_counts(prefix: &[u8]) -> [usize; 3] {
+    let prefix = prefix.strip_prefix(b"\xEF\xBB\xBF").unwrap_or(prefix);
+    let start = prefix
+        .iter()
+        .position(|&b| b != b'\n' && b != b'\r')
+        .unwrap_or(prefix.len());
+    let mut counts = [0usize; 3];
+    let mut quoted = false;
+    for &b in &prefix[start..] {
+        match b {
+            b'"' => quoted = !quoted,
+            b'\n' | b'\r' if !quoted => break,
+            _ if quoted => {}
+            _ => {
+                if let Some(d) = Delimiter::ALL.into_iter().find(|d| d.byte() == b) {
+                    counts[d as usize] += 1;
+                }
+            }
+        }
+    }
+    counts
+}
+
+/// Bytes read ahead to detect the separator: up to the end of the header
+/// line, and at most this many.
+const SNIFF_LIMIT: usize = 1 << 20;
+
+/// A reader whose first bytes, read ahead, are given back first.
+type Replayed<R> = std::io::Chain<std::io::Cursor<Vec<u8>>, R>;
+
+/// `reader` with its separator: `given`, or detected from the bytes
+/// before the header line's end (which are then read again).
+fn with_delimiter<R: Read>(
+    mut reader: R,
+    given: Option<Delimiter>,
+    source: &str,
+) -> Result<(Delimiter, Replayed<R>)> {
+    let mut prefix = Vec::new();
+    if given.is_none() {
+        let mut buf = [0u8; 8192];
+        loop {
+            let n = reader.read(&mut buf).map_err(|e| Error::io(source, e))?;
+            prefix.extend_from_slice(&buf[..n]);
+            let has_line = prefix
+                .iter()
+                .skip_while(|&&b| b == b'\n' || b == b'\r')
+                .any(|&b| b == b'\n' || b == b'\r');
+            if n == 0 || has_line || prefix.len() >= SNIFF_LIMIT {
+                break;
+            }
+        }
+    }
+    let d = given.unwrap_or_else(|| Delimiter::sniff(&prefix));
+    Ok((d, std::io::Cursor::new(prefix).chain(reader)))
+}
+
+/// The CSV reader over `reader` with separator `d`.
+fn csv_reader<R: Read>(reader: R, d: Delimiter) -> csv::Reader<R> {
+    csv::ReaderBuilder::new()
+        .has_headers(false)
+        .flexible(true)
+        .delimiter(d.byte())
+        .from_reader(reader)
 }
 
 /// Is this cell a missing-value token (empty, NA, NaN, `.`)?
@@ -106,14 +239,12 @@ impl Dataset {
     /// Reads CSV from `reader`; `source` names it in messages (a path, or
     /// `<stdin>`). Errors name the line and, where there is one, the column.
     pub fn read<R: Read>(reader: R, source: &str, opts: &ReadOptions) -> Result<Dataset> {
-        let mut rdr = csv::ReaderBuilder::new()
-            .has_headers(false)
-            .flexible(true)
-            .from_reader(LineCounter::new(reader));
+        let (delimiter, reader) = with_delimiter(reader, opts.delimiter, source)?;
+        let mut rdr = csv_reader(LineCounter::new(reader), delimiter);
         let mut rec = csv::ByteRecord::new();
         let fail = |e: csv::Error| csv_error(source, e);
         // The line on which the record just read begins.
-        let line_of = |rdr: &mut csv::Reader<LineCounter<R>>, rec: &csv::ByteRecord| {
+        let line_of = |rdr: &mut csv::Reader<LineCounter<_>>, rec: &csv::ByteRecord| {
             let start = rec.position().map_or(0, |p| p.byte());
             rdr.get_mut().line_of_record(start)
         };
@@ -123,7 +254,7 @@ impl Dataset {
             )));
         }
         let header_line = line_of(&mut rdr, &rec);
-        let names = header(&rec, source, header_line)?;
+        let names = header(&rec, source, header_line, delimiter, opts.delimiter.is_some())?;
         let keep: Vec<bool> = match &opts.keep {
             Some(k) => names.iter().map(|n| k.contains(n)).collect(),
             None => vec![true; names.len()],
@@ -173,19 +304,81 @@ impl Dataset {
         })
     }
 
-    /// Reads the CSV file at `path` (the command line maps `-` to stdin
-    /// and calls [`Dataset::read`] itself).
+    /// Reads the delimited text file at `path`; without a separator in
+    /// `opts`, a `.tsv` file is read as tab-separated and any other is
+    /// detected (the command line maps `-` to stdin and calls
+    /// [`Dataset::read`] itself).
     pub fn open(path: &Path, opts: &ReadOptions) -> Result<Dataset> {
         let f = std::fs::File::open(path).map_err(|e| Error::io(path, e))?;
+        let opts = ReadOptions {
+            delimiter: opts.delimiter.or_else(|| Delimiter::from_path(path)),
+            ..opts.clone()
+        };
         Dataset::read(
             std::io::BufReader::with_capacity(1 << 16, f),
             &path.display().to_string(),
-            opts,
+            &opts,
         )
+    }
+
+    /// The column names of the header line alone, checked as
+    /// [`Dataset::read`] checks them; `delimiter` as in [`ReadOptions`].
+    pub fn read_header<R: Read>(reader: R, source: &str, given: Option<Delimiter>) -> Result<Vec<String>> {
+        let (delimiter, reader) = with_delimiter(reader, given, source)?;
+        let mut rdr = csv_reader(LineCounter::new(reader), delimiter);
+        let mut rec = csv::ByteRecord::new();
+        if !rdr.read_byte_record(&mut rec).map_err(|e| csv_error(source, e))? {
+            return Err(Error::input(format!(
+                "{source}:1: the file is empty; a header row naming the columns is needed"
+            )));
+        }
+        let start = rec.position().map_or(0, |p| p.byte());
+        let line = rdr.get_mut().line_of_record(start);
+        header(&rec, source, line, delimiter, given.is_some())
     }
 }
 
-fn header(rec: &csv::ByteRecord, source: &str, line: u64) -> Result<Vec<String>> {
+/// The refusal of a header that is one field holding another separator:
+/// the file was read with the wrong one.
+fn one_field_header(name: &str, source: &str, line: u64, used: Delimiter) -> Result<()> {
+    let counts = first_line_counts(name.as_bytes());
+    let Some(likely) = Delimiter::ALL
+        .into_iter()
+        .filter(|&d| d != used && counts[d as usize] > 0)
+        .max_by_key(|&d| counts[d as usize])
+    else {
+        return Ok(());
+    };
+    let plural = match likely {
+        Delimiter::Comma => "commas",
+        Delimiter::Tab => "tabs",
+        Delimiter::Semicolon => "semicolons",
+    };
+    Err(Error::input(format!(
+        "{source}:{line}: read as {}-separated, the header is one field of {} characters containing {plural}; \
+         the file looks {}-separated: use --delimiter {}",
+        used.name(),
+        name.chars().count(),
+        likely.name(),
+        likely.name()
+    )))
+}
+
+/// The column names of the header record; `given` when the separator was
+/// not detected (detection never leaves another separator outside quotes).
+fn header(
+    rec: &csv::ByteRecord,
+    source: &str,
+    line: u64,
+    delimiter: Delimiter,
+    given: bool,
+) -> Result<Vec<String>> {
+    if given
+        && rec.len() == 1
+        && let Ok(name) = std::str::from_utf8(&rec[0])
+    {
+        one_field_header(name, source, line, delimiter)?;
+    }
     let mut names = Vec::with_capacity(rec.len());
     let mut seen: HashMap<String, usize> = HashMap::new();
     for (j, raw) in rec.iter().enumerate() {

@@ -5,7 +5,9 @@
 //! with a warning naming them.
 
 use super::{Estimand, Scale};
-use crate::data::{Dataset, Design, DesignRows, Frame, Kind, Role, Sample, Setting, Shape, Store};
+use crate::data::{
+    Dataset, Design, DesignRows, ExposureCoding, Frame, Kind, Role, Sample, Setting, Shape, Store,
+};
 use crate::model::{ALIAS_TOL, Chol, accumulate};
 use crate::{Error, Result};
 use nalgebra::DMatrix;
@@ -42,6 +44,9 @@ pub struct Spec {
     /// For a continuous exposure: compare setting it to `.1` with `.0`.
     /// `None`: the effect of a one-unit increase from the observed values.
     pub contrast: Option<(f64, f64)>,
+    /// The value of a two-valued exposure that counts as exposed (see
+    /// [`Frame::push_exposure`]); `None`: the default rule.
+    pub exposed: Option<String>,
 }
 
 impl Default for Spec {
@@ -59,6 +64,7 @@ impl Default for Spec {
             trim: None,
             level: 0.95,
             contrast: None,
+            exposed: None,
         }
     }
 }
@@ -76,6 +82,8 @@ pub struct Problem {
     pub outcome: usize,
     /// Frame column of the exposure (0/1 when binary).
     pub exposure: usize,
+    /// Which value of a two-valued exposure is coded 1, and why.
+    pub exposure_coding: Option<ExposureCoding>,
     /// Frame columns of the adjustment set.
     pub covariates: Vec<usize>,
     /// Frame columns of the front-door mediators.
@@ -177,7 +185,8 @@ impl Problem {
         }
         let mut frame = Frame::new(sample.used);
         let outcome = frame.push_from(data, &sample, &spec.outcome, Role::Number)?;
-        let exposure = frame.push_from(data, &sample, &spec.exposure, Role::Number)?;
+        let (exposure, exposure_coding) =
+            frame.push_exposure(data, &sample, &spec.exposure, spec.exposed.as_deref())?;
         let role = |n: &String| Role::Covariate {
             categorical: spec.categorical.contains(n),
         };
@@ -263,6 +272,7 @@ impl Problem {
             frame,
             outcome,
             exposure,
+            exposure_coding,
             covariates,
             mediators,
             propensity,
@@ -307,31 +317,14 @@ impl Problem {
         self.frame.nrows()
     }
 
-    /// The coding of a binary exposure: (value coded 0, value coded 1 =
-    /// exposed); `None` for a continuous exposure.
-    pub fn exposure_levels(&self) -> Option<(f64, f64)> {
-        match self.frame.kind(self.exposure) {
-            Kind::Binary { low, high } => Some((*low, *high)),
-            _ => None,
-        }
-    }
-
-    /// The coding of a binary outcome: (value coded 0, value coded 1).
-    pub fn outcome_levels(&self) -> Option<(f64, f64)> {
-        match self.frame.kind(self.outcome) {
-            Kind::Binary { low, high } => Some((*low, *high)),
-            _ => None,
-        }
-    }
-
     /// Is the exposure binary?
     pub fn binary_exposure(&self) -> bool {
-        self.exposure_levels().is_some()
+        matches!(self.frame.kind(self.exposure), Kind::Binary { .. })
     }
 
     /// Is the outcome binary (fitted by logistic regression)?
     pub fn binary_outcome(&self) -> bool {
-        self.outcome_levels().is_some()
+        matches!(self.frame.kind(self.outcome), Kind::Binary { .. })
     }
 
     /// The two exposure settings compared, (exposed, unexposed): 1 vs 0 for

@@ -6,6 +6,7 @@
 //! If*, 2020, ch. 12; the ATT and ATC forms are common practice, no source.
 
 use super::{Estimand, Problem, Warm};
+use crate::data::Kind;
 use crate::model::{Logit, LogitOptions, expit, linear_predictor};
 use crate::{Error, Result};
 use nalgebra::DVector;
@@ -73,13 +74,23 @@ impl Propensity {
             }
         };
         if let Some(s) = &separation {
-            return Err(Error::Numerical(format!(
-                "propensity model for '{}': {s}; some units have no chance of the other exposure \
-                 (a positivity violation), so weighting cannot be used (clipping the scores with \
-                 --trim would only hide it); consider fewer or coarser adjustment terms, or a \
-                 population with overlap",
-                p.spec.exposure
-            )));
+            let x = &p.spec.exposure;
+            // On the full sample this is a property of the data (bad input,
+            // explained by the covariates behind it); in a resample it is a
+            // failed replicate.
+            return Err(match w {
+                None => Error::Separation(format!(
+                    "the exposure '{x}' is predicted perfectly by {} ({s} in its propensity model): those \
+                     units had no chance of the other exposure level (a positivity violation), so weighting \
+                     (ipw, aipw) cannot be used, and clipping the scores with --trim would only hide it; \
+                     coarsen or leave out the covariates named, or restrict the data to units that could \
+                     have been either exposed or unexposed",
+                    separating_terms(p, &coef)
+                )),
+                Some(_) => Error::Numerical(format!(
+                    "propensity model for '{x}': {s}; weighting cannot be used on this resample"
+                )),
+            });
         }
         let mut e = eta.unwrap_or_else(|| linear_predictor(&rows, &coef));
         e.iter_mut().for_each(|x| *x = expit(*x));
@@ -114,6 +125,94 @@ impl Propensity {
         }
         d
     }
+}
+
+/// Which adjustment covariates separate the exposure, in words: each one
+/// that alone predicts it perfectly (a level or value whose rows are all
+/// exposed or all unexposed, or a number whose exposed and unexposed ranges
+/// do not overlap); when none does alone, the model terms whose
+/// coefficients (times the term's standard deviation) grew largest as the
+/// fit diverged.
+pub(crate) fn separating_terms(p: &Problem, coef: &DVector<f64>) -> String {
+    let a = p.a();
+    let mut alone = Vec::new();
+    for &c in &p.covariates {
+        let (name, col) = (p.frame.name(c), p.frame.col(c));
+        let labels: Vec<String> = match p.frame.kind(c) {
+            Kind::Categorical { levels } => levels.clone(),
+            Kind::Binary { low, high } => vec![low.clone(), high.clone()],
+            Kind::Numeric => {
+                let range = |arm: f64| {
+                    col.iter()
+                        .zip(a)
+                        .filter(|(_, g)| **g == arm)
+                        .fold((f64::INFINITY, f64::NEG_INFINITY), |(lo, hi), (&v, _)| {
+                            (lo.min(v), hi.max(v))
+                        })
+                };
+                // (+ 0.0 shows a negative zero as 0.)
+                // (+ 0.0 shows a negative zero as 0.)
+                let (e, u) = (range(1.0), range(0.0));
+                if e.0 >= u.1 {
+                    alone.push(format!(
+                        "'{name}' is at least {} in every exposed row and at most {} in every unexposed row",
+                        e.0 + 0.0,
+                        u.1 + 0.0
+                    ));
+                } else if u.0 >= e.1 {
+                    alone.push(format!(
+                        "'{name}' is at most {} in every exposed row and at least {} in every unexposed row",
+                        e.1 + 0.0,
+                        u.0 + 0.0
+                    ));
+                }
+                continue;
+            }
+        };
+        // Codes 0, 1, ... name the levels; a level seen in one exposure
+        // group only separates.
+        for (k, label) in labels.iter().enumerate() {
+            let (n, exposed) = col
+                .iter()
+                .zip(a)
+                .filter(|(v, _)| **v == k as f64)
+                .fold((0usize, 0usize), |(n, e), (_, &g)| {
+                    (n + 1, e + usize::from(g == 1.0))
+                });
+            let which = match exposed {
+                _ if n == 0 => continue,
+                e if e == n => "exposed",
+                0 => "unexposed",
+                _ => continue,
+            };
+            alone.push(format!("all {n} rows with {name} = {label} are {which}"));
+        }
+    }
+    if !alone.is_empty() {
+        return format!("its adjustment covariates: {}", alone.join("; "));
+    }
+    let rows = p.propensity_rows();
+    let terms = p.propensity.terms();
+    let mut size: Vec<(f64, usize)> = (0..terms.len())
+        .filter(|&j| !terms[j].is_intercept())
+        .map(|j| {
+            let col = rows.column(j);
+            let n = col.len().max(1) as f64;
+            let mean = col.iter().sum::<f64>() / n;
+            let sd = (col.iter().map(|v| (v - mean) * (v - mean)).sum::<f64>() / n).sqrt();
+            ((coef[j] * sd).abs(), j)
+        })
+        .collect();
+    size.sort_by(|a, b| b.0.total_cmp(&a.0));
+    let top: Vec<String> = size
+        .iter()
+        .take(3)
+        .map(|&(_, j)| format!("'{}'", terms[j].name))
+        .collect();
+    format!(
+        "a combination of its adjustment covariates (the terms whose coefficients diverged most: {})",
+        top.join(", ")
+    )
 }
 
 /// The weight of a row in each arm for `estimand`, and its derivative in the

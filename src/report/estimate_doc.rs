@@ -209,13 +209,10 @@ pub fn estimates_table(a: &Analysis) -> Table {
 
 /// The question in one sentence.
 pub fn question(a: &Analysis) -> String {
-    let coding = match a.exposure_coding {
-        Some((lo, hi)) => format!(
+    let coding = match &a.exposure_coding {
+        Some(c) => format!(
             " ({} = {} against {} = {})",
-            a.exposure,
-            value(hi),
-            a.exposure,
-            value(lo)
+            a.exposure, c.exposed, a.exposure, c.unexposed
         ),
         None => " (a continuous exposure)".into(),
     };

@@ -14,8 +14,11 @@ pub struct Latex;
 /// other character that pdfLaTeX cannot typeset becomes `?`.
 pub fn esc(s: &str) -> String {
     let mut out = String::with_capacity(s.len());
+    let mut prev = '\0';
     for c in s.chars() {
         match c {
+            // A hyphen after a hyphen stays a hyphen (`--flag`), not a dash.
+            '-' if prev == '-' => out.push_str("{}-"),
             '\\' => out.push_str("\\textbackslash{}"),
             '&' | '%' | '$' | '#' | '_' | '{' | '}' => {
                 out.push('\\');
@@ -43,6 +46,7 @@ pub fn esc(s: &str) -> String {
             c if c.is_alphabetic() && (c as u32) < 0x250 => out.push(c),
             _ => out.push('?'),
         }
+        prev = c;
     }
     out
 }
@@ -164,6 +168,7 @@ mod tests {
             "a\\textbar{}b \\textless{}c\\textgreater{} R\\textsuperscript{2}"
         );
         assert_eq!(esc("café ≥ 1 → 2"), "café $\\geq$ 1 ? 2");
+        assert_eq!(esc("use --exposed"), "use -{}-exposed");
     }
 
     #[test]
