@@ -413,8 +413,8 @@ fn figure_files_parse_and_are_labelled() {
     let svg = std::fs::read_to_string(d.path().join("r2.svg")).unwrap();
     let t = texts(&svg);
     assert!(t.iter().any(|s| s == "accounts for all of it: 13.9%"), "{t:?}");
-    assert!(t.iter().any(|s| s == "hypothesised: 2.00%, 5.00%"), "{t:?}");
-    assert!(t.iter().any(|s| s == "hypothesised confounder"));
+    assert!(t.iter().any(|s| s == "hypothesized: 2.00%, 5.00%"), "{t:?}");
+    assert!(t.iter().any(|s| s == "hypothesized confounder"));
     assert!(t.iter().any(|s| s.starts_with("Partial R\u{b2} scale")));
 }
 
@@ -577,7 +577,7 @@ fn benchmark_options_are_checked() {
     let cases: &[(&[&str], &[&str])] = &[
         (
             &["--benchmark", "agee"],
-            &["--benchmark", "'agee'", "did you mean age"],
+            &["--benchmark", "'agee'", "did you mean 'age'"],
         ),
         (
             &["--benchmark", "standing_hours"],

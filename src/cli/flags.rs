@@ -112,33 +112,6 @@ pub struct EstimateFlags {
     pub quiet: bool,
 }
 
-/// The names in `known` closest to `name` in edit distance (at most a third
-/// of the name's length, at least 2), closest first.
-fn nearest(name: &str, known: &[String]) -> Vec<String> {
-    fn distance(a: &str, b: &str) -> usize {
-        let b: Vec<char> = b.chars().collect();
-        let mut row: Vec<usize> = (0..=b.len()).collect();
-        for (i, ca) in a.chars().enumerate() {
-            let mut prev = row[0];
-            row[0] = i + 1;
-            for j in 0..b.len() {
-                let cur = row[j + 1];
-                row[j + 1] = (prev + usize::from(ca != b[j])).min(row[j] + 1).min(cur + 1);
-                prev = cur;
-            }
-        }
-        row[b.len()]
-    }
-    let limit = (name.chars().count() / 3).max(2);
-    let mut close: Vec<(usize, &String)> = known
-        .iter()
-        .map(|k| (distance(&name.to_lowercase(), &k.to_lowercase()), k))
-        .filter(|(d, _)| *d <= limit)
-        .collect();
-    close.sort();
-    close.into_iter().take(3).map(|(_, k)| k.clone()).collect()
-}
-
 fn list(s: &Option<String>) -> Vec<String> {
     s.as_deref().map(split_list).unwrap_or_default()
 }
@@ -284,12 +257,12 @@ impl EstimateFlags {
             if known.iter().any(|k| k == &name || k == column) {
                 continue;
             }
-            let hint = match nearest(&name, &known) {
-                n if n.is_empty() && known.is_empty() => {
+            let hint = match causeway::error::nearest_names(&name, known.iter().map(String::as_str)) {
+                n if !n.is_empty() => n,
+                _ if known.is_empty() => {
                     "; the analysis adjusts for nothing, so there is no covariate to compare with".to_string()
                 }
-                n if n.is_empty() => format!("; the adjustment covariates are {}", known.join(", ")),
-                n => format!("; did you mean {}?", n.join(" or ")),
+                _ => format!("; the adjustment covariates are {}", known.join(", ")),
             };
             return Err(Error::input(format!(
                 "--benchmark '{name}': not an adjustment covariate{hint}"

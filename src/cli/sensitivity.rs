@@ -68,11 +68,11 @@ pub struct Args {
     /// Confidence level of the interval for --smd.
     #[arg(long, value_name = "LEVEL", allow_negative_numbers = true)]
     level: Option<f64>,
-    /// Hypothesised partial R2 of a confounder with the exposure (comma-separated
+    /// Hypothesized partial R2 of a confounder with the exposure (comma-separated
     /// list, paired with --r2-outcome).
     #[arg(long, value_name = "R[,R...]", allow_hyphen_values = true)]
     r2_exposure: Option<String>,
-    /// Hypothesised partial R2 of a confounder with the outcome (comma-separated
+    /// Hypothesized partial R2 of a confounder with the outcome (comma-separated
     /// list, paired with --r2-exposure).
     #[arg(long, value_name = "R[,R...]", allow_hyphen_values = true)]
     r2_outcome: Option<String>,

@@ -5,7 +5,7 @@
 //! columns by [`Shape`] (linear; quadratic, x and x^2; or a restricted cubic
 //! spline with 4 knots, see [`super::spline`]); the exposure; and products of
 //! the exposure with the linear term of a column or with each of its dummies.
-//! Term columns are centred at their sample means (a reparametrisation that
+//! Term columns are centred at their sample means (a reparametrization that
 //! keeps every prediction and slope; it only moves the intercept, see
 //! [`Design::uncenter`]) so that cross-products stay well conditioned.
 
@@ -319,7 +319,7 @@ impl Design {
         }
     }
 
-    /// Coefficients and covariance of the uncentred parametrisation (raw
+    /// Coefficients and covariance of the uncentred parametrization (raw
     /// term values) from those of the centred one: only the intercept
     /// changes, b0 = b0c - sum_j c_j b_j.
     pub fn uncenter(&self, beta: &DVector<f64>, cov: &DMatrix<f64>) -> (DVector<f64>, DMatrix<f64>) {

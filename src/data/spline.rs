@@ -1,7 +1,7 @@
 //! Restricted cubic splines (natural splines, linear beyond the outer
 //! knots) in the truncated-power form of Harrell, *Regression Modeling
 //! Strategies*, 2nd ed. (2015), sec. 2.4.5, eq. 2.25, with Harrell's
-//! normalisation by `(t_k - t_1)^2`; 4 knots at the 5th, 35th, 65th and 95th
+//! normalization by `(t_k - t_1)^2`; 4 knots at the 5th, 35th, 65th and 95th
 //! percentiles (Harrell's Table 2.3 for k = 4).
 
 /// Knot positions for 4 knots: the 5th, 35th, 65th and 95th percentiles of

@@ -56,7 +56,7 @@ pub struct PropensityDiagnostics {
     pub clipped: usize,
 }
 
-/// Weight block: the estimand's unnormalised weights.
+/// Weight block: the estimand's unnormalized weights.
 #[derive(Debug, Clone, Serialize)]
 pub struct WeightDiagnostics {
     /// Mean weight over all units.

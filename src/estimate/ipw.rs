@@ -1,4 +1,4 @@
-//! Inverse probability weighting. The normalised (Hajek) form, method
+//! Inverse probability weighting. The normalized (Hajek) form, method
 //! `ipw`, takes each arm's weighted mean outcome; the Horvitz-Thompson form,
 //! `ipw-ht`, divides the weighted sum by the population size instead. The
 //! standard error is the M-estimation sandwich that stacks the propensity
@@ -13,7 +13,7 @@ use crate::{Error, Result};
 
 /// Inverse probability weighting.
 pub struct Ipw {
-    /// Horvitz-Thompson (unnormalised) rather than Hajek (normalised).
+    /// Horvitz-Thompson (unnormalized) rather than Hajek (normalized).
     pub horvitz_thompson: bool,
 }
 

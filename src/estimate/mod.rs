@@ -7,7 +7,7 @@
 //! be counted); [`Method::estimate`] gives the full-sample estimate with an
 //! analytic (sandwich) standard error and interval.
 //!
-//! Methods: [`Regression`] (standardisation, the parametric g-formula),
+//! Methods: [`Regression`] (standardization, the parametric g-formula),
 //! [`Ipw`] (Hajek or Horvitz-Thompson weighting), [`Aipw`] (doubly robust),
 //! [`FrontDoor`] (Pearl's front-door formula). Weighting methods need a
 //! binary exposure; a continuous exposure is estimated by regression only.

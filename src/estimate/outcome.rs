@@ -1,4 +1,4 @@
-//! The outcome model shared by regression (standardisation) and AIPW: least
+//! The outcome model shared by regression (standardization) and AIPW: least
 //! squares for a continuous outcome, logistic regression for a binary one,
 //! with the exposure term and any exposure products; predictions with the
 //! exposure set to a value; and the coefficients' influence on a linear

@@ -1,4 +1,4 @@
-//! Standardisation (the parametric g-formula; Robins 1986, Math Modelling
+//! Standardization (the parametric g-formula; Robins 1986, Math Modelling
 //! 7:1393-1512; Hernán & Robins, *What If*, 2020, ch. 13): fit the outcome
 //! model, predict every row with the exposure set to each value, and average
 //! the predictions over the estimand's population (everyone, the exposed
@@ -13,7 +13,7 @@ use super::{Estimate, Means, Method, Problem, Warm};
 use crate::data::Setting;
 use crate::{Error, Result};
 
-/// Standardisation over the outcome model.
+/// Standardization over the outcome model.
 pub struct Regression;
 
 /// Weighted mean of `m` over `u` (`u` = frequency x group).

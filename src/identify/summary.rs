@@ -1,7 +1,7 @@
 //! [`Identification`]: everything `causeway identify` reports, gathered
 //! from the criteria of this module. It serialises exactly as the `identify`
 //! JSON of the command-line contract; facts only the text report needs are
-//! kept in fields that are not serialised.
+//! kept in fields that are not serialized.
 
 use super::{
     OPEN_PATH_CAP, SET_CAP, check_backdoor, frontdoor_obstacle, minimal_backdoor_sets,

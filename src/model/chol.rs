@@ -1,4 +1,4 @@
-//! Cholesky factorisation of a cross-product that skips aliased columns
+//! Cholesky factorization of a cross-product that skips aliased columns
 //! (a left-looking Cholesky in column order; a column whose pivot is at most
 //! `tol` times its diagonal is linearly dependent on the columns before it,
 //! to that tolerance, and is dropped; common practice, no source).

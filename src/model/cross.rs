@@ -82,7 +82,7 @@ where
             let mut u = vec![0.0; len];
             for (k, e) in eta.iter().enumerate() {
                 let (vi, ui, s0, s1) = f(b.start + k, *e);
-                // NaN stays in, to reach the factorisation.
+                // NaN stays in, to reach the factorization.
                 if vi != 0.0 {
                     keep.push((k, vi.sqrt()));
                 }

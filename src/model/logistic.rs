@@ -130,7 +130,7 @@ fn extreme(w: f64, mu: f64) -> f64 {
 const SEPARATION_CURVATURE: f64 = 1e-8;
 
 /// The smallest ratio `d'Hd / d'Gd` over directions `d` in the span of the
-/// columns `g` does not alias (the smallest generalised eigenvalue of the
+/// columns `g` does not alias (the smallest generalized eigenvalue of the
 /// pair). 0 when `h` is singular there or not finite.
 fn relative_curvature(h: &DMatrix<f64>, g: &DMatrix<f64>) -> f64 {
     let aliased = Chol::new(g, ALIAS_TOL).aliased();

@@ -5,7 +5,7 @@
 //! ([`accumulate`]), so no `n x n` matrix is made, and the `n x p` design
 //! is held in memory only when it fits the budget of
 //! [`Store`](crate::data::Store). Aliased (collinear or constant) columns are found by a Cholesky
-//! factorisation that skips columns whose residual sum of squares, given the
+//! factorization that skips columns whose residual sum of squares, given the
 //! columns before them, is a negligible share of their own ([`Chol`]); their
 //! coefficients are 0.
 //!

@@ -11,7 +11,7 @@
 //!   association as a risk ratio;
 //! - partial-R² strip (robustness value, Cinelli and Hazlett 2020): each
 //!   benchmark covariate, with one marker per multiple, and each
-//!   hypothesised confounder. A confounder with partial R² x with the
+//!   hypothesized confounder. A confounder with partial R² x with the
 //!   exposure and y with the outcome is placed at the equal strength s that
 //!   would bias the estimate as much ([`equal_strength`]), so a marker right
 //!   of the solid line marks a confounder strong enough to account for all
@@ -34,7 +34,7 @@ pub enum Mark {
     /// A hidden confounder this many times as strong as a measured covariate.
     Multiple(f64),
     /// A confounder strength the analyst put forward.
-    Hypothesised,
+    Hypothesized,
     /// The observed association itself.
     Observed,
 }
@@ -74,12 +74,12 @@ pub fn benchmark_yardsticks(t: &BenchmarkTable) -> Vec<Yardstick> {
         .collect()
 }
 
-/// The rows of the partial-R² strip for hypothesised confounders.
+/// The rows of the partial-R² strip for hypothesized confounders.
 pub fn hypothesised_yardsticks(rows: &[Adjusted]) -> Vec<Yardstick> {
     rows.iter()
         .map(|a| Yardstick {
-            label: format!("hypothesised: {}, {}", pct(a.r2_exposure), pct(a.r2_outcome)),
-            points: vec![(Mark::Hypothesised, equal_strength(a.r2_exposure, a.r2_outcome))],
+            label: format!("hypothesized: {}, {}", pct(a.r2_exposure), pct(a.r2_outcome)),
+            points: vec![(Mark::Hypothesized, equal_strength(a.r2_exposure, a.r2_outcome))],
             notes: Vec::new(),
         })
         .collect()
@@ -226,7 +226,7 @@ fn marker(m: Mark, multiples: &[f64]) -> (Shape, String) {
     let hollow = format!(r#"fill="white" stroke="{}" stroke-width="1.8""#, ink::TEXT);
     match m {
         Mark::Observed => (Shape::Square, format!(r#"fill="{}" stroke="white""#, ink::DEEP)),
-        Mark::Hypothesised => (
+        Mark::Hypothesized => (
             Shape::Triangle,
             format!(
                 r#"fill="{}" stroke="{}" stroke-width="1.2""#,
@@ -470,8 +470,8 @@ pub fn svg(strips: &[Strip]) -> Result<String> {
             format!("hidden confounder {} as the covariate", multiple_label(k)),
         ));
     }
-    if has(&|m| *m == Mark::Hypothesised) {
-        legend.push((Some(Mark::Hypothesised), None, "hypothesised confounder".into()));
+    if has(&|m| *m == Mark::Hypothesized) {
+        legend.push((Some(Mark::Hypothesized), None, "hypothesized confounder".into()));
     }
     // Legend in flowing rows: an entry moves to a new row when it would
     // pass the right margin.
@@ -488,7 +488,7 @@ pub fn svg(strips: &[Strip]) -> Result<String> {
     }
     let subtitle = lines(
         "Each row is a yardstick; a marker right of a line is strong enough for what the line says. \
-         Covariates and hypothesised confounders are placed at the equal share that would bias the estimate as much.",
+         Covariates and hypothesized confounders are placed at the equal share that would bias the estimate as much.",
         width - 2.0 * MARGIN,
         SMALL,
     );

@@ -249,11 +249,11 @@ pub fn robustness_section(c: &Coefficient, rv: &RobustnessValue) -> String {
     s
 }
 
-/// A table of bias-adjusted estimates for hypothesised strengths.
+/// A table of bias-adjusted estimates for hypothesized strengths.
 pub fn adjusted_section(rows: &[Adjusted], alpha: f64) -> String {
     let mut s = String::new();
     let level = format!("{:.0}%", 100.0 * (1.0 - alpha));
-    let _ = writeln!(s, "The estimate corrected for a hypothesised hidden confounder");
+    let _ = writeln!(s, "The estimate corrected for a hypothesized hidden confounder");
     let _ = writeln!(
         s,
         "  {:>16}  {:>16}  {:>12}  {level} interval",

@@ -513,7 +513,7 @@ mod tests {
 
     /// When f_q > 1/f* the extreme confounder has R2_yz below R2_dz:
     /// RV_{q,α} = (f_q² - f*²)/(1 + f_q²) is the R2_dz at which the interval
-    /// touches zero with R2_yz = R2_dz/(R2_dz + f*²) (the maximising outcome
+    /// touches zero with R2_yz = R2_dz/(R2_dz + f*²) (the maximizing outcome
     /// strength), and equal strengths at RV_{q,α} leave the interval clear
     /// of zero.
     #[test]
@@ -563,12 +563,12 @@ mod tests {
         assert!(benchmark_bounds(&cov, 25.0, 1.0).is_err());
     }
 
-    /// The R2_yz bound is attained: build residualised vectors with Z ⊥ Xj
+    /// The R2_yz bound is attained: build residualized vectors with Z ⊥ Xj
     /// exactly and the worst-case sign, and compute the partial correlation
     /// of Y and Z given Xj and D numerically.
     #[test]
     fn benchmark_bound_matches_a_constructed_example() {
-        // Correlations among (D, Xj, Z, Y) after residualising on X-j.
+        // Correlations among (D, Xj, Z, Y) after residualizing on X-j.
         let r_dx: f64 = 0.3;
         let kd: f64 = 2.0;
         let r_dz = (kd * r_dx * r_dx).sqrt();
