@@ -65,3 +65,14 @@ pub fn write(dir: &Path, name: &str, text: &str) -> String {
     std::fs::write(&p, text).expect("write test file");
     p.display().to_string()
 }
+
+/// The demo study's question, as flags: exposure, outcome and the
+/// categorical covariate (run from the repository root).
+pub const DEMO_QUESTION: [&str; 6] = [
+    "--exposure",
+    "enrolled",
+    "--outcome",
+    "pain_days",
+    "--categorical",
+    "role",
+];

@@ -2,7 +2,7 @@
 //! and scipy fixtures (tests/scripts/make_sensitivity_fixtures.py, which
 //! records the library versions), and the `causeway sensitivity` command.
 
-use crate::helpers::{fixture, repo, run, run_in};
+use crate::helpers::{DEMO_QUESTION, fixture, repo, run, run_in};
 use causeway::infer::dist::{normal_cdf, normal_quantile, t_quantile};
 use causeway::report::sensitivity_figure::{self, Mark, benchmark_yardsticks};
 use causeway::sensitivity::evalue;
@@ -460,13 +460,8 @@ fn demo_args<'a>(extra: &[&'a str]) -> Vec<&'a str> {
         "demo-data/main.graph",
         "--data",
         "demo-data/study.csv",
-        "--exposure",
-        "enrolled",
-        "--outcome",
-        "pain_days",
-        "--categorical",
-        "role",
     ];
+    a.extend(DEMO_QUESTION);
     a.extend_from_slice(extra);
     a
 }

@@ -561,33 +561,17 @@ fn route(
                 .all(|(i, p)| i == ia || i == ib || !p.contains(x, y, 3.0))
         })
     };
-    let first = if curved { 1 } else { 0 };
-    for k in first..=3 {
-        for sign in [1.0, -1.0] {
-            if k == 0 && sign < 0.0 {
-                continue;
-            }
-            let r = quad_route(a, b, sign * k as f64 * 18.0);
-            if clear(&r) {
-                return r;
-            }
-        }
-    }
-    if let Some(r) = spline_route(a, b, boxes, levels)
-        && clear(&r)
-    {
+    // Bends of k * 18 px either way (straight first when allowed): gentle
+    // ones, then the spline through the rows' gaps, then wider ones.
+    let bent = |ks: std::ops::RangeInclusive<i32>| {
+        ks.flat_map(|k| if k == 0 { vec![0] } else { vec![k, -k] })
+            .filter(|&k| k != 0 || !curved)
+            .map(|k| quad_route(a, b, f64::from(k) * 18.0))
+    };
+    let gentle = bent(0..=3);
+    let spline = spline_route(a, b, boxes, levels);
+    if let Some(r) = gentle.chain(spline).chain(bent(4..=12)).find(|r| clear(r)) {
         return r;
-    }
-    for k in 4..=12 {
-        for sign in [1.0, -1.0] {
-            if k == 0 && sign < 0.0 {
-                continue;
-            }
-            let r = quad_route(a, b, sign * k as f64 * 18.0);
-            if clear(&r) {
-                return r;
-            }
-        }
     }
     lane_route(a, b, boxes, levels, used)
 }
