@@ -21,8 +21,12 @@ use std::path::PathBuf;
 /// the number of tests. Graph nodes that are not columns of --data are
 /// unobserved. The exit code is 0 whatever the verdict.
 ///
-/// Example (run from the repository root):
+/// Examples (run from the repository root):
 ///   causeway check --graph demo-data/main.graph --data demo-data/study.csv --categorical role
+///   causeway check --graph demo-data/main.graph --data demo-data/study.csv --categorical role \
+///       --exposure enrolled --outcome pain_days
+/// The second also says, for each claim, whether it bears on the adjustment
+/// set chosen for the effect of enrolled on pain_days.
 #[derive(clap::Args)]
 #[command(verbatim_doc_comment)]
 pub struct Args {

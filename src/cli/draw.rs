@@ -8,9 +8,15 @@ use std::path::PathBuf;
 /// Draw the graph, with the exposure, outcome, adjustment set and
 /// unobserved nodes marked.
 ///
-/// Example (run from the repository root):
+/// Examples (run from the repository root):
 ///   causeway draw --graph demo-data/main.graph --exposure enrolled --outcome pain_days \
 ///       --adjust age,role --format svg --output graph.svg
+///   causeway draw --graph demo-data/hidden-motivation.graph --data demo-data/study.csv \
+///       --exposure enrolled --outcome pain_days --adjust standing_hours --output frontdoor.svg
+///   causeway draw --graph demo-data/main.graph --format dot --output graph.dot
+/// The second draws motivation as unobserved (not a column of the data) and
+/// standing_hours as a front-door mediator; the third exports the graph in
+/// the DOT language for graph-layout programs.
 #[derive(clap::Args)]
 #[command(verbatim_doc_comment)]
 pub struct Args {
