@@ -23,8 +23,8 @@
 
 use super::sensitivity_text::{multiple_label, pct, wrap};
 use super::svg::{Shape, Svg, ink};
+use super::svg::{axis_ceiling, nice_ceiling};
 use crate::sensitivity::evalue::{EValue, SCALE_RR};
-use crate::sensitivity::frontier::{axis_ceiling, nice_ceiling};
 use crate::sensitivity::robustness::{Adjusted, BenchmarkTable, RobustnessValue, equal_strength};
 use crate::{Error, Result};
 

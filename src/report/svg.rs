@@ -55,6 +55,42 @@ pub enum Shape {
     Diamond,
 }
 
+/// The smallest m · 10^k at or above `v` for m in `mults`, computed so that
+/// decimal values such as 0.3 come out as the nearest double.
+fn round_at_or_above(v: f64, mults: &[f64]) -> f64 {
+    let k = v.log10().floor() as i32;
+    let scale = |m: f64| {
+        if k >= 0 {
+            m * 10f64.powi(k)
+        } else {
+            m / 10f64.powi(-k)
+        }
+    };
+    for &m in mults {
+        if scale(m) >= v * (1.0 - 1e-12) {
+            return scale(m);
+        }
+    }
+    scale(10.0)
+}
+
+/// A round number at or above `v` > 0: 1, 2, 2.5 or 5 times a power of 10.
+pub fn nice_ceiling(v: f64) -> f64 {
+    if !(v > 0.0 && v.is_finite()) {
+        return 1.0;
+    }
+    round_at_or_above(v, &[1.0, 2.0, 2.5, 5.0, 10.0])
+}
+
+/// A round axis limit at or above `v` > 0: 1, 1.2, 1.5, 2, 2.5, 3, 4, 5, 6
+/// or 8 times a power of 10.
+pub fn axis_ceiling(v: f64) -> f64 {
+    if !(v > 0.0 && v.is_finite()) {
+        return 1.0;
+    }
+    round_at_or_above(v, &[1.0, 1.2, 1.5, 2.0, 2.5, 3.0, 4.0, 5.0, 6.0, 8.0, 10.0])
+}
+
 fn point_list(points: &[(f64, f64)]) -> String {
     let mut s = String::with_capacity(points.len() * 12);
     for (i, (x, y)) in points.iter().enumerate() {
@@ -211,5 +247,20 @@ impl Svg {
             t = esc(title),
             b = self.body
         )
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn axis_limits_are_round() {
+        assert_eq!(nice_ceiling(7.26), 10.0);
+        assert_eq!(nice_ceiling(0.278), 0.5);
+        assert_eq!(nice_ceiling(0.2), 0.2);
+        assert_eq!(nice_ceiling(2.1), 2.5);
+        assert_eq!(axis_ceiling(10.9), 12.0);
+        assert_eq!(axis_ceiling(0.3), 0.3);
     }
 }

@@ -6,13 +6,11 @@
 //! - [`robustness`]: robustness values, bias-adjusted estimates and
 //!   benchmark bounds in terms of partial R², after Cinelli and Hazlett
 //!   (2020), for a linear-regression coefficient.
-//! - [`frontier`]: the tipping-point curves of both, sampled for a figure.
 //!
 //! These numbers describe how strong a confounder left out of the graph
 //! would have to be; they do not show that there is none.
 
 pub mod evalue;
-pub mod frontier;
 pub mod robustness;
 
 use serde::Serialize;
