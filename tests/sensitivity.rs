@@ -193,7 +193,7 @@ fn json_for_a_regression_coefficient() {
 
 /// Sentences of an earlier wording that must not come back (they echoed
 /// other programs' output).
-const OLD_WORDING: [&str; 7] = [
+const OLD_WORDING: [&str; 9] = [
     "could explain the estimate away",
     "weaker confounding could not",
     "RV, q = 1",
@@ -201,6 +201,8 @@ const OLD_WORDING: [&str; 7] = [
     "of the residual variance of both exposure and outcome would bring the estimate to zero",
     "Even a confounder explaining all the residual variance of the outcome",
     "k times as strong",
+    "However much of",
+    "RV, q = 1, alpha = 0.05",
 ];
 
 fn flat(s: &str) -> String {
@@ -268,7 +270,10 @@ fn robustness_text_reads_plainly() {
     assert!(out.contains(
         "would have to explain at least 13.9% of the leftover variance of the exposure and of the outcome"
     ));
-    assert!(out.contains("explaining less than 2.18% of the leftover variance of the exposure could not account for all of the estimate"));
+    assert!(out.contains(
+        "a hidden confounder tied to the exposure by less than that share cannot erase the estimate"
+    ));
+    assert!(out.contains("the exposure itself accounts for 2.18% of the leftover variance of the outcome"));
     assert_new_wording_only(&out);
     let (r, _d) = run(&[
         "sensitivity",

@@ -173,15 +173,12 @@ pub fn robustness_reading(rv: &RobustnessValue, n: Names) -> String {
     if whole {
         let _ = write!(
             s,
-            " However much of {} it explained, a confounder explaining less than {} of the leftover variance of {} \
-             could not account for all of the estimate ({} is the share of the leftover variance of {} that {} \
-             itself explains).",
-            n.outcome,
-            pct(rv.partial_r2_exposure),
-            n.exposure,
-            pct(rv.partial_r2_exposure),
-            n.outcome,
-            n.exposure
+            " A floor on the exposure side: {exposure} itself accounts for {share} of the leftover variance of \
+             {outcome}, and a hidden confounder tied to {exposure} by less than that share cannot erase the \
+             estimate, whatever its tie to {outcome}.",
+            exposure = n.exposure,
+            outcome = n.outcome,
+            share = pct(rv.partial_r2_exposure),
         );
     }
     s
