@@ -20,6 +20,7 @@ pub mod estimate;
 pub mod graph;
 pub mod identify;
 pub mod infer;
+pub mod maths;
 pub mod model;
 pub mod plan;
 pub mod report;

@@ -8,9 +8,8 @@
 //! and each Monte Carlo chunk. Uniforms take the top 53 bits of a 64-bit word.
 //! Standard normals come from the polar method of Marsaglia & Bray (1964, SIAM
 //! Review 6:260-264), which needs only a square root (exact under IEEE-754)
-//! and a logarithm (computed in [`super::detmath`]).
+//! and a logarithm (computed in [`crate::maths`]).
 
-use super::detmath;
 use rand_chacha::ChaCha8Rng;
 use rand_chacha::rand_core::{Rng, SeedableRng};
 
@@ -52,7 +51,7 @@ impl Stream {
             let b = 2.0 * self.uniform() - 1.0;
             let s = a * a + b * b;
             if s > 0.0 && s < 1.0 {
-                return a * (-2.0 * detmath::ln(s) / s).sqrt();
+                return a * (-2.0 * crate::maths::ln(s) / s).sqrt();
             }
         }
     }
