@@ -23,6 +23,7 @@ pub mod infer;
 pub mod maths;
 pub mod model;
 pub mod plan;
+pub mod random;
 pub mod report;
 pub mod sensitivity;
 pub mod simulate;

@@ -8,7 +8,7 @@
 //! value per statistic (for example one per estimation method).
 //!
 //! Determinism: replicate i draws its resample from its own random stream,
-//! ChaCha8 keyed by the seed with stream number i, and the n row indices are
+//! stream number i of the seed ([`crate::random::stream_rng`]), and the n row indices are
 //! drawn by Lemire's multiply-and-reject method on 64-bit outputs (written
 //! here, so the draws do not depend on a library's sampling code). Results
 //! are therefore identical for any number of threads.
@@ -39,9 +39,10 @@
 //! [`FAILURE_WARNING_SHARE`] of them failed.
 
 use crate::infer::dist::{normal_cdf, normal_critical, normal_quantile};
+use crate::random::stream_rng;
 use crate::{Error, Result};
 use rand_chacha::ChaCha8Rng;
-use rand_chacha::rand_core::{Rng, SeedableRng};
+use rand_chacha::rand_core::Rng;
 use rayon::prelude::*;
 use serde::Serialize;
 use std::io::IsTerminal;
@@ -237,28 +238,6 @@ impl Summary {
             failed: self.failed,
         })
     }
-}
-
-/// SplitMix64 (Steele, Lea and Flood 2014), used only to spread a 64-bit
-/// seed over the 256-bit ChaCha key.
-fn splitmix64(state: &mut u64) -> u64 {
-    *state = state.wrapping_add(0x9E37_79B9_7F4A_7C15);
-    let mut z = *state;
-    z = (z ^ (z >> 30)).wrapping_mul(0xBF58_476D_1CE4_E5B9);
-    z = (z ^ (z >> 27)).wrapping_mul(0x94D0_49BB_1331_11EB);
-    z ^ (z >> 31)
-}
-
-/// The random stream `stream` of `seed`.
-fn stream_rng(seed: u64, stream: u64) -> ChaCha8Rng {
-    let mut key = [0u8; 32];
-    let mut s = seed;
-    for chunk in key.chunks_exact_mut(8) {
-        chunk.copy_from_slice(&splitmix64(&mut s).to_le_bytes());
-    }
-    let mut rng = ChaCha8Rng::from_seed(key);
-    rng.set_stream(stream);
-    rng
 }
 
 /// A uniform integer in [0, n), n > 0: Lemire, ACM TOMACS 2019;29(1):3.
