@@ -15,6 +15,7 @@
 pub mod analysis;
 pub mod check;
 pub mod data;
+pub mod dist;
 pub mod error;
 pub mod estimate;
 pub mod graph;

@@ -4,7 +4,6 @@
 use crate::{Error, Result};
 use nalgebra::DVector;
 use serde::Serialize;
-use statrs::distribution::{ContinuousCDF, Normal};
 
 /// The population an effect averages over.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, Default)]
@@ -166,7 +165,9 @@ pub struct Estimate {
     pub warm: Warm,
 }
 
-/// The two-sided normal quantile for `level` (e.g. 1.96 for 0.95).
+/// The two-sided normal quantile for `level` (e.g. 1.96 for 0.95), from
+/// [`crate::dist::normal_critical`]; NaN for a level outside (0, 1), which
+/// the options refuse before any estimation.
 pub fn z_value(level: f64) -> f64 {
-    Normal::standard().inverse_cdf(0.5 + level / 2.0)
+    crate::dist::normal_critical(level).unwrap_or(f64::NAN)
 }

@@ -38,7 +38,7 @@
 //! successful replicates, with a warning when more than
 //! [`FAILURE_WARNING_SHARE`] of them failed.
 
-use crate::infer::dist::{normal_cdf, normal_critical, normal_quantile};
+use crate::dist::{normal_cdf, normal_critical, normal_quantile};
 use crate::random::stream_rng;
 use crate::{Error, Result};
 use rand_chacha::ChaCha8Rng;
