@@ -29,4 +29,4 @@ pub mod report;
 pub mod sensitivity;
 pub mod simulate;
 
-pub use error::{Error, Result};
+pub use error::{Error, Result, Setting};

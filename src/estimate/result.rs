@@ -1,7 +1,7 @@
 //! Result types: estimand, scale, and the estimate record the JSON
 //! `estimates` items are made from.
 
-use crate::{Error, Result};
+use crate::{Error, Result, Setting};
 use nalgebra::DVector;
 use serde::Serialize;
 
@@ -27,9 +27,10 @@ impl std::str::FromStr for Estimand {
             "ate" => Ok(Estimand::Ate),
             "att" => Ok(Estimand::Att),
             "atc" => Ok(Estimand::Atc),
-            _ => Err(Error::input(format!(
-                "--estimand '{s}': expected ate, att or atc"
-            ))),
+            _ => Err(Error::option(
+                Setting::Estimand,
+                format!("'{s}': expected ate, att or atc"),
+            )),
         }
     }
 }
@@ -64,9 +65,10 @@ impl std::str::FromStr for Scale {
             "difference" => Ok(Scale::Difference),
             "ratio" => Ok(Scale::Ratio),
             "odds" => Ok(Scale::Odds),
-            _ => Err(Error::input(format!(
-                "--scale '{s}': expected difference, ratio or odds"
-            ))),
+            _ => Err(Error::option(
+                Setting::Scale,
+                format!("'{s}': expected difference, ratio or odds"),
+            )),
         }
     }
 }

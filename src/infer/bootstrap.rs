@@ -40,7 +40,7 @@
 
 use crate::dist::{normal_cdf, normal_critical, normal_quantile};
 use crate::random::stream_rng;
-use crate::{Error, Result};
+use crate::{Error, Result, Setting};
 use rand_chacha::ChaCha8Rng;
 use rand_chacha::rand_core::Rng;
 use rayon::prelude::*;
@@ -118,15 +118,16 @@ impl IntervalKind {
         }
     }
 
-    /// Parses a name as given to `--interval`.
+    /// Parses the name of an interval kind.
     pub fn parse(s: &str) -> Result<Self> {
         match s {
             "percentile" => Ok(IntervalKind::Percentile),
             "bca" => Ok(IntervalKind::Bca),
             "normal" => Ok(IntervalKind::Normal),
-            _ => Err(Error::input(format!(
-                "--interval '{s}': expected percentile, bca or normal"
-            ))),
+            _ => Err(Error::option(
+                Setting::Interval,
+                format!("'{s}': expected percentile, bca or normal"),
+            )),
         }
     }
 }
@@ -291,16 +292,16 @@ fn check_opts(n: usize, opts: &BootOpts) -> Result<()> {
         )));
     }
     if opts.replicates < 2 {
-        return Err(Error::input(format!(
-            "--bootstrap: at least 2 replicates are needed (got {})",
-            opts.replicates
-        )));
+        return Err(Error::option(
+            Setting::Bootstrap,
+            format!("must be at least 2 (got {})", opts.replicates),
+        ));
     }
     if !(opts.level > 0.0 && opts.level < 1.0) {
-        return Err(Error::input(format!(
-            "--level must be in (0, 1) (got {})",
-            opts.level
-        )));
+        return Err(Error::option(
+            Setting::Level,
+            format!("must be in (0, 1) (got {})", opts.level),
+        ));
     }
     Ok(())
 }
@@ -464,7 +465,10 @@ impl Draws {
             )));
         }
         if !(level > 0.0 && level < 1.0) {
-            return Err(Error::input(format!("--level must be in (0, 1) (got {level})")));
+            return Err(Error::option(
+                Setting::Level,
+                format!("must be in (0, 1) (got {level})"),
+            ));
         }
         summarize(
             self.estimate[j],
