@@ -11,6 +11,7 @@ use crate::data::{Dataset, ExposureCoding};
 use crate::estimate::{
     self, Diagnostics, Estimand, Estimate, Method, Problem, Scale, SensitivityInputs, Spec, Warm,
 };
+use crate::graph::{Names, set_text};
 use crate::identify::Strategy;
 use crate::infer::bootstrap::{self, BootOpts, BootstrapBlock, IntervalKind};
 use crate::plan::Plan;
@@ -248,7 +249,7 @@ pub fn run(plan: &Plan, data: &Dataset, opts: &Options) -> Result<Analysis> {
                  are formed with adjustment covariates only{}",
                 plan.adjustment_set
                     .as_ref()
-                    .map_or("none".to_string(), |s| format!("{{{}}}", s.join(", "))),
+                    .map_or("none".to_string(), |s| set_text(s, Names::Plain, "{}")),
                 crate::error::nearest_names(name, plan.adjustment_set.iter().flatten().map(String::as_str))
             )));
         }

@@ -23,6 +23,16 @@ pub enum Error {
     /// A numerical failure that makes a result meaningless.
     #[error("{0}")]
     Numerical(String),
+    /// A bad value of an analysis setting. The library names the setting in
+    /// neutral words; the command line prints its flag instead.
+    #[error("{} {message}", setting.words())]
+    Option {
+        /// Which setting.
+        setting: Setting,
+        /// What is wrong, following the setting's name (for example
+        /// `'magic': expected one of ...`).
+        message: String,
+    },
     /// A file that could not be read or written.
     #[error("{path}: {source}")]
     Io {
@@ -33,11 +43,48 @@ pub enum Error {
     },
 }
 
+/// An analysis setting, named in an [`Error::Option`]. The library writes
+/// it in words ([`Setting::words`]); a front end may name its own control
+/// for it instead.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub enum Setting {
+    /// The estimation methods to run.
+    Method,
+    /// The estimand (ATE, ATT, ATC).
+    Estimand,
+    /// The scale of a binary outcome's contrast.
+    Scale,
+    /// The bootstrap interval kind.
+    Interval,
+    /// The number of bootstrap replicates.
+    Bootstrap,
+    /// The interval level.
+    Level,
+}
+
+impl Setting {
+    /// The setting in neutral words.
+    pub fn words(self) -> &'static str {
+        match self {
+            Setting::Method => "the method list",
+            Setting::Estimand => "the estimand",
+            Setting::Scale => "the effect scale",
+            Setting::Interval => "the bootstrap interval kind",
+            Setting::Bootstrap => "the number of bootstrap replicates",
+            Setting::Level => "the interval level",
+        }
+    }
+}
+
 impl Error {
     /// The process exit code for this error (see the command-line contract).
     pub fn exit_code(&self) -> i32 {
         match self {
-            Error::Graph(_) | Error::Input(_) | Error::Separation(_) | Error::Io { .. } => 2,
+            Error::Graph(_)
+            | Error::Input(_)
+            | Error::Option { .. }
+            | Error::Separation(_)
+            | Error::Io { .. } => 2,
             Error::NotIdentified(_) => 3,
             Error::Numerical(_) => 1,
         }
@@ -46,6 +93,14 @@ impl Error {
     /// Shorthand for an input error.
     pub fn input(msg: impl Into<String>) -> Self {
         Error::Input(msg.into())
+    }
+
+    /// A bad value of `setting`.
+    pub fn option(setting: Setting, message: impl Into<String>) -> Self {
+        Error::Option {
+            setting,
+            message: message.into(),
+        }
     }
 
     /// An I/O error on `path`.

@@ -15,15 +15,18 @@
 pub mod analysis;
 pub mod check;
 pub mod data;
+pub mod dist;
 pub mod error;
 pub mod estimate;
 pub mod graph;
 pub mod identify;
 pub mod infer;
+pub mod maths;
 pub mod model;
 pub mod plan;
+pub mod random;
 pub mod report;
 pub mod sensitivity;
 pub mod simulate;
 
-pub use error::{Error, Result};
+pub use error::{Error, Result, Setting};

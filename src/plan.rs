@@ -5,7 +5,7 @@
 //! the estimate will use (adjustment set or front-door set).
 
 use crate::error::nearest_names;
-use crate::graph::{Graph, Node};
+use crate::graph::{Graph, Names, Node, set_text};
 use crate::identify::{Identification, Strategy, identify};
 use crate::{Error, Result};
 
@@ -194,15 +194,15 @@ impl Plan {
                 let why = given_set_problem(g, gs);
                 if !force {
                     return Err(Error::input(format!(
-                        "--adjust {{{}}} does not meet the backdoor criterion: {why}. Use --adjust optimal or \
+                        "--adjust {} does not meet the backdoor criterion: {why}. Use --adjust optimal or \
                          minimal, or add --force-adjust to estimate with it anyway",
-                        gs.set.join(", ")
+                        set_text(&gs.set, Names::Plain, "{}")
                     )));
                 }
                 warnings.push(format!(
-                    "the adjustment set {{{}}} given with --adjust does not meet the backdoor criterion ({why}); \
+                    "the adjustment set {} given with --adjust does not meet the backdoor criterion ({why}); \
                      it was used because --force-adjust was given, so the estimate is biased under the graph",
-                    gs.set.join(", ")
+                    set_text(&gs.set, Names::Plain, "{}")
                 ));
                 strategy = Strategy::Backdoor;
                 (

@@ -114,7 +114,7 @@ fn adjustments_agree_with_multipletests() {
 // 10^5 rows the difference stays under 2e-10.
 #[test]
 fn tail_probabilities_agree_with_scipy() {
-    use causeway::infer::dist::{chi_square_sf, f_sf};
+    use causeway::dist::{chi_square_sf, f_sf};
     let doc = load();
     let mut worst = 0.0f64;
     for t in doc["tails"].as_array().unwrap() {

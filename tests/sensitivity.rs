@@ -3,7 +3,7 @@
 //! records the library versions), and the `causeway sensitivity` command.
 
 use crate::helpers::{DEMO_QUESTION, fixture, repo, run, run_in};
-use causeway::infer::dist::{normal_cdf, normal_quantile, t_quantile};
+use causeway::dist::{normal_cdf, normal_quantile, t_quantile};
 use causeway::report::sensitivity_figure::{self, Mark, benchmark_yardsticks};
 use causeway::sensitivity::evalue;
 use causeway::sensitivity::robustness::{

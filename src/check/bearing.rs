@@ -16,7 +16,7 @@
 //! graph is still wrong there, but not in a way that moves this estimate.
 
 use super::CheckReport;
-use crate::graph::{Graph, Node};
+use crate::graph::{Graph, Names, Node, set_text};
 use crate::identify::{Strategy, check_frontdoor, is_backdoor_set};
 use crate::plan::{AdjustChoice, Plan, Roles};
 use rayon::prelude::*;
@@ -50,21 +50,24 @@ pub struct Bearing {
     pub reason: String,
 }
 
-/// `{a, b}`, or `{}`.
-fn braces(set: &[String]) -> String {
-    format!("{{{}}}", set.join(", "))
-}
-
 /// The set a plan uses, in words.
 fn used(plan: &Plan) -> String {
     match plan.strategy {
         Strategy::Backdoor => format!(
             "the adjustment set {}",
-            braces(plan.adjustment_set.as_deref().unwrap_or_default())
+            set_text(
+                plan.adjustment_set.as_deref().unwrap_or_default(),
+                Names::Plain,
+                "{}"
+            )
         ),
         Strategy::Frontdoor => format!(
             "the front-door set {}",
-            braces(plan.frontdoor_set.as_deref().unwrap_or_default())
+            set_text(
+                plan.frontdoor_set.as_deref().unwrap_or_default(),
+                Names::Plain,
+                "{}"
+            )
         ),
         Strategy::None => "the verdict that the effect is not identified".to_string(),
     }

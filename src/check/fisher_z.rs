@@ -10,7 +10,7 @@
 use super::pair::{CiTest, Outcome, conditioning_terms};
 use crate::Result;
 use crate::data::{Design, Factor, Frame, Setting, Term, Transform};
-use crate::infer::dist::normal_cdf;
+use crate::dist::normal_cdf;
 use crate::model::{ALIAS_TOL, Chol, accumulate};
 use nalgebra::DVector;
 

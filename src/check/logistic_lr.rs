@@ -9,7 +9,7 @@
 use super::pair::{CiTest, Outcome, conditioning_design, extended_design, separation_note};
 use crate::Result;
 use crate::data::{Frame, Setting};
-use crate::infer::dist::chi_square_sf;
+use crate::dist::chi_square_sf;
 use crate::model::{Logit, LogitOptions};
 use nalgebra::DVector;
 

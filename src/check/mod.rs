@@ -28,7 +28,7 @@ pub use implications::{Implication, implications};
 pub use pair::{CiTest, Outcome, PairResult, ci_test};
 
 use crate::data::Dataset;
-use crate::graph::Graph;
+use crate::graph::{Graph, Names, set_text};
 use crate::{Error, Result};
 use rayon::prelude::*;
 use serde::Serialize;
@@ -216,7 +216,10 @@ pub fn run(g: &Graph, data: &Dataset, opts: &CheckOptions) -> Result<CheckReport
         match r.outcome {
             Outcome::Tested(t) => {
                 if let Some(note) = &t.note {
-                    warnings.push(format!("{a} and {b} given {}: {note}", set_text(&given)));
+                    warnings.push(format!(
+                        "{a} and {b} given {}: {note}",
+                        set_text(&given, Names::Plain, "{}")
+                    ));
                 }
                 tested.push(TestedImplication {
                     a,
@@ -278,9 +281,4 @@ pub fn run(g: &Graph, data: &Dataset, opts: &CheckOptions) -> Result<CheckReport
         warnings,
         adjustment: None,
     })
-}
-
-/// A set as `{a, b}` (`{}` when empty).
-fn set_text(set: &[String]) -> String {
-    format!("{{{}}}", set.join(", "))
 }

@@ -11,7 +11,7 @@
 use super::pair::{CiTest, Outcome, conditioning_design, extended_design};
 use crate::Result;
 use crate::data::{Frame, Setting};
-use crate::infer::dist::f_sf;
+use crate::dist::f_sf;
 use crate::model::Ols;
 
 /// The test's name in output.

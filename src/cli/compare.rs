@@ -134,7 +134,9 @@ pub fn compare(inputs: &[GraphInput], data: &DataSource, f: &EstimateFlags) -> R
         }
         run.result = match analysis::run(plan, ds, &opts) {
             Ok(a) => RunResult::Done(Box::new(a)),
-            Err(e @ (Error::Input(_) | Error::Io { .. } | Error::Graph(_))) => return Err(e),
+            Err(e @ (Error::Input(_) | Error::Option { .. } | Error::Io { .. } | Error::Graph(_))) => {
+                return Err(e);
+            }
             Err(e) => RunResult::Stopped {
                 strategy: plan.strategy,
                 reason: format!("the estimate failed: {e}"),

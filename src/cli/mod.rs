@@ -2,7 +2,7 @@
 //! arguments and a `run` function. This module dispatches and maps errors to
 //! exit codes; all computing happens in the library.
 
-use causeway::Error;
+use causeway::{Error, Setting};
 use clap::{Parser, Subcommand};
 use std::io::Write;
 
@@ -89,6 +89,26 @@ fn report_error(e: &Error) -> i32 {
         Error::NotIdentified(_) => "not identified",
         _ => "error",
     };
-    let _ = writeln!(err, "causeway: {label}: {e}");
+    match e {
+        Error::Option { setting, message } => {
+            let _ = writeln!(err, "causeway: {label}: {} {message}", flag(*setting));
+        }
+        _ => {
+            let _ = writeln!(err, "causeway: {label}: {e}");
+        }
+    }
     e.exit_code()
+}
+
+/// The flag that sets a library [`Setting`]: the one place the binary puts
+/// flag names on the library's option errors.
+pub fn flag(setting: Setting) -> &'static str {
+    match setting {
+        Setting::Method => "--method",
+        Setting::Estimand => "--estimand",
+        Setting::Scale => "--scale",
+        Setting::Interval => "--interval",
+        Setting::Bootstrap => "--bootstrap",
+        Setting::Level => "--level",
+    }
 }

@@ -1,6 +1,8 @@
 //! The inner loops of every pass over a block of design rows: the block
 //! times a vector, its transpose times a vector, a scaled copy of some of
-//! its rows, and the logistic function of a vector.
+//! its rows, and the logistic function of a vector (element by element
+//! [`crate::maths::expit`], inlined: a short polynomial exponential, so the
+//! loop vectorises).
 //!
 //! Each is written once, in plain Rust, and compiled twice: as is, and with
 //! AVX2 enabled, the second chosen at run time on CPUs that have it. The
@@ -212,63 +214,12 @@ with_avx2! {
     }
 }
 
-/// `e^x` for `x <= 0`, 0 below -708 (where `e^x` is below the smallest
-/// normal number): `x = k ln 2 + r` with `k` the nearest integer to
-/// `x / ln 2` (found by adding and subtracting 1.5 x 2^52) and `|r| <= ln 2
-/// / 2`, `e^r` by its Taylor polynomial of degree 13 (truncation error below
-/// 5e-18), times `2^k` written into the exponent bits. The split of `ln 2`
-/// into a high part with trailing zero bits and a low part keeps `r` exact
-/// (fdlibm's constants). Relative error at most 2^-52 from the libm value
-/// over 2,000,001 points of [-708, 0] (measured; the test allows 4 x 2^-52);
-/// plain arithmetic only, so every CPU gives the same bits.
-#[inline(always)]
-fn exp_nonpositive(x: f64) -> f64 {
-    const LN2_HI: f64 = f64::from_bits(0x3fe6_2e42_fee0_0000);
-    const LN2_LO: f64 = f64::from_bits(0x3dea_39ef_3579_3c76);
-    const SHIFT: f64 = 6_755_399_441_055_744.0;
-    let xc = x.max(-708.0);
-    let t = xc * std::f64::consts::LOG2_E + SHIFT;
-    let k = t - SHIFT;
-    let r = (xc - k * LN2_HI) - k * LN2_LO;
-    // 1/j! for j = 13 down to 2.
-    const C: [f64; 12] = [
-        1.0 / 6_227_020_800.0,
-        1.0 / 479_001_600.0,
-        1.0 / 39_916_800.0,
-        1.0 / 3_628_800.0,
-        1.0 / 362_880.0,
-        1.0 / 40_320.0,
-        1.0 / 5_040.0,
-        1.0 / 720.0,
-        1.0 / 120.0,
-        1.0 / 24.0,
-        1.0 / 6.0,
-        0.5,
-    ];
-    let mut q = C[0];
-    for c in &C[1..] {
-        q = q * r + c;
-    }
-    let er = (q * r + 1.0) * r + 1.0;
-    let kbits = t.to_bits().wrapping_sub(SHIFT.to_bits());
-    let scale = f64::from_bits(kbits.wrapping_add(1023) << 52);
-    if x < -708.0 { 0.0 } else { er * scale }
-}
-
-/// The logistic function `1 / (1 + e^-x)` from [`exp_nonpositive`] of
-/// `-|x|`.
-#[inline(always)]
-fn expit_one(x: f64) -> f64 {
-    let e = exp_nonpositive(-x.abs());
-    if x >= 0.0 { 1.0 / (1.0 + e) } else { e / (1.0 + e) }
-}
-
 with_avx2! {
     /// `out[i] = 1 / (1 + e^-x[i])` (`out.len() == x.len()`); NaN stays NaN.
     fn expit_into / expit_into_plain(x: &[f64], out: &mut [f64]) {
         assert_eq!(x.len(), out.len(), "expit sizes");
         for (o, &v) in out.iter_mut().zip(x) {
-            *o = if v.is_nan() { v } else { expit_one(v) };
+            *o = crate::maths::expit(v);
         }
     }
 }
@@ -278,19 +229,10 @@ mod tests {
     use super::*;
 
     #[test]
-    fn exp_and_expit_agree_with_the_standard_library() {
-        // Against std's exp and the two-branch logistic function: relative
-        // error below 4 units in the last place (2^-52 = 2.2e-16) over a
-        // grid of arguments, identical bits from the plain and AVX2 builds.
-        let xs: Vec<f64> = (0..100_001).map(|i| -745.0 + i as f64 * 0.00745).collect();
-        for &x in &xs {
-            let (a, b) = (exp_nonpositive(x), x.exp());
-            if x >= -708.0 {
-                assert!((a - b).abs() <= 4.0 * f64::EPSILON * b, "exp({x}): {a} vs {b}");
-            } else {
-                assert_eq!(a, 0.0);
-            }
-        }
+    fn expit_builds_agree() {
+        // The plain and AVX2 builds give identical bits, and both are within
+        // 4 units in the last place (2^-52 = 2.2e-16) of the scalar logistic
+        // function over the standard library's exp.
         let zs: Vec<f64> = (0..100_001)
             .map(|i| -50.0 + i as f64 * 0.001)
             .chain([0.0, -0.0, 800.0, -800.0, f64::NAN])
@@ -305,7 +247,7 @@ mod tests {
                 assert!(f.is_nan());
                 continue;
             }
-            let want = crate::model::expit(z);
+            let want = crate::maths::expit_std(z);
             assert!(
                 (f - want).abs() <= 4.0 * f64::EPSILON * want,
                 "expit({z}): {f} vs {want}"

@@ -40,7 +40,7 @@ pub use regression::Regression;
 pub use result::{Estimand, Estimate, Means, Scale, Warm, z_value};
 pub use sensitivity::{SensitivityInputs, TermStat, sensitivity_inputs};
 
-use crate::{Error, Result};
+use crate::{Error, Result, Setting};
 
 /// An estimation method.
 pub trait Method: Sync {
@@ -70,10 +70,10 @@ pub fn method(name: &str) -> Result<Box<dyn Method>> {
         "aipw" => Box::new(Aipw),
         "frontdoor" => Box::new(FrontDoor),
         _ => {
-            return Err(Error::input(format!(
-                "--method '{name}': expected one of {}",
-                METHODS.join(", ")
-            )));
+            return Err(Error::option(
+                Setting::Method,
+                format!("'{name}': expected one of {}", METHODS.join(", ")),
+            ));
         }
     })
 }

@@ -6,7 +6,8 @@
 
 use super::{Problem, Warm};
 use crate::data::{Design, Setting};
-use crate::model::{Chol, Logit, LogitOptions, Ols, Separation, expit, linear_predictor, weighted_sum};
+use crate::maths::expit_std as expit;
+use crate::model::{Chol, Logit, LogitOptions, Ols, Separation, linear_predictor, weighted_sum};
 use crate::{Error, Result};
 use nalgebra::DVector;
 

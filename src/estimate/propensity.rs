@@ -7,7 +7,8 @@
 
 use super::{Estimand, Problem, Warm};
 use crate::data::Kind;
-use crate::model::{Logit, LogitOptions, expit, linear_predictor};
+use crate::maths::expit_std as expit;
+use crate::model::{Logit, LogitOptions, linear_predictor};
 use crate::{Error, Result};
 use nalgebra::DVector;
 use std::borrow::Cow;

@@ -1,10 +1,9 @@
 //! Result types: estimand, scale, and the estimate record the JSON
 //! `estimates` items are made from.
 
-use crate::{Error, Result};
+use crate::{Error, Result, Setting};
 use nalgebra::DVector;
 use serde::Serialize;
-use statrs::distribution::{ContinuousCDF, Normal};
 
 /// The population an effect averages over.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, Default)]
@@ -28,9 +27,10 @@ impl std::str::FromStr for Estimand {
             "ate" => Ok(Estimand::Ate),
             "att" => Ok(Estimand::Att),
             "atc" => Ok(Estimand::Atc),
-            _ => Err(Error::input(format!(
-                "--estimand '{s}': expected ate, att or atc"
-            ))),
+            _ => Err(Error::option(
+                Setting::Estimand,
+                format!("'{s}': expected ate, att or atc"),
+            )),
         }
     }
 }
@@ -65,9 +65,10 @@ impl std::str::FromStr for Scale {
             "difference" => Ok(Scale::Difference),
             "ratio" => Ok(Scale::Ratio),
             "odds" => Ok(Scale::Odds),
-            _ => Err(Error::input(format!(
-                "--scale '{s}': expected difference, ratio or odds"
-            ))),
+            _ => Err(Error::option(
+                Setting::Scale,
+                format!("'{s}': expected difference, ratio or odds"),
+            )),
         }
     }
 }
@@ -166,7 +167,9 @@ pub struct Estimate {
     pub warm: Warm,
 }
 
-/// The two-sided normal quantile for `level` (e.g. 1.96 for 0.95).
+/// The two-sided normal quantile for `level` (e.g. 1.96 for 0.95), from
+/// [`crate::dist::normal_critical`]; NaN for a level outside (0, 1), which
+/// the options refuse before any estimation.
 pub fn z_value(level: f64) -> f64 {
-    Normal::standard().inverse_cdf(0.5 + level / 2.0)
+    crate::dist::normal_critical(level).unwrap_or(f64::NAN)
 }

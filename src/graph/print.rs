@@ -14,6 +14,28 @@ pub fn quote(name: &str) -> String {
     }
 }
 
+/// How [`set_text`] writes each name.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub enum Names {
+    /// As the graph file writes it, quoted when not a bare word.
+    Quoted,
+    /// As it is.
+    Plain,
+}
+
+/// The one way to print a set of names: `{a, b}`, in the order given; the
+/// empty set as `empty` (for example `{}` or `nothing`).
+pub fn set_text(set: &[String], names: Names, empty: &str) -> String {
+    if set.is_empty() {
+        return empty.to_string();
+    }
+    let shown: Vec<String> = match names {
+        Names::Quoted => set.iter().map(|s| quote(s)).collect(),
+        Names::Plain => set.to_vec(),
+    };
+    format!("{{{}}}", shown.join(", "))
+}
+
 fn coef_text(c: &Coef) -> String {
     match c {
         Coef::Value(v) => format!(" ({v})"),
@@ -109,5 +131,19 @@ impl Graph {
             let _ = writeln!(out, "{} -> {}{c}", quote(self.name(a)), quote(self.name(b)));
         }
         out
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn a_set_prints_in_braces_with_the_empty_wording_given() {
+        let set = vec!["age".to_string(), "blood pressure".to_string()];
+        assert_eq!(set_text(&set, Names::Plain, "{}"), "{age, blood pressure}");
+        assert_eq!(set_text(&set, Names::Quoted, "{}"), "{age, \"blood pressure\"}");
+        assert_eq!(set_text(&[], Names::Quoted, "nothing"), "nothing");
+        assert_eq!(set_text(&[], Names::Plain, "{}"), "{}");
     }
 }

@@ -8,7 +8,7 @@
 //! value per statistic (for example one per estimation method).
 //!
 //! Determinism: replicate i draws its resample from its own random stream,
-//! ChaCha8 keyed by the seed with stream number i, and the n row indices are
+//! stream number i of the seed ([`crate::random::stream_rng`]), and the n row indices are
 //! drawn by Lemire's multiply-and-reject method on 64-bit outputs (written
 //! here, so the draws do not depend on a library's sampling code). Results
 //! are therefore identical for any number of threads.
@@ -38,10 +38,11 @@
 //! successful replicates, with a warning when more than
 //! [`FAILURE_WARNING_SHARE`] of them failed.
 
-use crate::infer::dist::{normal_cdf, normal_critical, normal_quantile};
-use crate::{Error, Result};
+use crate::dist::{normal_cdf, normal_critical, normal_quantile};
+use crate::random::stream_rng;
+use crate::{Error, Result, Setting};
 use rand_chacha::ChaCha8Rng;
-use rand_chacha::rand_core::{Rng, SeedableRng};
+use rand_chacha::rand_core::Rng;
 use rayon::prelude::*;
 use serde::Serialize;
 use std::io::IsTerminal;
@@ -117,15 +118,16 @@ impl IntervalKind {
         }
     }
 
-    /// Parses a name as given to `--interval`.
+    /// Parses the name of an interval kind.
     pub fn parse(s: &str) -> Result<Self> {
         match s {
             "percentile" => Ok(IntervalKind::Percentile),
             "bca" => Ok(IntervalKind::Bca),
             "normal" => Ok(IntervalKind::Normal),
-            _ => Err(Error::input(format!(
-                "--interval '{s}': expected percentile, bca or normal"
-            ))),
+            _ => Err(Error::option(
+                Setting::Interval,
+                format!("'{s}': expected percentile, bca or normal"),
+            )),
         }
     }
 }
@@ -239,28 +241,6 @@ impl Summary {
     }
 }
 
-/// SplitMix64 (Steele, Lea and Flood 2014), used only to spread a 64-bit
-/// seed over the 256-bit ChaCha key.
-fn splitmix64(state: &mut u64) -> u64 {
-    *state = state.wrapping_add(0x9E37_79B9_7F4A_7C15);
-    let mut z = *state;
-    z = (z ^ (z >> 30)).wrapping_mul(0xBF58_476D_1CE4_E5B9);
-    z = (z ^ (z >> 27)).wrapping_mul(0x94D0_49BB_1331_11EB);
-    z ^ (z >> 31)
-}
-
-/// The random stream `stream` of `seed`.
-fn stream_rng(seed: u64, stream: u64) -> ChaCha8Rng {
-    let mut key = [0u8; 32];
-    let mut s = seed;
-    for chunk in key.chunks_exact_mut(8) {
-        chunk.copy_from_slice(&splitmix64(&mut s).to_le_bytes());
-    }
-    let mut rng = ChaCha8Rng::from_seed(key);
-    rng.set_stream(stream);
-    rng
-}
-
 /// A uniform integer in [0, n), n > 0: Lemire, ACM TOMACS 2019;29(1):3.
 fn below(rng: &mut ChaCha8Rng, n: u64) -> u64 {
     let mut m = u128::from(rng.next_u64()) * u128::from(n);
@@ -312,16 +292,16 @@ fn check_opts(n: usize, opts: &BootOpts) -> Result<()> {
         )));
     }
     if opts.replicates < 2 {
-        return Err(Error::input(format!(
-            "--bootstrap: at least 2 replicates are needed (got {})",
-            opts.replicates
-        )));
+        return Err(Error::option(
+            Setting::Bootstrap,
+            format!("must be at least 2 (got {})", opts.replicates),
+        ));
     }
     if !(opts.level > 0.0 && opts.level < 1.0) {
-        return Err(Error::input(format!(
-            "--level must be in (0, 1) (got {})",
-            opts.level
-        )));
+        return Err(Error::option(
+            Setting::Level,
+            format!("must be in (0, 1) (got {})", opts.level),
+        ));
     }
     Ok(())
 }
@@ -485,7 +465,10 @@ impl Draws {
             )));
         }
         if !(level > 0.0 && level < 1.0) {
-            return Err(Error::input(format!("--level must be in (0, 1) (got {level})")));
+            return Err(Error::option(
+                Setting::Level,
+                format!("must be in (0, 1) (got {level})"),
+            ));
         }
         summarize(
             self.estimate[j],

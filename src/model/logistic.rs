@@ -3,8 +3,9 @@
 //! step-halving when the deviance rises, warm starts, and a check for
 //! separation (fitted probabilities numerically 0 or 1).
 
-use super::{ALIAS_TOL, Chol, accumulate, expit, linear_predictor, score};
+use super::{ALIAS_TOL, Chol, accumulate, linear_predictor, score};
 use crate::data::{Rows, expit_into};
+use crate::maths::expit_std as expit;
 use crate::{Error, Result};
 use nalgebra::{DMatrix, DVector};
 

@@ -33,7 +33,7 @@ pub use cross::{Cross, accumulate, score};
 pub use logistic::{Logit, LogitOptions, Refit, Separation};
 pub use multinomial::Multinomial;
 pub use ols::Ols;
-pub use predict::{expit, linear_predictor, weighted_sum};
+pub use predict::{linear_predictor, weighted_sum};
 
 /// Relative residual sum of squares below which a column counts as aliased.
 pub const ALIAS_TOL: f64 = 1e-10;

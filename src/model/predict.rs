@@ -3,16 +3,6 @@
 use crate::data::{Rows, map_rows, reduce};
 use nalgebra::DVector;
 
-/// The logistic function 1 / (1 + exp(-x)).
-pub fn expit(x: f64) -> f64 {
-    if x >= 0.0 {
-        1.0 / (1.0 + (-x).exp())
-    } else {
-        let e = x.exp();
-        e / (1.0 + e)
-    }
-}
-
 /// `x_i' beta` for every row.
 pub fn linear_predictor<R: Rows + ?Sized>(rows: &R, beta: &DVector<f64>) -> Vec<f64> {
     let mut out = vec![0.0; rows.nrows()];

@@ -7,7 +7,7 @@ use super::doc::{Align, Block, Doc, Table};
 use crate::check::{
     Adjustment, CheckReport, TestedImplication, fisher_z, logistic_lr, multinomial_lr, nested_f,
 };
-use crate::graph::quote;
+use crate::graph::{Names, quote, set_text};
 
 /// A list of names, quoted as in a graph file when needed.
 fn names(set: &[String]) -> String {
@@ -72,11 +72,7 @@ fn yes_no(b: Option<bool>) -> &'static str {
 
 /// A claim in words: `a and b given {s}`.
 fn claim_text(i: &TestedImplication) -> String {
-    let given = if i.given.is_empty() {
-        "nothing".to_string()
-    } else {
-        format!("{{{}}}", names(&i.given))
-    };
+    let given = set_text(&i.given, Names::Quoted, "nothing");
     format!("{} and {} given {given}", quote(&i.a), quote(&i.b))
 }
 
@@ -103,8 +99,8 @@ fn ordered(r: &CheckReport) -> Vec<&TestedImplication> {
 /// The set the claims were judged against, in words.
 fn judged_set(a: &Adjustment) -> String {
     match (&a.adjustment_set, &a.frontdoor_set) {
-        (Some(s), _) => format!("the adjustment set {{{}}}", names(s)),
-        (None, Some(s)) => format!("the front-door set {{{}}}", names(s)),
+        (Some(s), _) => format!("the adjustment set {}", set_text(s, Names::Quoted, "{}")),
+        (None, Some(s)) => format!("the front-door set {}", set_text(s, Names::Quoted, "{}")),
         (None, None) => "no set (the effect is not identified under the graph)".to_string(),
     }
 }
@@ -302,11 +298,7 @@ pub fn report_doc(r: &CheckReport) -> Doc {
                 "{} and {} given {}: the data cannot test this claim: {}.",
                 quote(&p.a),
                 quote(&p.b),
-                if p.given.is_empty() {
-                    "nothing".to_string()
-                } else {
-                    format!("{{{}}}", names(&p.given))
-                },
+                set_text(&p.given, Names::Quoted, "nothing"),
                 p.reason
             ));
         }

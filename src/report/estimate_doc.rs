@@ -7,6 +7,7 @@ use super::doc::{Align, Block, Table};
 use super::sensitivity_text::sig;
 use crate::analysis::Analysis;
 use crate::estimate::Scale;
+use crate::graph::{self, Names};
 use crate::identify::Strategy;
 use crate::sensitivity::evalue::EValue;
 
@@ -40,13 +41,10 @@ pub fn interval(ci: [f64; 2]) -> String {
     format!("{} to {}", num(ci[0]), num(ci[1]))
 }
 
-/// A set as `{a, b}`; "none" for the empty set.
+/// A set in an estimate report: [`graph::set_text`] with the empty set as
+/// `{} (none needed)`.
 pub fn set_text(set: &[String]) -> String {
-    if set.is_empty() {
-        "{} (none needed)".into()
-    } else {
-        format!("{{{}}}", set.join(", "))
-    }
+    graph::set_text(set, Names::Plain, "{} (none needed)")
 }
 
 /// The strategy and set in a few words.

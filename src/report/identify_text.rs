@@ -5,7 +5,7 @@
 //! each path's arrows.
 
 use super::doc::CAUTION;
-use crate::graph::{Graph, quote};
+use crate::graph::{self, Graph, Names, quote};
 use crate::identify::{Identification, OPEN_PATH_CAP, SET_CAP, Strategy};
 use std::fmt::Write;
 
@@ -38,14 +38,10 @@ fn para(out: &mut String, first: &str, rest: &str, text: &str) {
     let _ = writeln!(out, "{line}");
 }
 
-/// A set as `{a, b}`, or `nothing (the empty set)`.
+/// A set in the identify report: [`graph::set_text`] with quoted names and
+/// the empty set as `nothing (the empty set)`.
 fn set_text(set: &[String]) -> String {
-    if set.is_empty() {
-        "nothing (the empty set)".to_string()
-    } else {
-        let names: Vec<String> = set.iter().map(|s| show(s)).collect();
-        format!("{{{}}}", names.join(", "))
-    }
+    graph::set_text(set, Names::Quoted, "nothing (the empty set)")
 }
 
 fn paths_block(out: &mut String, g: &Graph, paths: &[Vec<String>], truncated: bool) {

@@ -22,7 +22,7 @@
 //! - a coefficient of a continuous outcome: d = estimate / SD(outcome),
 //!   se(d) = se / SD(outcome), then as for d.
 
-use crate::infer::dist::normal_critical;
+use crate::dist::normal_critical;
 use crate::{Error, Result};
 use serde::Serialize;
 

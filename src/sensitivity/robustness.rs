@@ -39,7 +39,7 @@
 //! |r_YXj| (sqrt(k_Y) + |r_ZXj|) / sqrt((1 - r_YXj²)(1 - r_ZXj²)), which gives
 //! the R2_yz bound.
 
-use crate::infer::dist::t_critical;
+use crate::dist::t_critical;
 use crate::{Error, Result};
 use serde::Serialize;
 

@@ -28,10 +28,9 @@
 //!
 //! Same seed, same numbers, on every platform: the generator is ChaCha8 with
 //! a documented key expansion, normals come from the polar method and the
-//! logarithm and exponential are computed in software (module `detmath`).
+//! logarithm and exponential are computed in software ([`crate::maths`]).
 
 mod csv;
-mod detmath;
 mod rng;
 mod truth;
 
@@ -484,7 +483,7 @@ impl Model {
                     }
                     match kind {
                         Kind::Continuous { sd } => post_process(eq, eta + sd * noise[v]),
-                        _ => f64::from(u8::from(noise[v] < detmath::expit(eta))),
+                        _ => f64::from(u8::from(noise[v] < crate::maths::expit(eta))),
                     }
                 }
             };

@@ -1,42 +1,22 @@
 //! Random draws whose bytes do not depend on the platform or on the version
 //! of a distribution library.
 //!
-//! The bit stream is ChaCha with 8 rounds (Bernstein 2008, "ChaCha, a variant
-//! of Salsa20") from `rand_chacha`, keyed by the 64-bit seed expanded with
-//! SplitMix64 (Steele, Lea & Flood 2014, "Fast splittable pseudorandom number
-//! generators", OOPSLA); independent streams of the same key serve the data
-//! and each Monte Carlo chunk. Uniforms take the top 53 bits of a 64-bit word.
+//! The bit stream is [`crate::random::stream_rng`]; independent streams of
+//! the same seed serve the data and each Monte Carlo chunk. Uniforms take the top 53 bits of a 64-bit word.
 //! Standard normals come from the polar method of Marsaglia & Bray (1964, SIAM
 //! Review 6:260-264), which needs only a square root (exact under IEEE-754)
-//! and a logarithm (computed in [`super::detmath`]).
+//! and a logarithm (computed in [`crate::maths`]).
 
-use super::detmath;
 use rand_chacha::ChaCha8Rng;
-use rand_chacha::rand_core::{Rng, SeedableRng};
+use rand_chacha::rand_core::Rng;
 
 /// One stream of random numbers.
 pub struct Stream(ChaCha8Rng);
 
-/// SplitMix64's output function applied to successive states.
-fn splitmix64(state: &mut u64) -> u64 {
-    *state = state.wrapping_add(0x9e37_79b9_7f4a_7c15);
-    let mut z = *state;
-    z = (z ^ (z >> 30)).wrapping_mul(0xbf58_476d_1ce4_e5b9);
-    z = (z ^ (z >> 27)).wrapping_mul(0x94d0_49bb_1331_11eb);
-    z ^ (z >> 31)
-}
-
 impl Stream {
     /// Stream number `stream` of the generator keyed by `seed`.
     pub fn new(seed: u64, stream: u64) -> Self {
-        let mut key = [0u8; 32];
-        let mut state = seed;
-        for chunk in key.chunks_exact_mut(8) {
-            chunk.copy_from_slice(&splitmix64(&mut state).to_le_bytes());
-        }
-        let mut rng = ChaCha8Rng::from_seed(key);
-        rng.set_stream(stream);
-        Stream(rng)
+        Stream(crate::random::stream_rng(seed, stream))
     }
 
     /// A uniform number in [0, 1), a multiple of 2^-53.
@@ -52,7 +32,7 @@ impl Stream {
             let b = 2.0 * self.uniform() - 1.0;
             let s = a * a + b * b;
             if s > 0.0 && s < 1.0 {
-                return a * (-2.0 * detmath::ln(s) / s).sqrt();
+                return a * (-2.0 * crate::maths::ln(s) / s).sqrt();
             }
         }
     }

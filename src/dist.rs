@@ -2,7 +2,7 @@
 //! distributions, with their arguments checked so that a bad probability is
 //! an error instead of a panic, and the upper tail probabilities of the
 //! chi-square and F distributions used by tests. They wrap the `statrs`
-//! implementations.
+//! implementations. This is the one place any stage takes a quantile from.
 
 use crate::{Error, Result};
 use statrs::distribution::{Continuous, ContinuousCDF, Normal, StudentsT};
