@@ -15,6 +15,7 @@ use crate::graph::{Names, set_text};
 use crate::identify::Strategy;
 use crate::infer::bootstrap::{self, BootOpts, BootstrapBlock, IntervalKind};
 use crate::plan::Plan;
+use crate::progress::Reporter;
 use crate::sensitivity::SensitivityBlock;
 use crate::sensitivity::evalue::{self, EValue};
 use crate::sensitivity::robustness::{
@@ -42,8 +43,8 @@ pub struct Options {
     pub seed: u64,
     /// Worker threads (0: all cores).
     pub threads: usize,
-    /// Show a progress bar (when stderr is a terminal).
-    pub progress: bool,
+    /// Where the progress of long work (the bootstrap) is reported.
+    pub progress: Reporter,
     /// Also test the graph's implications against the data (`--check`).
     pub check: Option<CheckOptions>,
     /// Benchmark covariates and multiples for the robustness value.
@@ -59,7 +60,7 @@ impl Default for Options {
             interval: IntervalKind::Percentile,
             seed: 1,
             threads: 0,
-            progress: false,
+            progress: Reporter::none(),
             check: None,
             benchmarks: BenchmarkChoice::default(),
         }
@@ -371,7 +372,7 @@ fn run_bootstrap(
         seed: opts.seed,
         threads: opts.threads,
         level: opts.model.level,
-        progress: opts.progress,
+        progress: opts.progress.clone(),
         bca: opts.interval == IntervalKind::Bca,
     };
     // A method that fails in a replicate gives NaN there: it is counted as

@@ -24,6 +24,7 @@ pub mod infer;
 pub mod maths;
 pub mod model;
 pub mod plan;
+pub mod progress;
 pub mod random;
 pub mod report;
 pub mod sensitivity;

@@ -46,7 +46,7 @@ fn opts(replicates: usize, seed: u64, threads: usize) -> BootOpts {
         seed,
         threads,
         level: 0.95,
-        progress: false,
+        progress: causeway::progress::Reporter::none(),
         bca: true,
     }
 }

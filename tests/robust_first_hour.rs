@@ -484,6 +484,46 @@ fn only_the_one_writer_touches_stdout() {
     }
 }
 
+/// The library prints nothing and draws no progress bar: it reports
+/// progress through `causeway::progress::Reporter` and returns warnings as
+/// values; only the binary (src/cli, src/main.rs) writes to the terminal.
+#[test]
+fn the_library_never_prints_or_draws() {
+    fn walk(dir: &std::path::Path, out: &mut Vec<std::path::PathBuf>) {
+        for entry in std::fs::read_dir(dir).unwrap() {
+            let path = entry.unwrap().path();
+            if path.is_dir() {
+                if !path.ends_with("cli") {
+                    walk(&path, out);
+                }
+            } else if path.extension().is_some_and(|e| e == "rs") && !path.ends_with("main.rs") {
+                out.push(path);
+            }
+        }
+    }
+    let mut files = Vec::new();
+    walk(&repo("src"), &mut files);
+    assert!(files.len() > 50, "the library's files were found");
+    for path in files {
+        let text = std::fs::read_to_string(&path).unwrap();
+        for bad in [
+            "print!(",
+            "println!(",
+            "eprint!(",
+            "eprintln!(",
+            "indicatif",
+            "stdout()",
+            "stderr()",
+        ] {
+            assert!(
+                !text.contains(bad),
+                "{} uses {bad}: the library reports through values and callbacks",
+                path.display()
+            );
+        }
+    }
+}
+
 // ------------------------------------------------------- separation
 
 #[test]

@@ -194,7 +194,7 @@ impl EstimateFlags {
             })?,
             seed: self.seed,
             threads: self.threads,
-            progress: !self.quiet,
+            progress: super::bar::reporter(self.quiet),
             benchmarks: self.benchmarks()?,
             check: self.check.then(|| CheckOptions {
                 alpha: self.alpha,

@@ -6,6 +6,7 @@ use causeway::{Error, Setting};
 use clap::{Parser, Subcommand};
 use std::io::Write;
 
+mod bar;
 mod check;
 mod common;
 mod compare;

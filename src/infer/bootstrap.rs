@@ -39,13 +39,13 @@
 //! [`FAILURE_WARNING_SHARE`] of them failed.
 
 use crate::dist::{normal_cdf, normal_critical, normal_quantile};
+use crate::progress::Reporter;
 use crate::random::stream_rng;
 use crate::{Error, Result, Setting};
 use rand_chacha::ChaCha8Rng;
 use rand_chacha::rand_core::Rng;
 use rayon::prelude::*;
 use serde::Serialize;
-use std::io::IsTerminal;
 
 /// Above this many rows the jackknife is grouped into this many groups.
 pub const JACKKNIFE_MAX_GROUPS: usize = 500;
@@ -67,8 +67,8 @@ pub struct BootOpts {
     pub threads: usize,
     /// Confidence level of the intervals, in (0, 1).
     pub level: f64,
-    /// Show a progress bar on stderr (only when stderr is a terminal).
-    pub progress: bool,
+    /// Where the progress of the replicates is reported.
+    pub progress: Reporter,
     /// Compute the jackknife behind the BCa interval (min(n, 500) extra
     /// evaluations of the statistic); without it the BCa interval is absent.
     pub bca: bool,
@@ -81,7 +81,7 @@ impl Default for BootOpts {
             seed: 1,
             threads: 0,
             level: 0.95,
-            progress: false,
+            progress: Reporter::none(),
             bca: true,
         }
     }
@@ -306,22 +306,6 @@ fn check_opts(n: usize, opts: &BootOpts) -> Result<()> {
     Ok(())
 }
 
-fn progress_bar(opts: &BootOpts) -> Option<indicatif::ProgressBar> {
-    if !opts.progress || !std::io::stderr().is_terminal() {
-        return None;
-    }
-    let pb = indicatif::ProgressBar::with_draw_target(
-        Some(opts.replicates as u64),
-        indicatif::ProgressDrawTarget::stderr(),
-    );
-    if let Ok(style) = indicatif::ProgressStyle::with_template(
-        "bootstrap {bar:30} {pos}/{len} replicates, {per_sec}, {eta} left",
-    ) {
-        pb.set_style(style);
-    }
-    Some(pb)
-}
-
 /// Runs the bootstrap of `stat` over `n` rows.
 ///
 /// `stat` receives non-negative frequency weights of length n: integer
@@ -352,7 +336,8 @@ where
         .num_threads(opts.threads)
         .build()
         .map_err(|e| Error::Numerical(format!("could not start worker threads: {e}")))?;
-    let pb = progress_bar(opts);
+    let progress = &opts.progress;
+    progress.start("bootstrap replicates", opts.replicates as u64);
     let seed = opts.seed;
     let results: Vec<Result<Vec<f64>>> = pool.install(|| {
         (0..opts.replicates as u64)
@@ -360,16 +345,12 @@ where
             .map(|i| {
                 let w = resample_weights(n, seed, i);
                 let r = stat(&w);
-                if let Some(pb) = &pb {
-                    pb.inc(1);
-                }
+                progress.advance(1);
                 r
             })
             .collect()
     });
-    if let Some(pb) = &pb {
-        pb.finish_and_clear();
-    }
+    progress.finish();
     let (groups, membership) = if opts.bca {
         jackknife_groups(n, seed)
     } else {
