@@ -389,7 +389,7 @@ fn run_bootstrap(
             .map(|(m, tally)| {
                 m.point(p, Some(w), Some(&shared)).unwrap_or_else(|e| {
                     let mut t = tally.lock().unwrap_or_else(|poisoned| poisoned.into_inner());
-                    *t.entry(plain(&e)).or_default() += 1;
+                    *t.entry(e.to_string()).or_default() += 1;
                     f64::NAN
                 })
             })
@@ -419,7 +419,7 @@ fn run_bootstrap(
                 "{}: no {} interval ({}); the sandwich interval is kept",
                 item.estimate.method,
                 interval_label(opts.interval),
-                plain(&e)
+                e
             )),
         }
     }
@@ -465,7 +465,7 @@ fn sensitivity(
         Some(s) => match robustness_for(s, opts, &mut details) {
             Ok((rv, table)) => (Some(rv), Some(table)),
             Err(e) => {
-                details.notes.push(format!("no robustness value: {}", plain(&e)));
+                details.notes.push(format!("no robustness value: {e}"));
                 (None, None)
             }
         },
@@ -558,12 +558,6 @@ fn failure_reasons(tally: &BTreeMap<String, usize>) -> Option<String> {
         "why fits failed (bootstrap replicates and jackknife samples): {}{more}",
         shown.join("; ")
     ))
-}
-
-fn plain(e: &Error) -> String {
-    e.to_string()
-        .replace("--df ", "the residual degrees of freedom ")
-        .replace("--df", "the residual degrees of freedom")
 }
 
 fn interval_label(k: IntervalKind) -> &'static str {

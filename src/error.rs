@@ -60,6 +60,28 @@ pub enum Setting {
     Bootstrap,
     /// The interval level.
     Level,
+    /// The bound for clipping propensity scores.
+    Trim,
+    /// The covariates multiplied by the exposure in the outcome model.
+    Interact,
+    /// The significance level of a test or interval.
+    Alpha,
+    /// The share of the estimate a confounder would remove (robustness value).
+    Q,
+    /// A coefficient given as a summary number.
+    Estimate,
+    /// A standard error given as a summary number.
+    Se,
+    /// Residual degrees of freedom given as a summary number.
+    Df,
+    /// A hypothesized confounder's partial R² with the exposure.
+    R2Exposure,
+    /// A hypothesized confounder's partial R² with the outcome.
+    R2Outcome,
+    /// The confidence interval of a ratio given as summary numbers.
+    Ci,
+    /// A standardized mean difference given as a summary number.
+    Smd,
 }
 
 impl Setting {
@@ -72,6 +94,17 @@ impl Setting {
             Setting::Interval => "the bootstrap interval kind",
             Setting::Bootstrap => "the number of bootstrap replicates",
             Setting::Level => "the interval level",
+            Setting::Trim => "the propensity trimming bound",
+            Setting::Interact => "the exposure-product list",
+            Setting::Alpha => "the significance level",
+            Setting::Q => "the share of the estimate",
+            Setting::Estimate => "the coefficient",
+            Setting::Se => "the standard error",
+            Setting::Df => "the residual degrees of freedom",
+            Setting::R2Exposure => "the partial R² with the exposure",
+            Setting::R2Outcome => "the partial R² with the outcome",
+            Setting::Ci => "the interval",
+            Setting::Smd => "the standardized difference",
         }
     }
 }

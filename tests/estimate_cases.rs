@@ -5,6 +5,7 @@
 use crate::estimate_sim::{dataset, normal, rng};
 use causeway::Error;
 use causeway::data::Shape;
+use causeway::error::Setting;
 use causeway::estimate::{Estimand, Problem, Scale, Spec, applicable, diagnostics, method};
 use rand::RngExt;
 
@@ -169,7 +170,13 @@ fn continuous_exposure_by_regression_only() {
     }
     let mut s = spec(&["x"]);
     s.estimand = Estimand::Att;
-    assert!(matches!(Problem::build(&d, &s), Err(Error::Input(_))));
+    assert!(matches!(
+        Problem::build(&d, &s),
+        Err(Error::Option {
+            setting: Setting::Estimand,
+            ..
+        })
+    ));
 }
 
 #[test]
@@ -177,19 +184,31 @@ fn bad_specifications_are_input_errors() {
     let d = dataset(base(60, 7));
     let mut s = spec(&["x"]);
     s.scale = Scale::Ratio;
-    assert!(matches!(Problem::build(&d, &s), Err(Error::Input(m)) if m.contains("needs a binary outcome")));
+    assert!(
+        matches!(Problem::build(&d, &s), Err(Error::Option { setting: Setting::Scale, message }) if message.contains("needs a binary outcome"))
+    );
     let mut s = spec(&["x"]);
     s.interact = vec!["g".into()];
-    assert!(matches!(Problem::build(&d, &s), Err(Error::Input(m)) if m.contains("--interact 'g'")));
+    assert!(
+        matches!(Problem::build(&d, &s), Err(Error::Option { setting: Setting::Interact, message }) if message.starts_with("'g'"))
+    );
     let mut s = spec(&["x"]);
     s.trim = Some(0.7);
-    assert!(matches!(Problem::build(&d, &s), Err(Error::Input(m)) if m.contains("--trim")));
+    assert!(matches!(
+        Problem::build(&d, &s),
+        Err(Error::Option {
+            setting: Setting::Trim,
+            ..
+        })
+    ));
     let s = spec(&["nope"]);
     assert!(matches!(Problem::build(&d, &s), Err(Error::Input(m)) if m.contains("no column 'nope'")));
     let mut s = spec(&["x"]);
     s.estimand = Estimand::Att;
     let p = Problem::build(&d, &s).unwrap();
-    assert!(matches!(method("aipw").unwrap().estimate(&p), Err(Error::Input(m)) if m.contains("ATE only")));
+    assert!(
+        matches!(method("aipw").unwrap().estimate(&p), Err(Error::Option { setting: Setting::Method, message }) if message.contains("ATE only"))
+    );
     assert!(method("bogus").is_err());
 }
 

@@ -111,5 +111,16 @@ pub fn flag(setting: Setting) -> &'static str {
         Setting::Interval => "--interval",
         Setting::Bootstrap => "--bootstrap",
         Setting::Level => "--level",
+        Setting::Trim => "--trim",
+        Setting::Interact => "--interact",
+        Setting::Alpha => "--alpha",
+        Setting::Q => "--q",
+        Setting::Estimate => "--estimate",
+        Setting::Se => "--se",
+        Setting::Df => "--df",
+        Setting::R2Exposure => "--r2-exposure",
+        Setting::R2Outcome => "--r2-outcome",
+        Setting::Ci => "--ci",
+        Setting::Smd => "--smd",
     }
 }

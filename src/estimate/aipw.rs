@@ -30,10 +30,13 @@ impl Aipw {
     fn fits<'a>(&self, p: &'a Problem, freq: Option<&[f64]>, warm: Option<&Warm>) -> Result<Fits<'a>> {
         p.require_binary_exposure(self.name())?;
         if p.spec.estimand != Estimand::Ate {
-            return Err(Error::input(format!(
-                "--method aipw estimates the ATE only; use regression or ipw for the {}",
-                p.spec.estimand
-            )));
+            return Err(Error::option(
+                crate::error::Setting::Method,
+                format!(
+                    "aipw estimates the ATE only; use regression or ipw for the {}",
+                    p.spec.estimand
+                ),
+            ));
         }
         let ps = Propensity::fit(p, freq, warm)?;
         let om = OutcomeModel::fit(p, freq, warm)?;

@@ -17,6 +17,7 @@
 use super::contrast::{Arms, effect, interval};
 use super::{Estimand, Estimate, Means, Method, Problem, Scale, Warm, z_value};
 use crate::data::{Design, Kind, Setting, Shape};
+use crate::error::Setting as Opt;
 use crate::model::{Ols, linear_predictor};
 use crate::{Error, Result};
 use nalgebra::DVector;
@@ -31,16 +32,20 @@ enum Path {
 
 fn path(p: &Problem) -> Result<Path> {
     if p.mediators.is_empty() {
-        return Err(Error::input("--method frontdoor needs a front-door mediator set"));
+        return Err(Error::option(
+            Opt::Method,
+            "frontdoor needs a front-door mediator set",
+        ));
     }
     if p.spec.estimand != Estimand::Ate {
-        return Err(Error::input("--method frontdoor estimates the ATE only"));
+        return Err(Error::option(Opt::Method, "frontdoor estimates the ATE only"));
     }
     let discrete = |j: usize| !matches!(p.frame.kind(j), Kind::Numeric);
     if p.mediators.iter().all(|&m| discrete(m)) {
         if !p.binary_exposure() {
-            return Err(Error::input(
-                "--method frontdoor with discrete mediators needs a binary exposure",
+            return Err(Error::option(
+                Opt::Method,
+                "frontdoor with discrete mediators needs a binary exposure",
             ));
         }
         Ok(Path::Discrete)

@@ -8,6 +8,7 @@ use super::{Estimand, Scale};
 use crate::data::{
     Dataset, Design, DesignRows, ExposureCoding, Frame, Kind, Role, Sample, Setting, Shape, Store,
 };
+use crate::error::Setting as Opt;
 use crate::model::{ALIAS_TOL, Chol, accumulate};
 use crate::{Error, Result};
 use nalgebra::DMatrix;
@@ -364,27 +365,31 @@ impl Problem {
 
 fn check_spec(spec: &Spec) -> Result<()> {
     if !(spec.level > 0.0 && spec.level < 1.0) {
-        return Err(Error::input(format!(
-            "--level {}: must lie between 0 and 1",
-            spec.level
-        )));
+        return Err(Error::option(
+            Opt::Level,
+            format!("{}: must lie between 0 and 1", spec.level),
+        ));
     }
     if let Some(t) = spec.trim
         && !(0.0..0.5).contains(&t)
     {
-        return Err(Error::input(format!(
-            "--trim {t}: must be at least 0 and below 0.5"
-        )));
+        return Err(Error::option(
+            Opt::Trim,
+            format!("{t}: must be at least 0 and below 0.5"),
+        ));
     }
     if spec.exposure == spec.outcome {
         return Err(Error::input("the exposure and the outcome are the same column"));
     }
     for i in &spec.interact {
         if !spec.covariates.contains(i) {
-            return Err(Error::input(format!(
-                "--interact '{i}' is not in the adjustment set ({})",
-                spec.covariates.join(", ")
-            )));
+            return Err(Error::option(
+                Opt::Interact,
+                format!(
+                    "'{i}' is not in the adjustment set ({})",
+                    spec.covariates.join(", ")
+                ),
+            ));
         }
     }
     let mut all: Vec<&String> = spec.covariates.iter().chain(&spec.mediators).collect();
@@ -523,17 +528,23 @@ fn check_kinds(frame: &Frame, spec: &Spec, outcome: usize, exposure: usize) -> R
         )));
     }
     if spec.scale != Scale::Difference && !binary(outcome) {
-        return Err(Error::input(format!(
-            "--scale {} needs a binary outcome; '{}' takes more than two values",
-            spec.scale, spec.outcome
-        )));
+        return Err(Error::option(
+            Opt::Scale,
+            format!(
+                "{} needs a binary outcome; '{}' takes more than two values",
+                spec.scale, spec.outcome
+            ),
+        ));
     }
     if spec.estimand != Estimand::Ate && !binary(exposure) {
-        return Err(Error::input(format!(
-            "--estimand {} needs a binary exposure; '{}' takes more than two values",
-            spec.estimand.to_string().to_lowercase(),
-            spec.exposure
-        )));
+        return Err(Error::option(
+            Opt::Estimand,
+            format!(
+                "{} needs a binary exposure; '{}' takes more than two values",
+                spec.estimand.to_string().to_lowercase(),
+                spec.exposure
+            ),
+        ));
     }
     if spec.contrast.is_some() && binary(exposure) {
         return Err(Error::input(

@@ -23,6 +23,7 @@
 //!   se(d) = se / SD(outcome), then as for d.
 
 use crate::dist::normal_critical;
+use crate::error::Setting;
 use crate::{Error, Result};
 use serde::Serialize;
 
@@ -74,25 +75,27 @@ pub fn evalue_of(rr: f64) -> Result<f64> {
 /// The E-value of the confidence limit nearest the null for a risk ratio
 /// `rr` with interval `(lo, hi)`; 1 when the interval includes 1.
 pub fn evalue_of_limit(rr: f64, lo: f64, hi: f64) -> Result<f64> {
-    check_ratio_ci(rr, lo, hi, "--ci")?;
+    check_ratio_ci(rr, lo, hi)?;
     if lo <= 1.0 && hi >= 1.0 {
         return Ok(1.0);
     }
     if rr > 1.0 { evalue_of(lo) } else { evalue_of(hi) }
 }
 
-fn check_ratio_ci(est: f64, lo: f64, hi: f64, flag: &str) -> Result<()> {
+fn check_ratio_ci(est: f64, lo: f64, hi: f64) -> Result<()> {
     for v in [est, lo, hi] {
         if !(v > 0.0 && v.is_finite()) {
-            return Err(Error::input(format!(
-                "{flag}: ratio estimates and limits must be positive and finite (got {v})"
-            )));
+            return Err(Error::option(
+                Setting::Ci,
+                format!("and its estimate must be positive and finite ratios (got {v})"),
+            ));
         }
     }
     if !(lo <= est && est <= hi) {
-        return Err(Error::input(format!(
-            "{flag}: the interval {lo},{hi} must satisfy lower <= estimate ({est}) <= upper"
-        )));
+        return Err(Error::option(
+            Setting::Ci,
+            format!("{lo},{hi} must satisfy lower <= estimate ({est}) <= upper"),
+        ));
     }
     Ok(())
 }
@@ -115,7 +118,7 @@ fn from_rr(scale: &str, rr: f64, ci: Option<(f64, f64)>) -> Result<EValue> {
 /// E-value for a risk ratio with an optional confidence interval.
 pub fn risk_ratio(rr: f64, ci: Option<(f64, f64)>) -> Result<EValue> {
     if let Some((lo, hi)) = ci {
-        check_ratio_ci(rr, lo, hi, "--ci")?;
+        check_ratio_ci(rr, lo, hi)?;
     }
     from_rr(SCALE_RR, rr, ci)
 }
@@ -125,7 +128,7 @@ pub fn risk_ratio(rr: f64, ci: Option<(f64, f64)>) -> Result<EValue> {
 /// read as a risk ratio.
 pub fn odds_ratio(or: f64, ci: Option<(f64, f64)>, common_outcome: bool) -> Result<EValue> {
     if let Some((lo, hi)) = ci {
-        check_ratio_ci(or, lo, hi, "--ci")?;
+        check_ratio_ci(or, lo, hi)?;
     } else {
         evalue_of(or)?;
     }
@@ -151,7 +154,7 @@ pub fn hazard_to_risk_ratio(hr: f64) -> f64 {
 /// [`hazard_to_risk_ratio`]; otherwise it is read as a risk ratio.
 pub fn hazard_ratio(hr: f64, ci: Option<(f64, f64)>, common_outcome: bool) -> Result<EValue> {
     if let Some((lo, hi)) = ci {
-        check_ratio_ci(hr, lo, hi, "--ci")?;
+        check_ratio_ci(hr, lo, hi)?;
     } else {
         evalue_of(hr)?;
     }
@@ -167,14 +170,13 @@ pub fn hazard_ratio(hr: f64, ci: Option<(f64, f64)>, common_outcome: bool) -> Re
 /// RR ≈ exp(0.91 d) and, for the `level` interval, exp(0.91 (d ∓ z se)).
 pub fn standardized_difference(d: f64, se: f64, level: f64) -> Result<EValue> {
     if !d.is_finite() {
-        return Err(Error::input(format!(
-            "--smd: the standardized difference must be finite (got {d})"
-        )));
+        return Err(Error::option(Setting::Smd, format!("must be finite (got {d})")));
     }
     if !(se > 0.0 && se.is_finite()) {
-        return Err(Error::input(format!(
-            "--se: the standard error must be positive and finite (got {se})"
-        )));
+        return Err(Error::option(
+            Setting::Se,
+            format!("must be positive and finite (got {se})"),
+        ));
     }
     let z = normal_critical(level)?;
     let rr = (0.91 * d).exp();

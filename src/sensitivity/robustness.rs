@@ -40,6 +40,7 @@
 //! the R2_yz bound.
 
 use crate::dist::t_critical;
+use crate::error::Setting;
 use crate::{Error, Result};
 use serde::Serialize;
 
@@ -56,22 +57,25 @@ pub struct Coefficient {
 
 impl Coefficient {
     /// A checked coefficient: finite estimate, positive standard error,
-    /// df above 1. Errors name the flags of `causeway sensitivity`.
+    /// df above 1. Errors name the setting ([`Setting`]) at fault.
     pub fn new(estimate: f64, se: f64, df: f64) -> Result<Self> {
         if !estimate.is_finite() {
-            return Err(Error::input(format!(
-                "--estimate must be a finite number (got {estimate})"
-            )));
+            return Err(Error::option(
+                Setting::Estimate,
+                format!("must be a finite number (got {estimate})"),
+            ));
         }
         if !(se > 0.0 && se.is_finite()) {
-            return Err(Error::input(format!(
-                "--se must be positive and finite (got {se})"
-            )));
+            return Err(Error::option(
+                Setting::Se,
+                format!("must be positive and finite (got {se})"),
+            ));
         }
         if !(df > 1.0 && df.is_finite()) {
-            return Err(Error::input(format!(
-                "--df must be above 1: the adjusted interval uses df - 1 (got {df})"
-            )));
+            return Err(Error::option(
+                Setting::Df,
+                format!("must be above 1: the adjusted interval uses df - 1 (got {df})"),
+            ));
         }
         Ok(Coefficient { estimate, se, df })
     }
@@ -125,7 +129,10 @@ fn check_alpha(alpha: f64) -> Result<()> {
     if alpha > 0.0 && alpha < 1.0 {
         Ok(())
     } else {
-        Err(Error::input(format!("--alpha must be in (0, 1) (got {alpha})")))
+        Err(Error::option(
+            Setting::Alpha,
+            format!("must be in (0, 1) (got {alpha})"),
+        ))
     }
 }
 
@@ -133,9 +140,10 @@ fn check_q(q: f64) -> Result<()> {
     if q > 0.0 && q.is_finite() {
         Ok(())
     } else {
-        Err(Error::input(format!(
-            "--q must be a positive proportion of the estimate (got {q})"
-        )))
+        Err(Error::option(
+            Setting::Q,
+            format!("must be a positive proportion of the estimate (got {q})"),
+        ))
     }
 }
 
@@ -180,11 +188,11 @@ pub struct Adjusted {
     pub bias: f64,
 }
 
-fn check_r2(r: f64, flag: &str) -> Result<()> {
+fn check_r2(r: f64, setting: Setting) -> Result<()> {
     if (0.0..1.0).contains(&r) {
         Ok(())
     } else {
-        Err(Error::input(format!("{flag} must be in [0, 1) (got {r})")))
+        Err(Error::option(setting, format!("must be in [0, 1) (got {r})")))
     }
 }
 
@@ -193,8 +201,8 @@ fn check_r2(r: f64, flag: &str) -> Result<()> {
 /// outcome. The estimate is moved towards zero (its size reduced), the
 /// direction in which a confounder would have inflated it.
 pub fn adjust(c: &Coefficient, r2_exposure: f64, r2_outcome: f64, alpha: f64) -> Result<Adjusted> {
-    check_r2(r2_exposure, "--r2-exposure")?;
-    check_r2(r2_outcome, "--r2-outcome")?;
+    check_r2(r2_exposure, Setting::R2Exposure)?;
+    check_r2(r2_outcome, Setting::R2Outcome)?;
     check_alpha(alpha)?;
     let (rdz, ryz, df) = (r2_exposure, r2_outcome, c.df);
     let bias = c.se * (df * ryz * rdz / (1.0 - rdz)).sqrt();
@@ -657,33 +665,39 @@ mod tests {
     }
 
     #[test]
-    fn bad_inputs_name_the_flag() {
+    fn bad_inputs_name_the_setting() {
+        let setting = |r: Result<Coefficient>| match r {
+            Err(Error::Option { setting, .. }) => Some(setting),
+            _ => None,
+        };
+        assert_eq!(setting(Coefficient::new(1.0, 1.0, 1.0)), Some(Setting::Df));
+        assert_eq!(
+            setting(Coefficient::new(f64::NAN, 1.0, 9.0)),
+            Some(Setting::Estimate)
+        );
+        assert_eq!(setting(Coefficient::new(1.0, 0.0, 9.0)), Some(Setting::Se));
         let e = Coefficient::new(1.0, 1.0, 1.0).unwrap_err().to_string();
-        assert!(e.contains("--df"));
+        assert!(
+            e.starts_with("the residual degrees of freedom must be above 1"),
+            "{e}"
+        );
         let c = Coefficient::new(1.0, 0.2, 30.0).unwrap();
-        assert!(
-            adjust(&c, 1.0, 0.1, 0.05)
-                .unwrap_err()
-                .to_string()
-                .contains("--r2-exposure")
+        let of = |e: Error| match e {
+            Error::Option { setting, .. } => Some(setting),
+            _ => None,
+        };
+        assert_eq!(
+            of(adjust(&c, 1.0, 0.1, 0.05).unwrap_err()),
+            Some(Setting::R2Exposure)
         );
-        assert!(
-            adjust(&c, 0.1, -0.1, 0.05)
-                .unwrap_err()
-                .to_string()
-                .contains("--r2-outcome")
+        assert_eq!(
+            of(adjust(&c, 0.1, -0.1, 0.05).unwrap_err()),
+            Some(Setting::R2Outcome)
         );
-        assert!(
-            robustness_value(&c, 1.0, 1.0)
-                .unwrap_err()
-                .to_string()
-                .contains("--alpha")
+        assert_eq!(
+            of(robustness_value(&c, 1.0, 1.0).unwrap_err()),
+            Some(Setting::Alpha)
         );
-        assert!(
-            robustness_value(&c, 0.0, 0.05)
-                .unwrap_err()
-                .to_string()
-                .contains("--q")
-        );
+        assert_eq!(of(robustness_value(&c, 0.0, 0.05).unwrap_err()), Some(Setting::Q));
     }
 }
