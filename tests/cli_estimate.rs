@@ -1,7 +1,7 @@
 //! `causeway estimate` through the binary: the contract's JSON keys, the
 //! NHEFS published values, the reproducibility stamp, and the report bundle.
 
-use crate::helpers::{data, repo, run_in};
+use crate::helpers::{DEMO_QUESTION, data, repo, run_in};
 use serde_json::Value;
 use sha2::{Digest, Sha256};
 
@@ -154,25 +154,18 @@ fn json_has_the_contract_keys_and_stamp() {
 fn bundle_files_are_written_and_well_formed() {
     let dir = tempfile::tempdir().unwrap();
     let out = dir.path().join("report");
-    let r = run_in(
-        &repo(""),
-        &[
-            "estimate",
-            "--graph",
-            "demo-data/main.graph",
-            "--data",
-            "demo-data/study.csv",
-            "--exposure",
-            "enrolled",
-            "--outcome",
-            "pain_days",
-            "--categorical",
-            "role",
-            "--quiet",
-            "--out",
-            out.to_str().unwrap(),
-        ],
-    );
+    let mut args = vec![
+        "estimate",
+        "--graph",
+        "demo-data/main.graph",
+        "--data",
+        "demo-data/study.csv",
+        "--quiet",
+        "--out",
+        out.to_str().unwrap(),
+    ];
+    args.extend(DEMO_QUESTION);
+    let r = run_in(&repo(""), &args);
     assert_eq!(r.code, 0, "{}", r.stderr);
     let md = std::fs::read_to_string(out.join("report.md")).unwrap();
     for part in [

@@ -3,7 +3,7 @@
 //! names, a closed standard output, and a covariate that separates the
 //! exposure. The rules are causeway's own (common practice, no source).
 
-use crate::helpers::{Run, repo, write};
+use crate::helpers::{DEMO_QUESTION, Run, repo, write};
 use crate::robust_data::{cw, expect};
 use serde_json::Value;
 use std::path::Path;
@@ -34,20 +34,8 @@ fn demo_recoded(dir: &Path, name: &str, mut code: impl FnMut(&str) -> String) ->
 
 fn estimate(dir: &Path, data: &str, extra: &[&str]) -> Run {
     let graph = repo("demo-data/main.graph").display().to_string();
-    let mut args = vec![
-        "estimate",
-        "--graph",
-        &graph,
-        "--data",
-        data,
-        "--exposure",
-        "enrolled",
-        "--outcome",
-        "pain_days",
-        "--categorical",
-        "role",
-        "--quiet",
-    ];
+    let mut args = vec!["estimate", "--graph", &graph, "--data", data, "--quiet"];
+    args.extend(DEMO_QUESTION);
     args.extend_from_slice(extra);
     cw(dir, &args)
 }
