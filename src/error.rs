@@ -82,6 +82,16 @@ pub enum Setting {
     Ci,
     /// A standardized mean difference given as a summary number.
     Smd,
+    /// The exposure.
+    Exposure,
+    /// The outcome.
+    Outcome,
+    /// Columns treated as unobserved.
+    Latent,
+    /// The adjustment set.
+    Adjust,
+    /// Columns treated as categorical.
+    Categorical,
 }
 
 impl Setting {
@@ -105,6 +115,11 @@ impl Setting {
             Setting::R2Outcome => "the partial R² with the outcome",
             Setting::Ci => "the interval",
             Setting::Smd => "the standardized difference",
+            Setting::Exposure => "the exposure",
+            Setting::Outcome => "the outcome",
+            Setting::Latent => "the unobserved list",
+            Setting::Adjust => "the adjustment set",
+            Setting::Categorical => "the categorical list",
         }
     }
 }

@@ -4,6 +4,7 @@
 //! exposure and outcome, the identification under the graph, and the set
 //! the estimate will use (adjustment set or front-door set).
 
+use crate::error::Setting;
 use crate::error::nearest_names;
 use crate::graph::{Graph, Names, Node, set_text};
 use crate::identify::{Identification, Strategy, identify};
@@ -42,10 +43,8 @@ pub fn split_list(s: &str) -> Vec<String> {
 }
 
 /// Why node `v` is unobserved, for messages.
-fn why_latent(g: &Graph, v: Node, marked: &[Node], data: Option<&str>) -> String {
-    if marked.contains(&v) {
-        "it is marked unobserved by --latent".to_string()
-    } else if g.bidirected_pair(v).is_some() {
+fn why_latent(g: &Graph, v: Node, data: Option<&str>) -> String {
+    if g.bidirected_pair(v).is_some() {
         "it is a latent node made by '<->'".to_string()
     } else if let Some(d) = data {
         format!("it is not a column of {d}")
@@ -87,24 +86,40 @@ impl Roles {
         }
         let mut marked = Vec::new();
         for name in latent {
-            let v = node(&graph, name, "--latent")?;
+            let v = node(&graph, name, Setting::Latent)?;
             graph.set_latent(v, true);
             marked.push(v);
         }
-        let x = node(&graph, exposure, "--exposure")?;
-        let y = node(&graph, outcome, "--outcome")?;
+        let x = node(&graph, exposure, Setting::Exposure)?;
+        let y = node(&graph, outcome, Setting::Outcome)?;
         if x == y {
-            return Err(Error::input(format!(
-                "--exposure and --outcome are the same node '{exposure}'"
-            )));
+            return Err(Error::option(
+                Setting::Outcome,
+                format!("is the same node '{exposure}' as the exposure"),
+            ));
         }
-        for (v, flag) in [(x, "--exposure"), (y, "--outcome")] {
+        for (v, setting, role) in [
+            (x, Setting::Exposure, "exposure"),
+            (y, Setting::Outcome, "outcome"),
+        ] {
+            if marked.contains(&v) {
+                return Err(Error::option(
+                    Setting::Latent,
+                    format!(
+                        "lists '{}', the {role}; the {role} must be observed",
+                        graph.name(v)
+                    ),
+                ));
+            }
             if graph.is_latent(v) {
-                return Err(Error::input(format!(
-                    "{flag} '{}' is unobserved: {}",
-                    graph.name(v),
-                    why_latent(&graph, v, &marked, data)
-                )));
+                return Err(Error::option(
+                    setting,
+                    format!(
+                        "'{}' is unobserved: {}",
+                        graph.name(v),
+                        why_latent(&graph, v, data)
+                    ),
+                ));
             }
         }
         Ok(Roles {
@@ -119,16 +134,18 @@ impl Roles {
     pub fn adjust_nodes(&self, names: &[String]) -> Result<Vec<Node>> {
         let mut set = Vec::new();
         for name in names {
-            let v = node(&self.graph, name, "--adjust")?;
+            let v = node(&self.graph, name, Setting::Adjust)?;
             if v == self.exposure || v == self.outcome {
-                return Err(Error::input(format!(
-                    "--adjust '{name}' is the exposure or the outcome; list other variables"
-                )));
+                return Err(Error::option(
+                    Setting::Adjust,
+                    format!("'{name}' is the exposure or the outcome; list other variables"),
+                ));
             }
             if self.graph.is_latent(v) {
-                return Err(Error::input(format!(
-                    "--adjust '{name}' is unobserved, so it cannot be adjusted for"
-                )));
+                return Err(Error::option(
+                    Setting::Adjust,
+                    format!("'{name}' is unobserved, so it cannot be adjusted for"),
+                ));
             }
             if !set.contains(&v) {
                 set.push(v);
@@ -139,12 +156,15 @@ impl Roles {
 }
 
 /// The node called `name`, or an input error naming the flag.
-pub fn node(g: &Graph, name: &str, flag: &str) -> Result<Node> {
+pub fn node(g: &Graph, name: &str, setting: Setting) -> Result<Node> {
     g.node(name).ok_or_else(|| {
-        Error::input(format!(
-            "{flag} '{name}' is not a node of the graph (names are matched exactly, case-sensitive){}",
-            nearest_names(name, (0..g.len()).map(|v| g.name(v)))
-        ))
+        Error::option(
+            setting,
+            format!(
+                "'{name}' is not a node of the graph (names are matched exactly, case-sensitive){}",
+                nearest_names(name, (0..g.len()).map(|v| g.name(v)))
+            ),
+        )
     })
 }
 

@@ -277,7 +277,7 @@ fn input_errors_name_the_flag() {
         ),
         (
             vec!["--exposure", "X", "--outcome", "Y", "--latent", "Y"],
-            "--outcome",
+            "--latent lists 'Y', the outcome",
         ),
         (
             vec!["--exposure", "X", "--outcome", "Y", "--adjust", "X"],

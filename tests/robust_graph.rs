@@ -89,7 +89,11 @@ fn unobserved_exposure_or_outcome() {
     let mut args = XY.to_vec();
     args.extend_from_slice(&["--latent", "y"]);
     let r = identify(CONFOUNDED.as_bytes(), &args);
-    expect(&r, 2, &["--outcome 'y' is unobserved", "--latent"]);
+    expect(
+        &r,
+        2,
+        &["--latent lists 'y', the outcome; the outcome must be observed"],
+    );
     // Marked latent in the graph file.
     let text = format!("{CONFOUNDED}y : latent\n");
     let r = estimate(text.as_bytes(), DATA, &XY);
@@ -99,7 +103,7 @@ fn unobserved_exposure_or_outcome() {
 #[test]
 fn exposure_and_outcome_the_same_node() {
     let r = identify(CONFOUNDED.as_bytes(), &["--exposure", "x", "--outcome", "x"]);
-    expect(&r, 2, &["--exposure and --outcome are the same node 'x'"]);
+    expect(&r, 2, &["--outcome is the same node 'x' as the exposure"]);
     let r = estimate(
         CONFOUNDED.as_bytes(),
         DATA,

@@ -28,6 +28,7 @@ pub use implications::{Implication, implications};
 pub use pair::{CiTest, Outcome, PairResult, ci_test};
 
 use crate::data::Dataset;
+use crate::error::Setting;
 use crate::graph::{Graph, Names, set_text};
 use crate::{Error, Result};
 use rayon::prelude::*;
@@ -165,7 +166,7 @@ fn observed_graph(g: &Graph, data: &Dataset, latent: &[String]) -> Result<Graph>
         }
     }
     for name in latent {
-        let v = crate::plan::node(&g, name, "--latent")?;
+        let v = crate::plan::node(&g, name, Setting::Latent)?;
         g.set_latent(v, true);
     }
     Ok(g)
@@ -176,19 +177,22 @@ fn observed_graph(g: &Graph, data: &Dataset, latent: &[String]) -> Result<Graph>
 /// those in `opts.latent`.
 pub fn run(g: &Graph, data: &Dataset, opts: &CheckOptions) -> Result<CheckReport> {
     if !(opts.alpha > 0.0 && opts.alpha < 1.0) {
-        return Err(Error::input(format!(
-            "--alpha must be between 0 and 1 (got {})",
-            opts.alpha
-        )));
+        return Err(Error::option(
+            Setting::Alpha,
+            format!("must be between 0 and 1 (got {})", opts.alpha),
+        ));
     }
     for name in &opts.categorical {
-        crate::plan::node(g, name, "--categorical")?;
+        crate::plan::node(g, name, Setting::Categorical)?;
         if !data.has_column(name) {
-            return Err(Error::input(format!(
-                "--categorical '{name}' is not a column of {}{}",
-                data.source(),
-                crate::error::nearest_names(name, data.names().iter().map(String::as_str))
-            )));
+            return Err(Error::option(
+                Setting::Categorical,
+                format!(
+                    "'{name}' is not a column of {}{}",
+                    data.source(),
+                    crate::error::nearest_names(name, data.names().iter().map(String::as_str))
+                ),
+            ));
         }
     }
     let g = observed_graph(g, data, &opts.latent)?;

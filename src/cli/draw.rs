@@ -2,6 +2,7 @@
 
 use super::common::{DelimiterArg, load_graph, print_stdout, resolve, split_list, write_atomic};
 use causeway::Result;
+use causeway::error::Setting;
 use causeway::report::graph_figure::{self, Marks};
 use std::path::PathBuf;
 
@@ -67,24 +68,24 @@ pub fn run(a: Args) -> Result<i32> {
         }
     }
     for name in a.latent.as_deref().map(split_list).unwrap_or_default() {
-        let v = resolve(&g, &name, "--latent")?;
+        let v = resolve(&g, &name, Setting::Latent)?;
         g.set_latent(v, true);
     }
     let mut marks = Marks {
         exposure: a
             .exposure
             .as_deref()
-            .map(|n| resolve(&g, n, "--exposure"))
+            .map(|n| resolve(&g, n, Setting::Exposure))
             .transpose()?,
         outcome: a
             .outcome
             .as_deref()
-            .map(|n| resolve(&g, n, "--outcome"))
+            .map(|n| resolve(&g, n, Setting::Outcome))
             .transpose()?,
         adjust: Vec::new(),
     };
     for name in a.adjust.as_deref().map(split_list).unwrap_or_default() {
-        marks.adjust.push(resolve(&g, &name, "--adjust")?);
+        marks.adjust.push(resolve(&g, &name, Setting::Adjust)?);
     }
     let text = match a.format.as_str() {
         "dot" => graph_figure::dot(&g, &marks),

@@ -6,6 +6,7 @@ use super::common::{DelimiterArg, load_graph};
 use causeway::analysis::Options;
 use causeway::check::CheckOptions;
 use causeway::data::{Dataset, Delimiter, ReadOptions, Shape};
+use causeway::error::Setting;
 use causeway::estimate::{Estimand, Scale, Spec};
 use causeway::graph::Graph;
 use causeway::infer::bootstrap::IntervalKind;
@@ -281,12 +282,12 @@ impl EstimateFlags {
             &self.exposure,
             &self.outcome,
         )?;
-        for (names, flag) in [
-            (&self.categorical, "--categorical"),
-            (&self.interact, "--interact"),
+        for (names, setting) in [
+            (&self.categorical, Setting::Categorical),
+            (&self.interact, Setting::Interact),
         ] {
             for name in list(names) {
-                causeway::plan::node(&roles.graph, &name, flag)?;
+                causeway::plan::node(&roles.graph, &name, setting)?;
             }
         }
         Plan::new(roles, &AdjustChoice::parse(&self.adjust), self.force_adjust)

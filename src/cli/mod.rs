@@ -122,5 +122,10 @@ pub fn flag(setting: Setting) -> &'static str {
         Setting::R2Outcome => "--r2-outcome",
         Setting::Ci => "--ci",
         Setting::Smd => "--smd",
+        Setting::Exposure => "--exposure",
+        Setting::Outcome => "--outcome",
+        Setting::Latent => "--latent",
+        Setting::Adjust => "--adjust",
+        Setting::Categorical => "--categorical",
     }
 }

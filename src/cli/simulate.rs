@@ -2,6 +2,7 @@
 //! graph file, and the true effect of an exposure on an outcome.
 
 use super::common::{load_graph, print_bytes, refuse_inputs, resolve, split_list, write_atomic};
+use causeway::error::Setting;
 use causeway::simulate::{self, Contrast, Method, Model, Options, Truth, TruthOptions};
 use causeway::{Error, Result};
 use std::path::PathBuf;
@@ -92,7 +93,7 @@ pub fn run(a: Args) -> Result<i32> {
     }
     let mut g = load_graph(&a.graph, a.quiet)?;
     for name in a.latent.as_deref().map(split_list).unwrap_or_default() {
-        let v = resolve(&g, &name, "--latent")?;
+        let v = resolve(&g, &name, Setting::Latent)?;
         g.set_latent(v, true);
     }
     if g.observed().is_empty() {
@@ -102,7 +103,10 @@ pub fn run(a: Args) -> Result<i32> {
         )));
     }
     let roles = match (&a.exposure, &a.outcome) {
-        (Some(x), Some(y)) => Some((resolve(&g, x, "--exposure")?, resolve(&g, y, "--outcome")?)),
+        (Some(x), Some(y)) => Some((
+            resolve(&g, x, Setting::Exposure)?,
+            resolve(&g, y, Setting::Outcome)?,
+        )),
         _ => None,
     };
     let model = Model::new(
