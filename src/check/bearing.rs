@@ -114,14 +114,23 @@ fn change(g: Graph, plan: &Plan, choice: &AdjustChoice) -> Option<String> {
     None
 }
 
+/// Which nodes lie on a directed path from the exposure to the outcome
+/// (descendants of the one and ancestors of the other).
+fn on_causal_path(plan: &Plan) -> Vec<bool> {
+    let g = &plan.roles.graph;
+    let de_x = g.descendants(&[plan.roles.exposure]);
+    let an_y = g.ancestors(&[plan.roles.outcome]);
+    de_x.iter().zip(&an_y).map(|(&d, &a)| d && a).collect()
+}
+
 /// Whether the claim that `a` and `b` are independent bears on the set
 /// `plan` uses (chosen by `choice`); see the module documentation.
-pub fn bearing(plan: &Plan, choice: &AdjustChoice, a: Node, b: Node) -> Bearing {
+/// `on_path` marks the nodes on a causal path ([`on_causal_path`]),
+/// computed once for all claims.
+fn bearing_on(plan: &Plan, choice: &AdjustChoice, on_path: &[bool], a: Node, b: Node) -> Bearing {
     let g = &plan.roles.graph;
     let (x, y) = (plan.roles.exposure, plan.roles.outcome);
-    let frontdoor = plan.frontdoor_set.clone().unwrap_or_default();
-    let de_x = g.descendants(&[x]);
-    let an_y = g.ancestors(&[y]);
+    let frontdoor = plan.frontdoor_set.as_deref().unwrap_or_default();
     for v in [a, b] {
         let name = g.name(v);
         let why = if v == x {
@@ -130,7 +139,7 @@ pub fn bearing(plan: &Plan, choice: &AdjustChoice, a: Node, b: Node) -> Bearing 
             "it involves the outcome".to_string()
         } else if frontdoor.iter().any(|m| m == name) {
             format!("it involves {name}, a member of the front-door set")
-        } else if de_x[v] && an_y[v] {
+        } else if on_path[v] {
             format!(
                 "it involves {name}, on a causal path from {} to {}",
                 g.name(x),
@@ -179,11 +188,12 @@ pub fn bearing(plan: &Plan, choice: &AdjustChoice, a: Node, b: Node) -> Bearing 
 /// made under the same graph, with the same unobserved nodes.
 pub fn judge(report: &mut CheckReport, plan: &Plan, choice: &AdjustChoice) {
     let g = &plan.roles.graph;
+    let on_path = on_causal_path(plan);
     let found: Vec<Option<Bearing>> = report
         .implications
         .par_iter()
         .map(|i| match (g.node(&i.a), g.node(&i.b)) {
-            (Some(a), Some(b)) => Some(bearing(plan, choice, a, b)),
+            (Some(a), Some(b)) => Some(bearing_on(plan, choice, &on_path, a, b)),
             _ => None,
         })
         .collect();
@@ -221,7 +231,13 @@ mod tests {
 
     fn judged(p: &Plan, a: &str, b: &str) -> Bearing {
         let g = &p.roles.graph;
-        bearing(p, &AdjustChoice::Optimal, g.node(a).unwrap(), g.node(b).unwrap())
+        bearing_on(
+            p,
+            &AdjustChoice::Optimal,
+            &on_causal_path(p),
+            g.node(a).unwrap(),
+            g.node(b).unwrap(),
+        )
     }
 
     // Three covariates pointing into x and y, none linked to another: a
@@ -252,7 +268,7 @@ mod tests {
         let p = Plan::new(roles.clone(), &AdjustChoice::Minimal, false).unwrap();
         assert_eq!(p.adjustment_set, Some(Vec::new()));
         let (u, z) = (roles.graph.node("u").unwrap(), roles.graph.node("z").unwrap());
-        let b = bearing(&p, &AdjustChoice::Minimal, u, z);
+        let b = bearing_on(&p, &AdjustChoice::Minimal, &on_causal_path(&p), u, z);
         assert!(b.bears, "{b:?}");
         assert_eq!(
             b.reason,
@@ -261,7 +277,7 @@ mod tests {
         );
         let p = Plan::new(roles, &AdjustChoice::Optimal, false).unwrap();
         assert_eq!(p.adjustment_set, Some(vec!["z".to_string()]));
-        let b = bearing(&p, &AdjustChoice::Optimal, u, z);
+        let b = bearing_on(&p, &AdjustChoice::Optimal, &on_causal_path(&p), u, z);
         assert!(!b.bears, "{b:?}");
     }
 

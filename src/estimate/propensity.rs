@@ -152,7 +152,6 @@ pub(crate) fn separating_terms(p: &Problem, coef: &DVector<f64>) -> String {
                         })
                 };
                 // (+ 0.0 shows a negative zero as 0.)
-                // (+ 0.0 shows a negative zero as 0.)
                 let (e, u) = (range(1.0), range(0.0));
                 if e.0 >= u.1 {
                     alone.push(format!(
