@@ -9,14 +9,16 @@
 use crate::check::{self, CheckOptions, Correction};
 use crate::data::{Dataset, ExposureCoding};
 use crate::estimate::{
-    self, Diagnostics, Estimand, Estimate, Method, Problem, Scale, SensitivityInputs, Spec, Warm,
+    self, ContrastSpec, Diagnostics, DoseDiagnostics, Estimand, Estimate, Estimator,
+    ExposureKind, LevelDiagnostics, Problem, Scale, SensitivityInputs, Spec, Target, Targets,
 };
+use crate::learn::{Fits, Needs};
 use crate::graph::{Names, set_text};
 use crate::identify::Strategy;
 use crate::infer::bootstrap::{self, BootOpts, BootstrapBlock, IntervalKind};
 use crate::plan::Plan;
 use crate::progress::Reporter;
-use crate::sensitivity::SensitivityBlock;
+use crate::sensitivity::{ContrastSensitivity, SensitivityBlock};
 use crate::sensitivity::evalue::{self, EValue};
 use crate::sensitivity::robustness::{
     self, BenchmarkChoice, BenchmarkTable, Coefficient, Covariate, DEFAULT_BENCHMARKS, RobustnessValue,
@@ -94,6 +96,9 @@ pub struct Item {
     /// The analytic (sandwich) interval, kept when the bootstrap replaced it.
     #[serde(skip)]
     pub analytic_ci: [f64; 2],
+    /// The contrast the row reports.
+    #[serde(skip)]
+    pub spec: Option<ContrastSpec>,
 }
 
 /// Sensitivity details the text and figures need beyond the JSON block.
@@ -125,6 +130,12 @@ pub struct Analysis {
     /// Propensity, weight and balance diagnostics (binary exposure with an
     /// adjustment set).
     pub diagnostics: Option<Diagnostics>,
+    /// Per-level diagnostics of a categorical exposure.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub level_diagnostics: Option<Vec<LevelDiagnostics>>,
+    /// Weight diagnostics of a continuous exposure.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub dose_diagnostics: Option<DoseDiagnostics>,
     /// E-value and robustness value.
     pub sensitivity: SensitivityBlock,
     /// Everything the reader should know.
@@ -138,12 +149,49 @@ pub struct Analysis {
     /// The outcome is binary.
     #[serde(skip)]
     pub binary_outcome: bool,
+    /// Binary, categorical or continuous exposure.
+    #[serde(skip)]
+    pub kind: ExposureKind,
     /// How each method was carried out, in words.
     #[serde(skip)]
     pub notes: Vec<String>,
     /// The graph's implications tested on the data (with `--check`).
     #[serde(skip_serializing_if = "Option::is_none")]
     pub check: Option<CheckSummary>,
+    /// Dose-response curves (continuous exposure), one per method.
+    #[serde(skip_serializing_if = "Vec::is_empty")]
+    pub curves: Vec<Curve>,
+    /// How each method was described for a methods paragraph, in order.
+    #[serde(skip)]
+    pub methods_sentences: Vec<String>,
+}
+
+/// One method's dose-response curve.
+#[derive(Debug, Clone, Serialize)]
+pub struct Curve {
+    /// The method.
+    pub method: String,
+    /// `dose-response`.
+    pub kind: &'static str,
+    /// The exposure level (survival curves only; null here).
+    pub level: Option<String>,
+    /// The subgroup (null: everyone).
+    pub subgroup: Option<String>,
+    /// The points, in dose order.
+    pub points: Vec<CurvePoint>,
+}
+
+/// One point of a curve.
+#[derive(Debug, Clone, Serialize)]
+pub struct CurvePoint {
+    /// The dose.
+    pub x: f64,
+    /// The mean outcome had everyone received it.
+    pub estimate: f64,
+    /// Standard error (sandwich).
+    pub std_error: f64,
+    /// Interval (the bootstrap one when it ran).
+    pub ci: [f64; 2],
 }
 
 /// How many of the graph's testable implications the data reject.
@@ -256,15 +304,24 @@ pub fn run(plan: &Plan, data: &Dataset, opts: &Options) -> Result<Analysis> {
         }
     }
     let problem = Problem::build(data, &spec(plan, opts))?;
-    let names: Vec<String> = match &opts.methods {
-        Some(m) => m.clone(),
-        None => estimate::applicable(&problem)
-            .iter()
-            .map(|s| s.to_string())
-            .collect(),
+    let methods: Vec<&'static dyn Estimator> = match &opts.methods {
+        Some(m) => {
+            let chosen: Vec<&'static dyn Estimator> = m.iter().map(|n| estimate::by_name(n)).collect::<Result<_>>()?;
+            if let Some(e) = chosen.iter().find_map(|e| estimate::refusal(*e, &problem, plan.strategy)) {
+                return Err(e);
+            }
+            chosen
+        }
+        None => estimate::applicable(&problem, plan.strategy),
     };
-    check_methods(plan, &names)?;
-    let methods: Vec<Box<dyn Method>> = names.iter().map(|n| estimate::method(n)).collect::<Result<_>>()?;
+    let mut needs = estimate::needs(&methods);
+    if plan.strategy == Strategy::Backdoor {
+        needs = needs.union(Needs {
+            outcome: false,
+            exposure: true,
+        });
+    }
+    let fits = Fits::fit(&problem, None, None, needs);
     let mut warnings = plan.warnings.clone();
     warnings.extend(problem.warnings.iter().cloned());
     let mut notes: Vec<String> = problem
@@ -273,36 +330,62 @@ pub fn run(plan: &Plan, data: &Dataset, opts: &Options) -> Result<Analysis> {
         .map(|c| c.sentence(&problem.spec.exposure))
         .collect();
     let mut estimates = Vec::new();
+    let mut curves = Vec::new();
+    let mut targets: Vec<Targets> = Vec::new();
     for m in &methods {
-        let e = m.estimate(&problem)?;
-        warnings.extend(e.warnings.iter().map(|w| format!("{}: {w}", e.method)));
-        notes.extend(e.notes.iter().map(|n| format!("{}: {n}", e.method)));
-        estimates.push(Item {
-            analytic_ci: e.ci,
-            estimate: e,
-            bootstrap: None,
-        });
+        let (rows, t) = estimate::rows(*m, &problem, &fits)?;
+        let name = m.about().name;
+        warnings.extend(t.warnings.iter().map(|w| format!("{name}: {w}")));
+        notes.extend(t.notes.iter().map(|n| format!("{name}: {n}")));
+        let specs = problem.contrasts();
+        let formed: Vec<&ContrastSpec> = specs
+            .iter()
+            .filter(|c| t.position(c.level).is_some() && t.position(c.reference).is_some())
+            .collect();
+        for (e, c) in rows.into_iter().zip(formed) {
+            estimates.push(Item {
+                analytic_ci: e.ci,
+                estimate: e,
+                bootstrap: None,
+                spec: Some(c.clone()),
+            });
+        }
+        if let Some(c) = curve(&problem, name, &t) {
+            curves.push(c);
+        }
+        targets.push(t);
     }
     if opts.bootstrap > 0 {
-        warnings.extend(run_bootstrap(&problem, &methods, &mut estimates, opts)?);
+        warnings.extend(run_bootstrap(&problem, &methods, &fits, needs, &mut estimates, &mut curves, opts)?);
     }
-    let diagnostics = match (problem.binary_exposure(), plan.strategy) {
-        (true, Strategy::Backdoor) => match estimate::diagnostics(&problem) {
-            Ok(d) => {
+    let (mut diagnostics, mut level_diagnostics, mut dose_diagnostics) = (None, None, None);
+    if plan.strategy == Strategy::Backdoor {
+        match fits.exposure() {
+            Ok(crate::learn::ExposureModel::Binary(ps)) => {
+                let d = estimate::diagnostics(&problem, ps);
                 warnings.extend(d.warnings.iter().cloned());
-                Some(d)
+                diagnostics = Some(d);
+            }
+            Ok(crate::learn::ExposureModel::Levels(lp)) => {
+                let (d, w) = estimate::level_diagnostics(&problem, lp);
+                warnings.extend(w);
+                level_diagnostics = Some(d);
+            }
+            Ok(crate::learn::ExposureModel::Dose(dd)) => {
+                let (d, w) = estimate::dose_diagnostics(dd);
+                warnings.extend(w);
+                dose_diagnostics = Some(d);
             }
             // A separated propensity model leaves no weights to diagnose;
             // the estimates that do not need them stand, with the reason.
             Err(e @ (Error::Numerical(_) | Error::Separation(_))) => {
                 warnings.push(format!("no propensity diagnostics: {e}"));
-                None
             }
             Err(e) => return Err(e),
-        },
-        _ => None,
-    };
-    let (sensitivity, details) = sensitivity(&problem, &methods, &estimates, opts)?;
+        }
+    }
+    let (sensitivity, details) = sensitivity(&problem, &targets, &estimates, opts)?;
+    let methods_sentences = methods.iter().map(|m| m.methods_sentence(&problem.kind)).collect();
     let check = match &opts.check {
         Some(c) => {
             let sum = check_summary(plan, data, c)?;
@@ -326,47 +409,61 @@ pub fn run(plan: &Plan, data: &Dataset, opts: &Options) -> Result<Analysis> {
         sample: problem.sample.clone(),
         estimates,
         diagnostics,
+        level_diagnostics,
+        dose_diagnostics,
         sensitivity,
         warnings,
         details,
         exposure_coding: problem.exposure_coding.clone(),
         binary_outcome: problem.binary_outcome(),
+        kind: problem.kind.clone(),
         notes,
         check,
+        curves,
+        methods_sentences,
     })
 }
 
-/// Refuses methods that do not fit the strategy.
-fn check_methods(plan: &Plan, names: &[String]) -> Result<()> {
-    for n in names {
-        let fits = match plan.strategy {
-            Strategy::Frontdoor => n == "frontdoor",
-            _ => n != "frontdoor",
-        };
-        if !fits {
-            let strategy = if plan.strategy == Strategy::Frontdoor {
-                "frontdoor"
-            } else {
-                "backdoor"
-            };
-            return Err(Error::input(format!(
-                "--method {n} does not fit the {strategy} strategy of this graph (front-door: frontdoor; \
-                 backdoor: regression, ipw, ipw-ht, aipw)"
-            )));
-        }
+/// The dose-response curve of a method's targets (continuous exposure,
+/// means reported), with sandwich intervals.
+fn curve(p: &Problem, method: &str, t: &Targets) -> Option<Curve> {
+    if p.kind != ExposureKind::Dose || t.means_hidden {
+        return None;
     }
-    Ok(())
+    let points: Vec<CurvePoint> = p
+        .curve
+        .iter()
+        .filter_map(|&x| {
+            let k = t.position(Target::Dose(x))?;
+            let (std_error, ci) = estimate::contrast::target_interval(t, k, p.spec.level);
+            Some(CurvePoint {
+                x,
+                estimate: t.values[k],
+                std_error,
+                ci,
+            })
+        })
+        .collect();
+    (!points.is_empty()).then(|| Curve {
+        method: method.to_string(),
+        kind: "dose-response",
+        level: None,
+        subgroup: None,
+        points,
+    })
 }
 
 /// Refits every method in each bootstrap replicate and puts the chosen
-/// interval into `ci`; returns warnings.
+/// interval into `ci` of every row and curve point; returns warnings.
 fn run_bootstrap(
     p: &Problem,
-    methods: &[Box<dyn Method>],
+    methods: &[&'static dyn Estimator],
+    full: &Fits,
+    needs: Needs,
     estimates: &mut [Item],
+    curves: &mut [Curve],
     opts: &Options,
 ) -> Result<Vec<String>> {
-    let warm: Vec<Warm> = estimates.iter().map(|e| e.estimate.warm.clone()).collect();
     let boot = BootOpts {
         replicates: opts.bootstrap,
         seed: opts.seed,
@@ -375,62 +472,100 @@ fn run_bootstrap(
         progress: opts.progress.clone(),
         bca: opts.interval == IntervalKind::Bca,
     };
+    // The statistics of each method: its rows' contrasts, then its curve's
+    // doses.
+    let layout: Vec<(Vec<ContrastSpec>, Vec<Target>)> = methods
+        .iter()
+        .map(|m| {
+            let name = m.about().name;
+            let rows = estimates
+                .iter()
+                .filter(|e| e.estimate.method == name)
+                .filter_map(|e| e.spec.clone())
+                .collect();
+            let doses = curves
+                .iter()
+                .filter(|c| c.method == name)
+                .flat_map(|c| c.points.iter().map(|q| Target::Dose(q.x)))
+                .collect();
+            (rows, doses)
+        })
+        .collect();
     // A method that fails in a replicate gives NaN there: it is counted as
     // failed for that method only, and its reason is tallied (a count per
     // message, the same for any order the threads finish in). The methods
-    // of one replicate share its model fits (each model is fitted once per
-    // resample).
+    // of one replicate share its model fits, made once.
     let reasons: Vec<Mutex<BTreeMap<String, usize>>> = methods.iter().map(|_| Mutex::default()).collect();
     let draws = bootstrap::run(p.n(), &boot, |w| {
-        let shared = Warm::for_one_resample(&warm);
-        Ok(methods
-            .iter()
-            .zip(&reasons)
-            .map(|(m, tally)| {
-                m.point(p, Some(w), Some(&shared)).unwrap_or_else(|e| {
+        let fits = Fits::fit(p, Some(w), Some(full), needs);
+        let mut out = Vec::new();
+        for ((m, (rows, doses)), tally) in methods.iter().zip(&layout).zip(&reasons) {
+            match m.point(p, &fits, Some(w)) {
+                Ok(points) => out.extend(estimate::replicate(&points, p, rows, doses)),
+                Err(e) => {
                     let mut t = tally.lock().unwrap_or_else(|poisoned| poisoned.into_inner());
                     *t.entry(e.to_string()).or_default() += 1;
-                    f64::NAN
-                })
-            })
-            .collect())
+                    out.extend(std::iter::repeat_n(f64::NAN, rows.len() + doses.len()));
+                }
+            }
+        }
+        Ok(out)
     })?;
     let mut warnings = Vec::new();
-    for (j, item) in estimates.iter_mut().enumerate() {
-        let s = draws.summary_at(j, opts.model.level)?;
-        warnings.extend(
-            s.warnings
-                .iter()
-                .map(|w| format!("{} bootstrap: {w}", item.estimate.method)),
-        );
-        let tally = reasons[j].lock().unwrap_or_else(|poisoned| poisoned.into_inner());
-        if let Some(why) = failure_reasons(&tally) {
-            warnings.push(format!("{} bootstrap: {why}", item.estimate.method));
-        }
-        match s.block(opts.interval) {
-            Ok(block) => {
-                item.estimate.ci = block.ci;
-                item.estimate.ci_method = opts.interval.ci_method().to_string();
-                item.bootstrap = Some(block);
+    let mut j = 0;
+    for (k, m) in methods.iter().enumerate() {
+        let name = m.about().name;
+        let tally = reasons[k].lock().unwrap_or_else(|poisoned| poisoned.into_inner());
+        let mut why = failure_reasons(&tally);
+        for item in estimates.iter_mut().filter(|e| e.estimate.method == name) {
+            let s = draws.summary_at(j, opts.model.level)?;
+            j += 1;
+            let label = match &item.estimate.contrast {
+                Some(c) => format!("{name} ({})", c.words()),
+                None => name.to_string(),
+            };
+            warnings.extend(s.warnings.iter().map(|w| format!("{label} bootstrap: {w}")));
+            if let Some(why) = why.take() {
+                warnings.push(format!("{name} bootstrap: {why}"));
             }
-            // The chosen interval cannot be formed (e.g. the jackknife behind
-            // BCa failed): the analytic interval stays, with the reason.
-            Err(e) => warnings.push(format!(
-                "{}: no {} interval ({}); the sandwich interval is kept",
-                item.estimate.method,
-                interval_label(opts.interval),
-                e
-            )),
+            match s.block(opts.interval) {
+                Ok(block) => {
+                    item.estimate.ci = block.ci;
+                    item.estimate.ci_method = opts.interval.ci_method().to_string();
+                    item.bootstrap = Some(block);
+                }
+                // The chosen interval cannot be formed (e.g. the jackknife behind
+                // BCa failed): the analytic interval stays, with the reason.
+                Err(e) => warnings.push(format!(
+                    "{label}: no {} interval ({}); the sandwich interval is kept",
+                    interval_label(opts.interval),
+                    e
+                )),
+            }
+        }
+        if let Some(why) = why {
+            warnings.push(format!("{name} bootstrap: {why}"));
+        }
+        for c in curves.iter_mut().filter(|c| c.method == name) {
+            for q in c.points.iter_mut() {
+                let s = draws.summary_at(j, opts.model.level)?;
+                j += 1;
+                if let Ok(ci) = s.interval(opts.interval) {
+                    q.ci = ci;
+                }
+            }
         }
     }
     Ok(warnings)
 }
 
 /// The E-value of the first estimate and, for a linear outcome under the
-/// backdoor strategy, the robustness value with benchmark bounds.
+/// backdoor strategy, the robustness value with benchmark bounds; with
+/// several contrasts (a categorical exposure), also the E-value and
+/// robustness value of each contrast of the first method.
 fn sensitivity(
     p: &Problem,
-    methods: &[Box<dyn Method>],
+    targets: &[Targets],
     estimates: &[Item],
     opts: &Options,
 ) -> Result<(SensitivityBlock, SensitivityDetails)> {
@@ -441,6 +576,7 @@ fn sensitivity(
                 evalue: None,
                 robustness_value: None,
                 benchmarks: None,
+                by_contrast: Vec::new(),
             },
             details,
         ));
@@ -451,7 +587,13 @@ fn sensitivity(
     } else {
         None
     };
-    let ev = match evalue_for(p, methods, first, inputs.as_ref(), opts) {
+    let levels = if linear && matches!(p.kind, ExposureKind::Levels(_)) {
+        estimate::level_coefficients(p)?
+    } else {
+        Vec::new()
+    };
+    let t0 = &targets[0];
+    let ev = match evalue_for(p, t0, first, inputs.as_ref(), opts) {
         Ok(e) => {
             details.evalue_method = Some(first.estimate.method.clone());
             Some(e)
@@ -461,6 +603,12 @@ fn sensitivity(
             None
         }
     };
+    let alpha = 1.0 - opts.model.level;
+    let level_rv = |k: usize| -> Option<RobustnessValue> {
+        let (e, se, df) = *levels.get(k)?;
+        let c = Coefficient::new(e, se, df).ok()?;
+        robustness::robustness_value(&c, 1.0, alpha).ok()
+    };
     let (rv, benchmarks) = match &inputs {
         Some(s) => match robustness_for(s, opts, &mut details) {
             Ok((rv, table)) => (Some(rv), Some(table)),
@@ -469,20 +617,40 @@ fn sensitivity(
                 (None, None)
             }
         },
+        None if !levels.is_empty() => (level_rv(0), None),
         None => {
             if linear {
-                details
-                    .notes
-                    .push("no robustness value: the outcome regression could not be formed".into());
+                details.notes.push(
+                    "no robustness value: no single outcome-model coefficient carries the effect".into(),
+                );
             }
             (None, None)
         }
     };
+    let mut by_contrast = Vec::new();
+    let rows: Vec<&Item> = estimates
+        .iter()
+        .filter(|e| e.estimate.method == first.estimate.method)
+        .collect();
+    if rows.len() > 1 {
+        for (k, item) in rows.iter().enumerate() {
+            let Some(contrast) = item.estimate.contrast.clone() else {
+                continue;
+            };
+            by_contrast.push(ContrastSensitivity {
+                contrast,
+                method: item.estimate.method.clone(),
+                evalue: evalue_for(p, t0, item, inputs.as_ref(), opts).ok(),
+                robustness_value: level_rv(k),
+            });
+        }
+    }
     Ok((
         SensitivityBlock {
             evalue: ev,
             robustness_value: rv,
             benchmarks,
+            by_contrast,
         },
         details,
     ))
@@ -490,21 +658,24 @@ fn sensitivity(
 
 fn evalue_for(
     p: &Problem,
-    methods: &[Box<dyn Method>],
-    first: &Item,
+    targets: &Targets,
+    item: &Item,
     inputs: Option<&SensitivityInputs>,
     opts: &Options,
 ) -> Result<EValue> {
-    let e = &first.estimate;
+    let e = &item.estimate;
     let ci = (e.ci[0], e.ci[1]);
     if p.binary_outcome() {
         if e.scale == Scale::Ratio {
             return evalue::risk_ratio(e.estimate, Some(ci));
         }
-        // The risk ratio from the standardized risks, with its own interval.
-        let mut q = p.clone();
-        q.spec.scale = Scale::Ratio;
-        let rr = methods[0].estimate(&q)?;
+        // The risk ratio from the same targets, with its own interval.
+        let spec = item
+            .spec
+            .as_ref()
+            .ok_or_else(|| Error::Numerical("no contrast to read as a risk ratio".into()))?;
+        let rr = estimate::contrast::form(targets, spec, Scale::Ratio, p.spec.level)
+            .ok_or_else(|| Error::Numerical("the method forms no risk ratio".into()))??;
         return evalue::risk_ratio(rr.estimate, Some((rr.ci[0], rr.ci[1])));
     }
     let sd = match inputs {

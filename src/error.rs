@@ -92,6 +92,16 @@ pub enum Setting {
     Adjust,
     /// Columns treated as categorical.
     Categorical,
+    /// The value of a two-valued exposure that counts as exposed.
+    Exposed,
+    /// The reference level of a categorical exposure.
+    Reference,
+    /// The doses at which a dose-response curve is evaluated.
+    At,
+    /// The two doses compared.
+    Contrast,
+    /// How continuous terms enter the models.
+    Shape,
 }
 
 impl Setting {
@@ -120,6 +130,11 @@ impl Setting {
             Setting::Latent => "the unobserved list",
             Setting::Adjust => "the adjustment set",
             Setting::Categorical => "the categorical list",
+            Setting::Exposed => "the exposed value",
+            Setting::Reference => "the reference level",
+            Setting::At => "the dose list",
+            Setting::Contrast => "the dose contrast",
+            Setting::Shape => "the term shape",
         }
     }
 }

@@ -5,7 +5,9 @@
 //! the stages before it:
 //!
 //! graph file -> [`graph`] -> [`identify`] -> analysis plan -> [`data`] ->
-//! [`model`] -> [`estimate`] -> [`infer`] -> [`sensitivity`] -> [`report`].
+//! [`model`] -> [`problem`] -> [`learn`] (nuisance models) -> [`estimate`]
+//! (estimators: targets with influence functions, contrasts) -> [`infer`]
+//! (variance: sandwich and bootstrap) -> [`sensitivity`] -> [`report`].
 //!
 //! An estimate is only as valid as the declared graph and the usual
 //! assumptions (no unmeasured confounding beyond the graph, positivity,
@@ -21,9 +23,11 @@ pub mod estimate;
 pub mod graph;
 pub mod identify;
 pub mod infer;
+pub mod learn;
 pub mod maths;
 pub mod model;
 pub mod plan;
+pub mod problem;
 pub mod progress;
 pub mod random;
 pub mod report;

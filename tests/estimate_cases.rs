@@ -6,7 +6,7 @@ use crate::estimate_sim::{dataset, normal, rng};
 use causeway::Error;
 use causeway::data::Shape;
 use causeway::error::Setting;
-use causeway::estimate::{Estimand, Problem, Scale, Spec, applicable, diagnostics, method};
+use causeway::estimate::{Estimand, Problem, Scale, Spec, applicable, method};
 use rand::RngExt;
 
 fn base(n: usize, seed: u64) -> Vec<(&'static str, Vec<f64>)> {
@@ -114,7 +114,7 @@ fn separated_exposure_makes_weighting_refuse_while_regression_runs() {
         }
     }
     assert!(method("regression").unwrap().estimate(&p).is_ok());
-    assert!(diagnostics(&p).is_err());
+    assert!(method("ipw").unwrap().fits(&p).propensity().is_err());
 }
 
 #[test]
@@ -151,7 +151,11 @@ fn continuous_exposure_by_regression_only() {
     let d = dataset(vec![("a", t), ("y", y), ("x", x)]);
     let p = Problem::build(&d, &spec(&["x"])).unwrap();
     assert!(!p.binary_exposure());
-    assert_eq!(applicable(&p), ["regression"]);
+    let names: Vec<&str> = applicable(&p, causeway::identify::Strategy::Backdoor)
+        .iter()
+        .map(|e| e.about().name)
+        .collect();
+    assert_eq!(names, ["regression", "ipw"]);
     let e = method("regression").unwrap().estimate(&p).unwrap();
     assert!((e.estimate - 0.7).abs() < 4.0 * e.std_error, "{}", e.estimate);
     let mut s = spec(&["x"]);
@@ -162,9 +166,15 @@ fn continuous_exposure_by_regression_only() {
         (e2.estimate - 2.0 * e.estimate).abs() < 1e-9,
         "linear: twice the unit effect"
     );
-    for m in ["ipw", "ipw-ht", "aipw"] {
+    // A continuous exposure: the weighted dose-response model compares
+    // fixed doses (no one-unit shift from the observed values); the
+    // Horvitz-Thompson and doubly robust forms do not serve it.
+    assert!(method("ipw").unwrap().estimate(&p2).is_ok());
+    for m in ["ipw-ht", "aipw"] {
         match method(m).unwrap().estimate(&p) {
-            Err(Error::Input(msg)) => assert!(msg.contains("needs a binary exposure"), "{msg}"),
+            Err(Error::Option { setting: Setting::Method, message }) => {
+                assert!(message.contains("continuous exposure"), "{message}")
+            }
             other => panic!("{m}: {other:?}"),
         }
     }
@@ -212,25 +222,29 @@ fn bad_specifications_are_input_errors() {
     assert!(method("bogus").is_err());
 }
 
-// Methods that share one resample's fits (Warm::for_one_resample) give
-// exactly the estimates they give when each fits its own models (the fits
-// are the same computation; a closed-form identity, so equality is exact).
+// Methods that share one resample's fits (one `Fits` for all, as the
+// bootstrap does) give exactly the estimates they give when each fits its
+// own models (the fits are the same computation; equality is exact).
 #[test]
 fn shared_resample_fits_give_the_same_estimates() {
-    use causeway::estimate::Warm;
+    use causeway::estimate::{contrast, needs};
     use causeway::infer::bootstrap::resample_weights;
+    use causeway::learn::Fits;
     let d = dataset(base(300, 5));
     let p = Problem::build(&d, &spec(&["x", "g"])).unwrap();
     let names = ["regression", "ipw", "aipw"];
     let methods: Vec<_> = names.iter().map(|n| method(n).unwrap()).collect();
-    let warms: Vec<Warm> = methods.iter().map(|m| m.estimate(&p).unwrap().warm).collect();
+    let all: Vec<_> = methods.iter().map(|m| m.0).collect();
+    let full = Fits::fit(&p, None, None, needs(&all));
+    let c = p.contrasts().remove(0);
     for rep in 0..5 {
         let w = resample_weights(p.n(), 11, rep);
-        let shared = Warm::for_one_resample(&warms);
-        for (m, own) in methods.iter().zip(&warms) {
-            let alone = m.point(&p, Some(&w), Some(own)).unwrap();
-            let together = m.point(&p, Some(&w), Some(&shared)).unwrap();
-            assert_eq!(alone.to_bits(), together.to_bits(), "{}", m.name());
+        let shared = Fits::fit(&p, Some(&w), Some(&full), needs(&all));
+        for m in &methods {
+            let alone = m.point(&p, Some(&w), Some(&full)).unwrap();
+            let points = m.0.point(&p, &shared, Some(&w)).unwrap();
+            let together = contrast::point(&points, &c, p.spec.scale);
+            assert_eq!(alone.to_bits(), together.to_bits(), "{}", m.0.about().name);
         }
     }
 }

@@ -26,16 +26,16 @@ pub fn dataset(cols: Vec<(&str, Vec<f64>)>) -> Dataset {
 /// sqrt(sum_i (d est / d w_i)^2) by central differences (step 1e-4).
 pub fn ij_se(p: &Problem, name: &str) -> f64 {
     let m = method(name).unwrap();
-    let full = m.estimate(p).unwrap();
+    let full = m.fits(p);
     let n = p.n();
     let h = 1e-4;
     let mut w = vec![1.0; n];
     let mut s = 0.0;
     for i in 0..n {
         w[i] = 1.0 + h;
-        let up = m.point(p, Some(&w), Some(&full.warm)).unwrap();
+        let up = m.point(p, Some(&w), Some(&full)).unwrap();
         w[i] = 1.0 - h;
-        let down = m.point(p, Some(&w), Some(&full.warm)).unwrap();
+        let down = m.point(p, Some(&w), Some(&full)).unwrap();
         w[i] = 1.0;
         s += ((up - down) / (2.0 * h)).powi(2);
     }
@@ -259,7 +259,7 @@ fn estimate_and_diagnostics_serialise_to_the_contract_keys() {
     assert_eq!(v["ci_method"], "sandwich");
     assert_eq!(v["ci"].as_array().unwrap().len(), 2);
     assert!(v.get("warm").is_none() && v.get("warnings").is_none());
-    let dg = serde_json::to_value(causeway::estimate::diagnostics(&p).unwrap()).unwrap();
+    let dg = serde_json::to_value(causeway::estimate::diagnostics(&p, method("ipw").unwrap().fits(&p).propensity().unwrap())).unwrap();
     for k in ["min", "max", "treated_outside_control_range"] {
         assert!(dg["propensity"].get(k).is_some(), "{k}");
     }

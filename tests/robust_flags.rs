@@ -88,7 +88,7 @@ fn unknown_method_and_other_names() {
     expect(
         &estimate(&["--method", "frontdoor"]),
         2,
-        &["--method frontdoor does not fit"],
+        &["--method 'frontdoor' does not fit the backdoor strategy"],
     );
     expect(&estimate(&["--estimand", "atx"]), 2, &["atx"]);
     expect(&estimate(&["--scale", "log"]), 2, &["log"]);

@@ -69,6 +69,8 @@ fn flags(a: &Args) -> EstimateFlags {
         exposure: "enrolled".into(),
         outcome: "pain_days".into(),
         exposed: None,
+        reference: None,
+        at: None,
         method: None,
         estimand: "ate".into(),
         adjust: "optimal".into(),

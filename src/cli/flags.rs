@@ -30,8 +30,13 @@ pub struct EstimateFlags {
     /// one that sorts last. Reports always say which was taken.
     #[arg(long, value_name = "VALUE")]
     pub exposed: Option<String>,
+    /// The reference level of a categorical exposure (text with three or
+    /// more levels, or a number named in --categorical); every other level
+    /// is compared with it. Default: the lowest level.
+    #[arg(long, value_name = "LEVEL")]
+    pub reference: Option<String>,
     /// Methods, comma-separated: regression, ipw, ipw-ht, aipw, frontdoor.
-    /// Default: every method that fits the strategy.
+    /// Default: every method that fits the strategy and the exposure.
     #[arg(long, value_name = "LIST")]
     pub method: Option<String>,
     /// ate, att or atc.
@@ -47,7 +52,9 @@ pub struct EstimateFlags {
     /// Columns to treat as categorical (dummies; the lowest level is the reference).
     #[arg(long, value_name = "A,B")]
     pub categorical: Option<String>,
-    /// How continuous covariates enter both models: linear, quadratic or spline.
+    /// How continuous covariates (and a continuous exposure, in the outcome
+    /// model and the weighted dose-response model) enter: linear, quadratic
+    /// or spline.
     #[arg(long, default_value = "linear", value_name = "SHAPE")]
     pub shape: String,
     /// Covariates whose product with the exposure enters the outcome model.
@@ -73,9 +80,14 @@ pub struct EstimateFlags {
     /// Clip propensity scores to [EPS, 1-EPS]; EPS in [0, 0.5).
     #[arg(long, allow_negative_numbers = true, value_name = "EPS")]
     pub trim: Option<f64>,
-    /// For a continuous exposure: compare the value B with the value A.
+    /// For a continuous exposure: compare the dose B with the dose A.
     #[arg(long, value_name = "A,B")]
     pub contrast: Option<String>,
+    /// For a continuous exposure: the doses at which the dose-response
+    /// curve is evaluated. Default: 9 doses from its 5th to its 95th
+    /// percentile.
+    #[arg(long, value_name = "A,B,...", allow_negative_numbers = true)]
+    pub at: Option<String>,
     /// Columns to treat as unobserved, comma-separated.
     #[arg(long, value_name = "A,B")]
     pub latent: Option<String>,
@@ -163,13 +175,26 @@ impl EstimateFlags {
                 }
             }
         };
+        let at = match &self.at {
+            None => None,
+            Some(c) => {
+                let parts = split_list(c);
+                let v: Vec<f64> = parts.iter().filter_map(|x| x.parse().ok()).collect();
+                if v.is_empty() || v.len() != parts.len() || v.iter().any(|x| !x.is_finite()) {
+                    return Err(Error::input(format!(
+                        "--at '{c}': expected one or more numbers, comma-separated"
+                    )));
+                }
+                Some(v)
+            }
+        };
         let methods = self.method.as_ref().map(|m| split_list(m));
         if let Some(ms) = &methods {
             if ms.is_empty() {
                 return Err(Error::input("--method: expected at least one method name"));
             }
             for m in ms {
-                causeway::estimate::method(m)?;
+                causeway::estimate::by_name(m)?;
             }
         }
         Ok(Options {
@@ -183,7 +208,9 @@ impl EstimateFlags {
                 trim: self.trim.filter(|&t| t > 0.0),
                 level: self.level,
                 contrast,
+                at,
                 exposed: self.exposed.clone(),
+                reference: self.reference.clone(),
                 ..Spec::default()
             },
             bootstrap: self.bootstrap,

@@ -127,5 +127,10 @@ pub fn flag(setting: Setting) -> &'static str {
         Setting::Latent => "--latent",
         Setting::Adjust => "--adjust",
         Setting::Categorical => "--categorical",
+        Setting::Exposed => "--exposed",
+        Setting::Reference => "--reference",
+        Setting::At => "--at",
+        Setting::Contrast => "--contrast",
+        Setting::Shape => "--shape",
     }
 }

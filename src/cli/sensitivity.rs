@@ -264,6 +264,7 @@ pub fn run(a: Args) -> Result<i32> {
         "json" => {
             let out = Output {
                 block: SensitivityBlock {
+                    by_contrast: Vec::new(),
                     evalue: ev,
                     robustness_value: reg.as_ref().map(|r| r.rv.clone()),
                     benchmarks: None,

@@ -142,9 +142,13 @@ pub fn covariate_terms(frame: &Frame, col: usize, shape: Shape) -> Vec<Term> {
 }
 
 impl Design {
-    /// A design: intercept, then the exposure (if any), then the terms of
-    /// each covariate, then exposure products with each `interact` column
-    /// (its linear term, or each of its dummies); centred over `frame`.
+    /// A design: intercept, then the exposure's terms (if any), then the
+    /// terms of each covariate, then exposure products with each `interact`
+    /// column (its linear term, or each of its dummies); centred over
+    /// `frame`. The exposure enters as one 0/1 term when binary, one dummy
+    /// per non-reference level when categorical, and by `shape` when
+    /// numeric (a dose); products use each of its dummies, or its linear
+    /// term.
     pub fn build(
         frame: &Frame,
         exposure: Option<usize>,
@@ -153,28 +157,31 @@ impl Design {
         interact: &[usize],
     ) -> Design {
         let mut terms = vec![Term::intercept()];
-        if let Some(a) = exposure {
-            terms.push(Term {
+        let own = exposure.map_or_else(Vec::new, |a| match frame.kind(a) {
+            Kind::Binary { .. } => vec![Term {
                 name: frame.name(a).to_string(),
                 factors: vec![Factor {
                     col: a,
                     transform: Transform::Linear,
                 }],
-            });
-        }
+            }],
+            _ => covariate_terms(frame, a, shape),
+        });
+        terms.extend(own.iter().cloned());
         for &c in covariates {
             terms.extend(covariate_terms(frame, c, shape));
         }
-        if let Some(a) = exposure {
+        let multiplied: Vec<&Term> = own
+            .iter()
+            .filter(|t| !matches!(t.factors[0].transform, Transform::Square | Transform::Spline { .. }))
+            .collect();
+        for e in &multiplied {
             for &c in interact {
                 for t in covariate_terms(frame, c, Shape::Linear) {
-                    let mut factors = vec![Factor {
-                        col: a,
-                        transform: Transform::Linear,
-                    }];
+                    let mut factors = e.factors.clone();
                     factors.extend(t.factors);
                     terms.push(Term {
-                        name: format!("{}:{}", frame.name(a), t.name),
+                        name: format!("{}:{}", e.name, t.name),
                         factors,
                     });
                 }
@@ -241,6 +248,17 @@ impl Design {
         self.terms
             .iter()
             .position(|t| t.factors.len() == 1 && t.factors[0].col == a)
+    }
+
+    /// Indices of the exposure's own terms (one for a binary exposure, one
+    /// per non-reference level, one per shape term of a dose).
+    pub fn exposure_terms(&self) -> Vec<usize> {
+        let Some(a) = self.exposure else {
+            return Vec::new();
+        };
+        (0..self.terms.len())
+            .filter(|&j| self.terms[j].factors.len() == 1 && self.terms[j].factors[0].col == a)
+            .collect()
     }
 
     /// The frame column of the exposure, if the design has one.

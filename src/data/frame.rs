@@ -15,7 +15,7 @@
 //! level was taken and why, for every report to repeat.
 
 use super::{Dataset, Sample};
-use crate::{Error, Result};
+use crate::{Error, Result, Setting};
 
 /// What a column is, over the analysis sample.
 #[derive(Debug, Clone, PartialEq)]
@@ -65,6 +65,17 @@ impl ExposureCoding {
             self.exposed, self.unexposed
         )
     }
+}
+
+/// How the exposure column is to be coded (see [`Frame::push_exposure`]).
+#[derive(Debug, Clone, Default, PartialEq, Eq)]
+pub struct ExposureChoice {
+    /// The value of a two-valued exposure taken as exposed.
+    pub exposed: Option<String>,
+    /// The reference level of a categorical exposure.
+    pub reference: Option<String>,
+    /// Take a numeric exposure as categorical (named in the categorical list).
+    pub categorical: bool,
 }
 
 /// How a column is to be read.
@@ -141,18 +152,21 @@ impl Frame {
         Ok(self.push(name, Kind::Categorical { levels }, values))
     }
 
-    /// Adds the exposure column `name` of `data` over `sample`'s rows. Two
-    /// values, numbers or text, are coded 0/1, `exposed` (when given) as 1,
-    /// else the larger number or the text level that sorts last; more than
-    /// two numbers stay numeric (a continuous exposure). Text with more
-    /// than two levels is refused, as is an `exposed` value that is not one
-    /// of two values.
+    /// Adds the exposure column `name` of `data` over `sample`'s rows.
+    ///
+    /// Two values, numbers or text, are coded 0/1 (binary), `how.exposed`
+    /// (when given) as 1, else the larger number or the text level that
+    /// sorts last. Text with three or more levels, or numbers named
+    /// categorical with three or more values, are categorical: level codes
+    /// with `how.reference` (default the lowest level) as code 0 and the
+    /// other levels after it in their usual order. Other numbers stay
+    /// numeric (a continuous exposure, a dose).
     pub fn push_exposure(
         &mut self,
         data: &Dataset,
         sample: &Sample,
         name: &str,
-        exposed: Option<&str>,
+        how: &ExposureChoice,
     ) -> Result<(usize, Option<ExposureCoding>)> {
         let col = data.require(name)?;
         let src = data.source();
@@ -165,54 +179,106 @@ impl Frame {
         } else {
             let v = col.numeric(src, name, "the exposure")?;
             let values: Vec<f64> = sample.keep.iter().map(|&i| v[i]).collect();
-            let (values, kind) = code_numeric(values);
-            match kind {
-                Kind::Binary { low, high } => (values, vec![low, high]),
-                kind => {
-                    if let Some(e) = exposed {
-                        return Err(Error::input(format!(
-                            "--exposed '{e}': the exposure '{name}' takes {} in the complete rows, not two; \
-                             --exposed applies to a two-valued exposure",
-                            count_values(&values)
-                        )));
+            if how.categorical {
+                code_numeric_levels(values)
+            } else {
+                let (values, kind) = code_numeric(values);
+                match kind {
+                    Kind::Binary { low, high } => (values, vec![low, high]),
+                    kind => {
+                        if let Some(e) = &how.exposed {
+                            return Err(Error::option(
+                                Setting::Exposed,
+                                format!(
+                                    "'{e}': the exposure '{name}' takes {} in the complete rows, not two; \
+                                     an exposed value applies to a two-valued exposure",
+                                    count_values(&values)
+                                ),
+                            ));
+                        }
+                        if let Some(r) = &how.reference {
+                            return Err(Error::option(
+                                Setting::Reference,
+                                format!(
+                                    "'{r}': the exposure '{name}' is a number taken as continuous; a reference \
+                                     level applies to a categorical exposure (name it categorical)"
+                                ),
+                            ));
+                        }
+                        return Ok((self.push(name, kind, values), None));
                     }
-                    return Ok((self.push(name, kind, values), None));
                 }
             }
+        };
+        let same = |l: &String, e: &str| {
+            let e = e.trim();
+            l == e || matches!((l.parse::<f64>(), e.parse::<f64>()), (Ok(a), Ok(b)) if a == b)
         };
         match levels.len() {
             2 => {}
             1 => return Ok((self.push(name, Kind::Numeric, codes), None)),
             k => {
-                let shown: Vec<String> = levels.iter().take(6).map(|l| format!("'{l}'")).collect();
-                let more = if k > 6 { ", ..." } else { "" };
-                return Err(Error::input(format!(
-                    "{src}: the exposure '{name}' holds text with {k} levels ({}{more}); an exposure must be \
-                     a number or take two values: recode it to two levels (exposed and unexposed); exposures \
-                     of more than two levels are not supported yet",
-                    shown.join(", ")
-                )));
+                if let Some(e) = &how.exposed {
+                    return Err(Error::option(
+                        Setting::Exposed,
+                        format!(
+                            "'{e}': the exposure '{name}' has {k} levels, not two; name a reference level \
+                             for a categorical exposure instead"
+                        ),
+                    ));
+                }
+                let at = match &how.reference {
+                    None => 0,
+                    Some(r) => levels.iter().position(|l| same(l, r)).ok_or_else(|| {
+                        let shown: Vec<String> = levels.iter().map(|l| format!("'{l}'")).collect();
+                        Error::option(
+                            Setting::Reference,
+                            format!(
+                                "'{r}' is not a level of the exposure '{name}' in the complete rows; its \
+                                 levels are {}",
+                                shown.join(", ")
+                            ),
+                        )
+                    })?,
+                };
+                // The reference becomes code 0; the others keep their order.
+                let order: Vec<usize> = std::iter::once(at).chain((0..k).filter(|&j| j != at)).collect();
+                let mut recode = vec![0.0; k];
+                for (new, &old) in order.iter().enumerate() {
+                    recode[old] = new as f64;
+                }
+                let values = codes.iter().map(|&c| recode[c as usize]).collect();
+                let levels = order.iter().map(|&j| levels[j].clone()).collect();
+                return Ok((self.push(name, Kind::Categorical { levels }, values), None));
             }
         }
-        let (exposed_at, rule) = match exposed {
+        if let Some(r) = &how.reference {
+            return Err(Error::option(
+                Setting::Reference,
+                format!(
+                    "'{r}': the exposure '{name}' takes two values; a reference level applies to an \
+                     exposure of three or more levels (name the exposed value instead)"
+                ),
+            ));
+        }
+        let (exposed_at, rule) = match &how.exposed {
             None if col.is_text() => (1, "sorts last"),
             None => (1, "larger value"),
-            Some(e) => {
-                let e = e.trim();
-                let same = |l: &String| {
-                    l == e || matches!((l.parse::<f64>(), e.parse::<f64>()), (Ok(a), Ok(b)) if a == b)
-                };
-                match levels.iter().position(same) {
-                    Some(k) => (k, "given"),
-                    None => {
-                        return Err(Error::input(format!(
-                            "--exposed '{e}' is not a value of the exposure '{name}' in the complete rows; \
-                             its values are '{}' and '{}'",
-                            levels[0], levels[1]
-                        )));
-                    }
+            Some(e) => match levels.iter().position(|l| same(l, e)) {
+                Some(k) => (k, "given"),
+                None => {
+                    return Err(Error::option(
+                        Setting::Exposed,
+                        format!(
+                            "'{}' is not a value of the exposure '{name}' in the complete rows; its values \
+                             are '{}' and '{}'",
+                            e.trim(),
+                            levels[0],
+                            levels[1]
+                        ),
+                    ));
                 }
-            }
+            },
         };
         let hit = exposed_at as f64;
         let values = codes.iter().map(|&c| f64::from(u8::from(c == hit))).collect();

@@ -1,6 +1,8 @@
 //! Augmented inverse probability weighting, doubly robust (Robins, Rotnitzky
 //! & Zhao, JASA 1994;89:846-866; the form of Lunceford & Davidian 2004,
-//! eq. 9), for the ATE:
+//! eq. 9), for the ATE, one mean per exposure level (two for a binary
+//! exposure, with a logistic propensity model; K for a categorical one,
+//! with a multinomial model):
 //! mu_a = mean[ m_a(L) + 1{A=a} (Y - m_a(L)) / P(A=a|L) ].
 //! The outcome model is the regression method's: one model on all rows with
 //! the exposure term (and any products asked for), not one model per arm.
@@ -8,151 +10,173 @@
 //! model, propensity model, the two means), which stays valid when one of
 //! the two working models is wrong.
 
-use super::contrast::{Arms, effect, interval};
-use super::outcome::OutcomeModel;
-use super::propensity::Propensity;
-use super::{Estimand, Estimate, Means, Method, Problem, Warm};
+use super::{About, Estimator, ExposureKind, Points, Serves, Target, Targets};
 use crate::data::Setting;
+use crate::identify::Strategy;
+use crate::learn::{Fits, Needs, OutcomeFit};
 use crate::model::weighted_sum;
-use crate::{Error, Result};
+use crate::problem::{Estimand, Problem};
+use crate::Result;
+use nalgebra::DVector;
 
 /// Augmented IPW.
 pub struct Aipw;
 
-struct Fits<'a> {
-    om: OutcomeModel<'a>,
-    ps: std::borrow::Cow<'a, Propensity>,
-    m1: Vec<f64>,
-    m0: Vec<f64>,
+static ABOUT: About = About {
+    name: "aipw",
+    label: "AIPW (doubly robust)",
+    strategies: &[Strategy::Backdoor],
+    serves: &[Serves::Binary, Serves::Levels],
+    estimands: &[Estimand::Ate],
+    needs: Needs {
+        outcome: true,
+        exposure: true,
+    },
+    default: true,
+};
+
+/// P(A = k | L) for every row and level: the logistic score of a binary
+/// exposure (clipped when asked) or the multinomial probabilities.
+fn probabilities(p: &Problem, fits: &Fits) -> Result<Vec<Vec<f64>>> {
+    Ok(match p.kind {
+        ExposureKind::Binary => {
+            let e = &fits.propensity()?.e;
+            vec![e.iter().map(|e| 1.0 - e).collect(), e.clone()]
+        }
+        _ => fits.levels()?.prob.clone(),
+    })
 }
 
-impl Aipw {
-    fn fits<'a>(&self, p: &'a Problem, freq: Option<&[f64]>, warm: Option<&Warm>) -> Result<Fits<'a>> {
-        p.require_binary_exposure(self.name())?;
-        if p.spec.estimand != Estimand::Ate {
-            return Err(Error::option(
-                crate::error::Setting::Method,
-                format!(
-                    "aipw estimates the ATE only; use regression or ipw for the {}",
-                    p.spec.estimand
-                ),
-            ));
-        }
-        let ps = Propensity::fit(p, freq, warm)?;
-        let om = OutcomeModel::fit(p, freq, warm)?;
-        let m1 = om.predict(p, Setting::Fixed(1.0));
-        let m0 = om.predict(p, Setting::Fixed(0.0));
-        Ok(Fits { om, ps, m1, m0 })
+/// Row i's augmented term at level `k`: m + 1{A=k} (Y - m) / q.
+fn term(a: f64, k: usize, y: f64, m: f64, q: f64) -> f64 {
+    if a as usize == k { m + (y - m) / q } else { m }
+}
+
+impl Estimator for Aipw {
+    fn about(&self) -> &'static About {
+        &ABOUT
     }
 
-    /// Row i's augmented terms for the two arms.
-    fn terms(p: &Problem, f: &Fits, i: usize) -> (f64, f64) {
-        let (a, y, e) = (p.a()[i], p.y()[i], f.ps.e[i]);
-        (
-            f.m1[i] + a * (y - f.m1[i]) / e,
-            f.m0[i] + (1.0 - a) * (y - f.m0[i]) / (1.0 - e),
+    fn methods_sentence(&self, kind: &ExposureKind) -> String {
+        let ps = match kind {
+            ExposureKind::Levels(_) => " with a multinomial propensity model",
+            _ => "",
+        };
+        format!(
+            "The augmented inverse probability weighted (doubly robust) estimator combined both models{ps} \
+             (Robins, Rotnitzky & Zhao 1994)."
         )
     }
-}
 
-impl Method for Aipw {
-    fn name(&self) -> &'static str {
-        "aipw"
-    }
-
-    fn point(&self, p: &Problem, freq: Option<&[f64]>, warm: Option<&Warm>) -> Result<f64> {
-        let f = self.fits(p, freq, warm)?;
-        let (mut s1, mut s0, mut sw) = (0.0, 0.0, 0.0);
-        for i in 0..p.n() {
-            let w = freq.map_or(1.0, |f| f[i]);
-            let (t1, t0) = Aipw::terms(p, &f, i);
-            s1 += w * t1;
-            s0 += w * t0;
-            sw += w;
+    fn point(&self, p: &Problem, fits: &Fits, freq: Option<&[f64]>) -> Result<Points> {
+        // The propensity model first: its failure is the reason reported.
+        let q = probabilities(p, fits)?;
+        let om = fits.outcome()?;
+        let (a, y) = (p.a(), p.y());
+        let mut out = Points::default();
+        let sw: f64 = (0..p.n()).map(|i| freq.map_or(1.0, |f| f[i])).sum();
+        for t in p.targets() {
+            let Target::Level(k) = t else { continue };
+            let m = om.predict(p, t.setting());
+            let s: f64 = (0..p.n())
+                .map(|i| freq.map_or(1.0, |f| f[i]) * term(a[i], k, y[i], m[i], q[k][i]))
+                .sum();
+            out.targets.push(t);
+            out.values.push(s / sw);
         }
-        effect(p.spec.scale, s1 / sw, s0 / sw)
+        Ok(out)
     }
 
-    fn estimate(&self, p: &Problem) -> Result<Estimate> {
-        let f = self.fits(p, None, None)?;
+    fn targets(&self, p: &Problem, fits: &Fits) -> Result<Targets> {
+        // The propensity model first: its failure is the reason reported.
+        let q = probabilities(p, fits)?;
+        let om = fits.outcome()?;
         let n = p.n();
         let nf = n as f64;
-        let (s1, s0) = (0..n).fold((0.0, 0.0), |(s1, s0), i| {
-            let (t1, t0) = Aipw::terms(p, &f, i);
-            (s1 + t1, s0 + t0)
-        });
-        let (mu1, mu0) = (s1 / nf, s0 / nf);
-        let observed = f.om.predict(p, Setting::Observed);
-        let (a, y, e) = (p.a(), p.y(), &f.ps.e);
-        let de = |i: usize| if f.ps.clipped(i) { 0.0 } else { e[i] * (1.0 - e[i]) };
+        let observed = om.predict(p, Setting::Observed);
+        let (a, y) = (p.a(), p.y());
         let prop_rows = p.propensity_rows();
-        // Influence of arm `arm` (1 or 0), given the augmented terms `t`:
-        // d/d beta = (1 - R/q) dm, d/d e = -/+ R (Y - m) / q^2 with
-        // R = 1{A = arm} and q = P(A = arm | L).
-        let arm = |arm: usize, mu: f64| -> Vec<f64> {
-            let (m, setting) = if arm == 1 {
-                (&f.m1, Setting::Fixed(1.0))
-            } else {
-                (&f.m0, Setting::Fixed(0.0))
-            };
-            let r = |i: usize| if arm == 1 { a[i] } else { 1.0 - a[i] };
-            let q = |i: usize| if arm == 1 { e[i] } else { 1.0 - e[i] };
-            let sign = if arm == 1 { -1.0 } else { 1.0 };
-            let u: Vec<f64> = (0..n).map(|i| (1.0 - r(i) / q(i)) / nf).collect();
-            let kb = f.om.gradient(p, setting, m, &u);
+        let mut out = Targets::default();
+        for t in p.targets() {
+            let Target::Level(k) = t else { continue };
+            let m = om.predict(p, t.setting());
+            let mu = (0..n).map(|i| term(a[i], k, y[i], m[i], q[k][i])).sum::<f64>() / nf;
+            let r = |i: usize| f64::from(u8::from(a[i] as usize == k));
+            // d/d beta = (1 - R/q) dm.
+            let u: Vec<f64> = (0..n).map(|i| (1.0 - r(i) / q[k][i]) / nf).collect();
+            let kb = om.gradient(p, t.setting(), &m, &u);
             drop(u);
-            let g: Vec<f64> = (0..n)
-                .map(|i| sign * r(i) * (y[i] - m[i]) / (q(i) * q(i)) * de(i) / nf)
+            let mut phi = om.influence(p, &kb, &observed);
+            // d/d q = -R (Y - m) / q^2, through the propensity model.
+            let dq: Vec<f64> = (0..n)
+                .map(|i| -r(i) * (y[i] - m[i]) / (q[k][i] * q[k][i]) / nf)
                 .collect();
-            let kg = weighted_sum(&prop_rows, &g);
-            drop(g);
-            let mut phi = f.om.influence(p, &kb, &observed);
-            let ig = f.ps.influence(p, &kg);
+            let ig = propensity_influence(p, fits, k, &dq, &prop_rows)?;
             for (i, v) in phi.iter_mut().enumerate() {
-                let t = m[i] + r(i) * (y[i] - m[i]) / q(i);
-                *v += (t - mu) / nf + ig[i];
+                *v += (term(a[i], k, y[i], m[i], q[k][i]) - mu) / nf + ig[i];
             }
-            phi
-        };
-        let arms = Arms {
-            mu1,
-            mu0,
-            phi1: arm(1, mu1),
-            phi0: arm(0, mu0),
-        };
-        let (estimate, std_error, ci) = interval(p.spec.scale, &arms, p.spec.level)?;
-        let mut warnings = Vec::new();
-        if let Some(s) = &f.om.separation {
-            warnings.push(format!("outcome model shows {s}"));
+            out.push(t, mu, phi);
         }
-        let model = if f.om.binary {
-            "logistic regression"
-        } else {
-            "least squares"
-        };
-        Ok(Estimate {
-            method: self.name().into(),
-            estimand: Estimand::Ate,
-            scale: p.spec.scale,
-            estimate,
-            std_error,
-            ci,
-            ci_method: "sandwich".into(),
-            level: p.spec.level,
-            means: Some(Means {
-                exposed: mu1,
-                unexposed: mu0,
-            }),
-            notes: vec![format!(
-                "outcome model: {model} on all rows with the exposure term (as the regression method); \
-                 propensity model: logistic regression"
-            )],
-            warnings,
-            warm: Warm {
-                propensity: Some(f.ps.coef.clone()),
-                outcome: Some(f.om.coef.clone()),
-                ..Warm::default()
-            },
-        })
+        if let Some(s) = &om.separation {
+            out.warnings.push(format!("outcome model shows {s}"));
+        }
+        out.notes.push(format!(
+            "outcome model: {} on all rows with the exposure term (as the regression method); \
+             propensity model: {}",
+            model_words(om),
+            match p.kind {
+                ExposureKind::Binary => "logistic regression",
+                _ => "multinomial logistic regression",
+            }
+        ));
+        Ok(out)
     }
+}
+
+fn model_words(om: &OutcomeFit) -> &'static str {
+    if om.binary {
+        "logistic regression"
+    } else {
+        "least squares"
+    }
+}
+
+/// Each row's influence, through the propensity model's coefficients, of
+/// `sum_i dq_i * (d q_ik / d gamma)` where `q_ik` = P(A = k | L_i).
+fn propensity_influence(
+    p: &Problem,
+    fits: &Fits,
+    k: usize,
+    dq: &[f64],
+    rows: &crate::data::DesignRows<'_>,
+) -> Result<Vec<f64>> {
+    let n = p.n();
+    Ok(match p.kind {
+        ExposureKind::Binary => {
+            // q_1 = e, q_0 = 1 - e; de/d gamma = e (1 - e) x (0 when clipped).
+            let ps = fits.propensity()?;
+            let sign = if k == 1 { 1.0 } else { -1.0 };
+            let g: Vec<f64> = (0..n)
+                .map(|i| {
+                    let de = if ps.clipped(i) { 0.0 } else { ps.e[i] * (1.0 - ps.e[i]) };
+                    sign * dq[i] * de
+                })
+                .collect();
+            ps.influence(p, &weighted_sum(rows, &g))
+        }
+        _ => {
+            // d p_k / d gamma_j = p_k (1{k = j} - p_j) x.
+            let lp = fits.levels()?;
+            let q = p.propensity.ncols();
+            let levels = lp.prob.len();
+            let mut kvec = DVector::zeros(q * (levels - 1));
+            for j in 1..levels {
+                let v: Vec<f64> = (0..n)
+                    .map(|i| dq[i] * lp.prob[k][i] * (f64::from(u8::from(k == j)) - lp.prob[j][i]))
+                    .collect();
+                kvec.rows_mut((j - 1) * q, q).copy_from(&weighted_sum(rows, &v));
+            }
+            lp.influence(p, &kvec)
+        }
+    })
 }

@@ -1,22 +1,124 @@
-//! From two mean outcomes and their influence functions to an effect on the
-//! asked scale, with a delta-method standard error and a normal interval
-//! (difference on its own scale; ratio and odds on the log scale).
+//! Contrasts, in one place: from two targets (mean outcomes) and their
+//! influence functions to an effect on the asked scale, with a
+//! delta-method standard error and a normal interval (difference on its
+//! own scale; ratio and odds on the log scale).
 
+use super::targets::{Points, Target, Targets};
 use super::{Scale, z_value};
 use crate::{Error, Result};
+use serde::Serialize;
 
 /// Mean outcomes under the two settings and their influence functions,
 /// scaled so that `mu_hat - mu ~ sum_i w_i phi_i` (hence
 /// `Var = sum_i w_i phi_i^2`).
-pub(crate) struct Arms {
+pub(crate) struct Arms<'a> {
     pub mu1: f64,
     pub mu0: f64,
-    pub phi1: Vec<f64>,
-    pub phi0: Vec<f64>,
+    pub phi1: &'a [f64],
+    pub phi0: &'a [f64],
+}
+
+/// The two values a contrast compares, as the JSON names them: level
+/// labels for a categorical exposure, doses for a continuous one.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+#[serde(untagged)]
+pub enum ContrastLabel {
+    /// Levels of a categorical exposure.
+    Levels {
+        /// The level compared.
+        level: String,
+        /// The reference level.
+        reference: String,
+    },
+    /// Two doses of a continuous exposure.
+    Doses {
+        /// The dose compared (the second of the contrast).
+        level: f64,
+        /// The reference dose (the first).
+        reference: f64,
+    },
+}
+
+impl ContrastLabel {
+    /// "medium vs none", "20 vs 0".
+    pub fn words(&self) -> String {
+        match self {
+            ContrastLabel::Levels { level, reference } => format!("{level} vs {reference}"),
+            ContrastLabel::Doses { level, reference } => format!("{level} vs {reference}"),
+        }
+    }
+
+    /// The two values as text, (level, reference).
+    pub fn values(&self) -> [String; 2] {
+        match self {
+            ContrastLabel::Levels { level, reference } => [level.clone(), reference.clone()],
+            ContrastLabel::Doses { level, reference } => [format!("{level}"), format!("{reference}")],
+        }
+    }
+}
+
+/// One contrast asked for: `level` against `reference`.
+#[derive(Debug, Clone, PartialEq)]
+pub struct ContrastSpec {
+    /// The target compared.
+    pub level: Target,
+    /// The target compared against.
+    pub reference: Target,
+    /// How the JSON names it (`None`: a binary exposure or a one-unit
+    /// shift, whose rows carry no `contrast`).
+    pub label: Option<ContrastLabel>,
+}
+
+/// A contrast formed from full-sample targets.
+#[derive(Debug, Clone)]
+pub struct Formed {
+    /// Estimate on the scale.
+    pub estimate: f64,
+    /// Standard error (on the ratio scale for ratio and odds).
+    pub std_error: f64,
+    /// Normal interval.
+    pub ci: [f64; 2],
+    /// The two means, (level, reference).
+    pub means: (f64, f64),
+}
+
+/// The contrast `c` of `t` on `scale`; `None` when the estimator did not
+/// form one of its two targets.
+pub fn form(t: &Targets, c: &ContrastSpec, scale: Scale, level: f64) -> Option<Result<Formed>> {
+    let (i1, i0) = (t.position(c.level)?, t.position(c.reference)?);
+    let arms = Arms {
+        mu1: t.values[i1],
+        mu0: t.values[i0],
+        phi1: &t.influence[i1],
+        phi0: &t.influence[i0],
+    };
+    Some(interval(scale, &arms, level).map(|(estimate, std_error, ci)| Formed {
+        estimate,
+        std_error,
+        ci,
+        means: (arms.mu1, arms.mu0),
+    }))
+}
+
+/// The point value of contrast `c` from a replicate's targets; NaN when
+/// it cannot be formed.
+pub fn point(p: &Points, c: &ContrastSpec, scale: Scale) -> f64 {
+    match (p.get(c.level), p.get(c.reference)) {
+        (Some(a), Some(b)) => effect(scale, a, b).unwrap_or(f64::NAN),
+        _ => f64::NAN,
+    }
+}
+
+/// A single target's normal interval (a point of a curve).
+pub fn target_interval(t: &Targets, k: usize, level: f64) -> (f64, [f64; 2]) {
+    let se = t.influence[k].iter().map(|x| x * x).sum::<f64>().sqrt();
+    let z = z_value(level);
+    let v = t.values[k];
+    (se, [v - z * se, v + z * se])
 }
 
 /// The effect on `scale` from the two means.
-pub(crate) fn effect(scale: Scale, mu1: f64, mu0: f64) -> Result<f64> {
+pub fn effect(scale: Scale, mu1: f64, mu0: f64) -> Result<f64> {
     let e = match scale {
         Scale::Difference => mu1 - mu0,
         Scale::Ratio => {
@@ -48,7 +150,7 @@ fn check_risk(mu1: f64, mu0: f64, odds: bool) -> Result<()> {
 }
 
 /// Estimate, standard error and interval.
-pub(crate) fn interval(scale: Scale, arms: &Arms, level: f64) -> Result<(f64, f64, [f64; 2])> {
+pub(crate) fn interval(scale: Scale, arms: &Arms<'_>, level: f64) -> Result<(f64, f64, [f64; 2])> {
     let est = effect(scale, arms.mu1, arms.mu0)?;
     let (d1, d0) = match scale {
         Scale::Difference => (1.0, 1.0),
@@ -61,7 +163,7 @@ pub(crate) fn interval(scale: Scale, arms: &Arms, level: f64) -> Result<(f64, f6
     let var: f64 = arms
         .phi1
         .iter()
-        .zip(&arms.phi0)
+        .zip(arms.phi0)
         .map(|(a, b)| (d1 * a - d0 * b).powi(2))
         .sum();
     let se = var.sqrt();
@@ -88,8 +190,8 @@ mod tests {
         let arms = Arms {
             mu1: 0.5,
             mu0: 0.25,
-            phi1: vec![0.1, 0.0],
-            phi0: vec![0.0, -0.1],
+                phi1: &[0.1, 0.0],
+            phi0: &[0.0, -0.1],
         };
         let (e, se, ci) = interval(Scale::Ratio, &arms, 0.95).unwrap();
         let sl = (0.04f64 + 0.16).sqrt();

@@ -10,9 +10,9 @@
 //! arm's weight; a weight above 10 times the mean; |SMD| above 0.1 after
 //! weighting) are common practice, no source.
 
-use super::propensity::{Propensity, arm_weights};
-use super::{Estimand, Problem};
-use crate::Result;
+use super::ipw::arm_weights;
+use crate::learn::{DoseDensity, LevelPropensity, Propensity};
+use crate::problem::{Estimand, Problem};
 use serde::Serialize;
 
 /// Smallest and largest value.
@@ -130,10 +130,8 @@ fn smd(x: &[f64], w1: &[f64], w0: &[f64]) -> f64 {
     if s > 0.0 { (m1 - m0) / s } else { 0.0 }
 }
 
-/// Computes the diagnostics on the full sample (binary exposure only).
-pub fn diagnostics(p: &Problem) -> Result<Diagnostics> {
-    p.require_binary_exposure("diagnostics")?;
-    let ps = Propensity::fit(p, None, None)?;
+/// The diagnostics of a binary exposure's full-sample propensity model.
+pub fn diagnostics(p: &Problem, ps: &Propensity) -> Diagnostics {
     let (a, n) = (p.a(), p.n());
     let treated = range((0..n).filter(|&i| a[i] == 1.0).map(|i| ps.raw(i)));
     let control = range((0..n).filter(|&i| a[i] == 0.0).map(|i| ps.raw(i)));
@@ -230,12 +228,12 @@ pub fn diagnostics(p: &Problem) -> Result<Diagnostics> {
             poor.join(", ")
         ));
     }
-    Ok(Diagnostics {
+    Diagnostics {
         propensity,
         weights,
         balance,
         warnings,
-    })
+    }
 }
 
 fn balance(p: &Problem, h1: &[f64], h0: &[f64]) -> Vec<Balance> {
@@ -256,4 +254,171 @@ fn balance(p: &Problem, h1: &[f64], h0: &[f64]) -> Vec<Balance> {
         });
     }
     out
+}
+
+/// The diagnostics of one level of a categorical exposure.
+#[derive(Debug, Clone, Serialize)]
+pub struct LevelDiagnostics {
+    /// The level.
+    pub level: String,
+    /// Rows at this level.
+    pub rows: usize,
+    /// Range of P(A = level | L) among the rows at this level.
+    pub propensity: Range,
+    /// Rows at this level whose probability of it lies outside the range
+    /// of the same probability among the rows at the other levels.
+    pub outside_others_range: usize,
+    /// The weights 1 / P(A = level | L) of the rows at this level.
+    pub weights: Summary,
+    /// Kish effective sample size of those weights.
+    pub ess: f64,
+    /// Balance of each adjustment term against the reference level, before
+    /// and after weighting (absent for the reference level itself).
+    #[serde(skip_serializing_if = "Vec::is_empty")]
+    pub balance: Vec<Balance>,
+}
+
+/// Per-level diagnostics of a categorical exposure, and warnings.
+pub fn level_diagnostics(p: &Problem, lp: &LevelPropensity) -> (Vec<LevelDiagnostics>, Vec<String>) {
+    let (a, n) = (p.a(), p.n());
+    let levels = p.levels();
+    let at = |i: usize, k: usize| a[i] as usize == k;
+    let weight = |k: usize| -> Vec<f64> {
+        (0..n)
+            .map(|i| if at(i, k) { 1.0 / lp.prob[k][i] } else { 0.0 })
+            .collect()
+    };
+    let reference = weight(0);
+    let rows = p.propensity_rows();
+    let columns: Vec<(String, Vec<f64>)> = p
+        .propensity
+        .terms()
+        .iter()
+        .enumerate()
+        .filter(|(_, t)| !t.is_intercept())
+        .map(|(j, t)| (t.name.clone(), rows.column(j)))
+        .collect();
+    let ref_raw: Vec<f64> = (0..n).map(|i| f64::from(u8::from(at(i, 0)))).collect();
+    let mut out = Vec::new();
+    let mut warnings = Vec::new();
+    for (k, label) in levels.iter().enumerate() {
+        let own = range((0..n).filter(|&i| at(i, k)).map(|i| lp.prob[k][i]));
+        let others = range((0..n).filter(|&i| !at(i, k)).map(|i| lp.prob[k][i]));
+        let outside = (0..n)
+            .filter(|&i| at(i, k) && (lp.prob[k][i] < others.min || lp.prob[k][i] > others.max))
+            .count();
+        let h = weight(k);
+        let hk: Vec<f64> = h.iter().copied().filter(|&x| x > 0.0).collect();
+        let wr = range(hk.iter().copied());
+        let ess = hk.iter().sum::<f64>().powi(2) / hk.iter().map(|x| x * x).sum::<f64>();
+        let raw: Vec<f64> = (0..n).map(|i| f64::from(u8::from(at(i, k)))).collect();
+        let balance = if k == 0 {
+            Vec::new()
+        } else {
+            columns
+                .iter()
+                .map(|(name, col)| Balance {
+                    covariate: name.clone(),
+                    smd_raw: smd(col, &raw, &ref_raw),
+                    smd_weighted: smd(col, &h, &reference),
+                })
+                .collect()
+        };
+        let near = (0..n).filter(|&i| at(i, k) && lp.prob[k][i] < 0.01).count();
+        if near > 0 {
+            warnings.push(format!(
+                "{near} rows at level {label} had a probability below 0.01 of that level (positivity is in doubt)"
+            ));
+        }
+        let poor: Vec<&str> = balance
+            .iter()
+            .filter(|b| b.smd_weighted.abs() > 0.1)
+            .map(|b| b.covariate.as_str())
+            .collect();
+        if !poor.is_empty() {
+            warnings.push(format!(
+                "after weighting, level {label} against {}: standardized mean differences above 0.1 remain for: {}",
+                levels[0],
+                poor.join(", ")
+            ));
+        }
+        out.push(LevelDiagnostics {
+            level: label.clone(),
+            rows: hk.len(),
+            propensity: own,
+            outside_others_range: outside,
+            weights: Summary {
+                mean: hk.iter().sum::<f64>() / hk.len().max(1) as f64,
+                min: wr.min,
+                max: wr.max,
+            },
+            ess,
+            balance,
+        });
+    }
+    (out, warnings)
+}
+
+/// The diagnostics of the stabilized weights of a continuous exposure.
+#[derive(Debug, Clone, Serialize)]
+pub struct DoseDiagnostics {
+    /// Mean, smallest and largest stabilized weight.
+    pub weights: Summary,
+    /// Kish effective sample size of the weights.
+    pub ess: f64,
+    /// Residual standard deviation of the exposure's linear model.
+    pub residual_sd: f64,
+    /// Skewness of its standardized residuals.
+    pub residual_skewness: f64,
+    /// Excess kurtosis of its standardized residuals.
+    pub residual_excess_kurtosis: f64,
+}
+
+/// Largest absolute skewness, and excess kurtosis, of the exposure model's
+/// residuals before a warning says the normal density fits poorly (rules
+/// of thumb, common practice, no source).
+const SKEW_LIMIT: f64 = 1.0;
+const KURTOSIS_LIMIT: f64 = 2.0;
+
+/// Weight diagnostics of a continuous exposure, and warnings.
+pub fn dose_diagnostics(dd: &DoseDensity) -> (DoseDiagnostics, Vec<String>) {
+    let w = &dd.weights;
+    let n = w.len() as f64;
+    let r = range(w.iter().copied());
+    let mean = w.iter().sum::<f64>() / n;
+    let ess = w.iter().sum::<f64>().powi(2) / w.iter().map(|x| x * x).sum::<f64>();
+    let zm = dd.z.iter().sum::<f64>() / n;
+    let m2 = dd.z.iter().map(|z| (z - zm).powi(2)).sum::<f64>() / n;
+    let m3 = dd.z.iter().map(|z| (z - zm).powi(3)).sum::<f64>() / n;
+    let m4 = dd.z.iter().map(|z| (z - zm).powi(4)).sum::<f64>() / n;
+    let skew = m3 / m2.powf(1.5);
+    let kurt = m4 / (m2 * m2) - 3.0;
+    let mut warnings = Vec::new();
+    if skew.abs() > SKEW_LIMIT || kurt > KURTOSIS_LIMIT {
+        warnings.push(format!(
+            "the normal model of the exposure fits poorly (residual skewness {skew:.2}, excess kurtosis \
+             {kurt:.2}): the density-ratio weights may be unreliable; consider transforming the exposure"
+        ));
+    }
+    if r.max > 10.0 * mean {
+        warnings.push(format!(
+            "extreme stabilized weights: the largest is {:.2} ({:.1}x the mean)",
+            r.max,
+            r.max / mean
+        ));
+    }
+    (
+        DoseDiagnostics {
+            weights: Summary {
+                mean,
+                min: r.min,
+                max: r.max,
+            },
+            ess,
+            residual_sd: dd.sigma,
+            residual_skewness: skew,
+            residual_excess_kurtosis: kurt,
+        },
+        warnings,
+    )
 }

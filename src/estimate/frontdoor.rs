@@ -12,18 +12,37 @@
 //!   Stat 1934;5:161-215). Standard error by the delta method with the
 //!   coefficients' joint (robust) influence functions.
 //!
+//!   The targets then hold the effect per unit of the exposure (a
+//!   one-unit shift, or a dose times the effect, against 0), not means;
+//!   their means are not reported.
+//!
 //! No adjustment covariates are used: the front-door strategy needs none.
 
-use super::contrast::{Arms, effect, interval};
-use super::{Estimand, Estimate, Means, Method, Problem, Scale, Warm, z_value};
+use super::{About, Estimator, ExposureKind, Points, Serves, Target, Targets};
 use crate::data::{Design, Kind, Setting, Shape};
 use crate::error::Setting as Opt;
+use crate::identify::Strategy;
+use crate::learn::{Fits, Needs};
 use crate::model::{Ols, linear_predictor};
+use crate::problem::{Estimand, Problem, Scale};
 use crate::{Error, Result};
 use nalgebra::DVector;
 
 /// The front-door plug-in estimator.
 pub struct FrontDoor;
+
+static ABOUT: About = About {
+    name: "frontdoor",
+    label: "front-door formula",
+    strategies: &[Strategy::Frontdoor],
+    serves: &[Serves::Binary, Serves::Dose],
+    estimands: &[Estimand::Ate],
+    needs: Needs {
+        outcome: false,
+        exposure: false,
+    },
+    default: true,
+};
 
 enum Path {
     Discrete,
@@ -36,9 +55,6 @@ fn path(p: &Problem) -> Result<Path> {
             Opt::Method,
             "frontdoor needs a front-door mediator set",
         ));
-    }
-    if p.spec.estimand != Estimand::Ate {
-        return Err(Error::option(Opt::Method, "frontdoor estimates the ATE only"));
     }
     let discrete = |j: usize| !matches!(p.frame.kind(j), Kind::Numeric);
     if p.mediators.iter().all(|&m| discrete(m)) {
@@ -203,83 +219,70 @@ fn linear(p: &Problem, freq: Option<&[f64]>, with_se: bool) -> Result<LinearFit>
     Ok(LinearFit { effect, phi })
 }
 
-impl Method for FrontDoor {
-    fn name(&self) -> &'static str {
-        "frontdoor"
+/// The value of target `t` under a linear path of effect `e` per unit.
+fn per_unit(t: Target) -> f64 {
+    match t {
+        Target::Level(k) => k as f64,
+        Target::Dose(x) => x,
+        Target::Shifted => 1.0,
+        Target::Observed => 0.0,
+    }
+}
+
+impl Estimator for FrontDoor {
+    fn about(&self) -> &'static About {
+        &ABOUT
     }
 
-    fn point(&self, p: &Problem, freq: Option<&[f64]>, _warm: Option<&Warm>) -> Result<f64> {
-        match path(p)? {
+    fn methods_sentence(&self, _kind: &ExposureKind) -> String {
+        "The front-door formula was applied by plug-in (Pearl 1995).".into()
+    }
+
+    fn point(&self, p: &Problem, _fits: &Fits, freq: Option<&[f64]>) -> Result<Points> {
+        let targets = p.targets();
+        let values = match path(p)? {
             Path::Discrete => {
                 let (cell, k) = cells(p);
                 let t = table(p, &cell, k, freq)?;
-                effect(p.spec.scale, t.psi(1), t.psi(0))
+                targets.iter().map(|&x| match x {
+                    Target::Level(l) => t.psi(l),
+                    _ => f64::NAN,
+                }).collect()
             }
-            Path::Linear => Ok(linear(p, freq, false)?.effect),
-        }
+            Path::Linear => {
+                let e = linear(p, freq, false)?.effect;
+                targets.iter().map(|&x| per_unit(x) * e).collect()
+            }
+        };
+        Ok(Points { targets, values })
     }
 
-    fn estimate(&self, p: &Problem) -> Result<Estimate> {
-        let (estimate, std_error, ci, means, note) = match path(p)? {
+    fn targets(&self, p: &Problem, _fits: &Fits) -> Result<Targets> {
+        let mut out = Targets::default();
+        let note = match path(p)? {
             Path::Discrete => {
                 let (cell, k) = cells(p);
                 let t = table(p, &cell, k, None)?;
-                let arms = Arms {
-                    mu1: t.psi(1),
-                    mu0: t.psi(0),
-                    phi1: t.influence(p, &cell, 1),
-                    phi0: t.influence(p, &cell, 0),
-                };
-                let (e, se, ci) = interval(p.spec.scale, &arms, p.spec.level)?;
-                let means = Means {
-                    exposed: arms.mu1,
-                    unexposed: arms.mu0,
-                };
-                (
-                    e,
-                    se,
-                    ci,
-                    Some(means),
-                    "empirical proportions and cell means of the mediator cells",
-                )
+                for x in [1, 0] {
+                    out.push(Target::Level(x), t.psi(x), t.influence(p, &cell, x));
+                }
+                "empirical proportions and cell means of the mediator cells"
             }
             Path::Linear => {
                 let f = linear(p, None, true)?;
-                let se = f
-                    .phi
-                    .unwrap_or_default()
-                    .iter()
-                    .map(|x| x * x)
-                    .sum::<f64>()
-                    .sqrt();
-                let z = z_value(p.spec.level);
-                let ci = [f.effect - z * se, f.effect + z * se];
-                (
-                    f.effect,
-                    se,
-                    ci,
-                    None,
-                    "product of the exposure-mediator and mediator-outcome least-squares coefficients",
-                )
+                let phi = f.phi.unwrap_or_default();
+                for x in p.targets() {
+                    let u = per_unit(x);
+                    out.push(x, u * f.effect, phi.iter().map(|v| u * v).collect());
+                }
+                out.means_hidden = true;
+                "product of the exposure-mediator and mediator-outcome least-squares coefficients"
             }
         };
-        let mut notes = vec![format!("front-door formula by plug-in: {note}")];
-        if !p.binary_exposure() {
-            notes.push("effect of a one-unit increase in the exposure".into());
+        out.notes.push(format!("front-door formula by plug-in: {note}"));
+        if p.kind != ExposureKind::Binary {
+            out.notes.push("effect of a one-unit increase in the exposure".into());
         }
-        Ok(Estimate {
-            method: self.name().into(),
-            estimand: Estimand::Ate,
-            scale: p.spec.scale,
-            estimate,
-            std_error,
-            ci,
-            ci_method: "sandwich".into(),
-            level: p.spec.level,
-            means,
-            notes,
-            warnings: Vec::new(),
-            warm: Warm::default(),
-        })
+        Ok(out)
     }
 }

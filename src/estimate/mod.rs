@@ -1,96 +1,294 @@
-//! The estimate stage: each method behind one small trait, [`Method`].
+//! The estimators, one axis of estimation: each turns an identifying
+//! formula into [`Targets`], mean outcomes with per-row influence
+//! functions, from the nuisance models in a [`Fits`]. Contrasts between
+//! targets (difference, ratio, odds ratio) are formed in one place,
+//! [`contrast`], and so are the JSON rows ([`rows`]).
 //!
-//! A [`Problem`] is prepared once from the data and a [`Spec`]; every
-//! method reads it. [`Method::point`] gives the point estimate under
-//! frequency weights (the bootstrap calls it in parallel, warm-started from
-//! the full-sample fit; a replicate whose model fails returns an error, to
-//! be counted); [`Method::estimate`] gives the full-sample estimate with an
-//! analytic (sandwich) standard error and interval.
+//! Each estimator declares once what it is, in its [`About`]: its name,
+//! label, source, the strategies and exposure kinds it serves, the
+//! estimands it forms and the nuisance models it needs. The pipeline, the
+//! reports and the help read that declaration; nothing lists the
+//! estimators a second time.
 //!
-//! Methods: [`Regression`] (standardization, the parametric g-formula),
-//! [`Ipw`] (Hajek or Horvitz-Thompson weighting), [`Aipw`] (doubly robust),
-//! [`FrontDoor`] (Pearl's front-door formula). Weighting methods need a
-//! binary exposure; a continuous exposure is estimated by regression only.
-//! [`diagnostics()`] and [`sensitivity_inputs`] serve the report.
+//! Estimators: [`Regression`] (standardization, the parametric g-formula),
+//! [`Ipw`] (Hajek or Horvitz-Thompson weighting; a marginal structural
+//! model for a dose), [`Aipw`] (doubly robust), [`FrontDoor`] (Pearl's
+//! front-door formula). [`diagnostics()`] and [`sensitivity_inputs`] serve
+//! the report.
 //!
 //! Every estimate is only as valid as the declared graph and the usual
 //! assumptions: no unmeasured confounding beyond the graph, positivity,
 //! consistency, and correctly specified models.
 
 mod aipw;
-mod contrast;
+pub mod contrast;
 mod diagnostics;
 mod frontdoor;
 mod ipw;
-mod outcome;
-mod problem;
-mod propensity;
 mod regression;
 mod result;
 mod sensitivity;
+mod targets;
 
 pub use aipw::Aipw;
+pub use contrast::{ContrastLabel, ContrastSpec};
 pub use diagnostics::{
-    Balance, Diagnostics, PropensityDiagnostics, Range, Summary, WeightDiagnostics, diagnostics,
+    Balance, Diagnostics, DoseDiagnostics, LevelDiagnostics, PropensityDiagnostics, Range, Summary,
+    WeightDiagnostics, diagnostics, dose_diagnostics, level_diagnostics,
 };
 pub use frontdoor::FrontDoor;
 pub use ipw::Ipw;
-pub use problem::{Problem, Spec};
 pub use regression::Regression;
-pub use result::{Estimand, Estimate, Means, Scale, Warm, z_value};
-pub use sensitivity::{SensitivityInputs, TermStat, sensitivity_inputs};
+pub use result::{Estimate, Means, z_value};
+pub use sensitivity::{SensitivityInputs, TermStat, level_coefficients, sensitivity_inputs};
+pub use targets::{ExposureKind, Points, Serves, Target, Targets};
 
+pub use crate::problem::{Estimand, Problem, Scale, Spec};
+
+use crate::identify::Strategy;
+use crate::learn::{Fits, Needs};
 use crate::{Error, Result, Setting};
 
-/// An estimation method.
-pub trait Method: Sync {
-    /// The method's name in output (`regression`, `ipw`, ...).
-    fn name(&self) -> &'static str;
-    /// Point estimate under frequency weights (`None` = all ones),
-    /// warm-started from `warm`.
-    fn point(&self, p: &Problem, freq: Option<&[f64]>, warm: Option<&Warm>) -> Result<f64>;
-    /// Full-sample estimate with analytic standard error, interval and
-    /// method-specific notes.
-    fn estimate(&self, p: &Problem) -> Result<Estimate>;
+/// What an estimator is, declared once.
+#[derive(Debug, Clone, Copy)]
+pub struct About {
+    /// Its name in output and in the method list (`regression`, `ipw`, ...).
+    pub name: &'static str,
+    /// Its label in reports ("regression (standardization)").
+    pub label: &'static str,
+    /// The identification strategies it serves.
+    pub strategies: &'static [Strategy],
+    /// The exposure kinds it serves.
+    pub serves: &'static [Serves],
+    /// The estimands it forms.
+    pub estimands: &'static [Estimand],
+    /// The nuisance models it needs.
+    pub needs: Needs,
+    /// Run by default when it applies.
+    pub default: bool,
 }
 
-/// Every method name [`method`] accepts.
-pub const METHODS: [&str; 5] = ["regression", "ipw", "ipw-ht", "aipw", "frontdoor"];
+/// An estimator.
+pub trait Estimator: Sync {
+    /// What it is.
+    fn about(&self) -> &'static About;
+    /// How it was carried out and its source, one sentence for a paper's
+    /// methods paragraph, for this exposure kind.
+    fn methods_sentence(&self, kind: &ExposureKind) -> String;
+    /// The problem's targets under frequency weights `freq` (`None`: all
+    /// ones), from fits made under the same weights; no influence
+    /// functions (what a bootstrap replicate needs).
+    fn point(&self, p: &Problem, fits: &Fits, freq: Option<&[f64]>) -> Result<Points>;
+    /// The full-sample targets with their influence functions, from the
+    /// full-sample fits.
+    fn targets(&self, p: &Problem, fits: &Fits) -> Result<Targets>;
+}
 
-/// The method called `name`.
-pub fn method(name: &str) -> Result<Box<dyn Method>> {
-    Ok(match name {
-        "regression" => Box::new(Regression),
-        "ipw" => Box::new(Ipw {
-            horvitz_thompson: false,
-        }),
-        "ipw-ht" => Box::new(Ipw {
-            horvitz_thompson: true,
-        }),
-        "aipw" => Box::new(Aipw),
-        "frontdoor" => Box::new(FrontDoor),
-        _ => {
-            return Err(Error::option(
+/// Every estimator, in the order of the method list.
+pub const ESTIMATORS: [&dyn Estimator; 5] = [
+    &Regression,
+    &Ipw {
+        horvitz_thompson: false,
+    },
+    &Ipw {
+        horvitz_thompson: true,
+    },
+    &Aipw,
+    &FrontDoor,
+];
+
+/// Every method name [`by_name`] accepts.
+pub fn names() -> Vec<&'static str> {
+    ESTIMATORS.iter().map(|e| e.about().name).collect()
+}
+
+/// The estimator called `name`.
+pub fn by_name(name: &str) -> Result<&'static dyn Estimator> {
+    ESTIMATORS
+        .iter()
+        .copied()
+        .find(|e| e.about().name == name)
+        .ok_or_else(|| {
+            Error::option(
                 Setting::Method,
-                format!("'{name}': expected one of {}", METHODS.join(", ")),
-            ));
-        }
-    })
+                format!("'{name}': expected one of {}", names().join(", ")),
+            )
+        })
 }
 
-/// The default methods for a problem: `frontdoor` when it has mediators;
-/// otherwise `regression`, plus `ipw` and (for the ATE) `aipw` when the
-/// exposure is binary.
-pub fn applicable(p: &Problem) -> Vec<&'static str> {
-    if !p.mediators.is_empty() {
-        return vec!["frontdoor"];
+/// Why `e` does not apply to `p` under `strategy`, if it does not.
+pub fn refusal(e: &dyn Estimator, p: &Problem, strategy: Strategy) -> Option<Error> {
+    let a = e.about();
+    if !a.strategies.contains(&strategy) {
+        let fitting: Vec<&str> = ESTIMATORS
+            .iter()
+            .filter(|x| x.about().strategies.contains(&strategy))
+            .map(|x| x.about().name)
+            .collect();
+        return Some(Error::option(
+            Setting::Method,
+            format!(
+                "'{}' does not fit the {} strategy of this graph (it takes: {})",
+                a.name,
+                strategy.name(),
+                fitting.join(", ")
+            ),
+        ));
     }
-    let mut m = vec!["regression"];
-    if p.binary_exposure() {
-        m.push("ipw");
-        if p.spec.estimand == Estimand::Ate {
-            m.push("aipw");
+    if !a.serves.iter().any(|s| s.covers(&p.kind)) {
+        let fitting: Vec<&str> = ESTIMATORS
+            .iter()
+            .filter(|x| x.about().strategies.contains(&strategy) && x.about().serves.iter().any(|s| s.covers(&p.kind)))
+            .map(|x| x.about().name)
+            .collect();
+        return Some(Error::option(
+            Setting::Method,
+            format!(
+                "'{}' does not serve a {} exposure such as '{}' (for it: {})",
+                a.name,
+                p.kind.words(),
+                p.spec.exposure,
+                fitting.join(", ")
+            ),
+        ));
+    }
+    if !a.estimands.contains(&p.spec.estimand) {
+        let forms: Vec<String> = a.estimands.iter().map(|e| e.to_string()).collect();
+        return Some(Error::option(
+            Setting::Method,
+            format!(
+                "'{}' estimates the {} only; use regression or ipw for the {}",
+                a.name,
+                forms.join(" and "),
+                p.spec.estimand
+            ),
+        ));
+    }
+    None
+}
+
+/// The default estimators for `p` under `strategy`: every one marked
+/// default that applies.
+pub fn applicable(p: &Problem, strategy: Strategy) -> Vec<&'static dyn Estimator> {
+    ESTIMATORS
+        .iter()
+        .copied()
+        .filter(|e| e.about().default && refusal(*e, p, strategy).is_none())
+        .collect()
+}
+
+/// The nuisance models `estimators` need together.
+pub fn needs(estimators: &[&dyn Estimator]) -> Needs {
+    estimators
+        .iter()
+        .fold(Needs::default(), |n, e| n.union(e.about().needs))
+}
+
+/// The estimate rows of `e` on `p`: one per contrast of the problem that
+/// the estimator's targets form, with the sandwich interval; and the
+/// targets themselves (for curves).
+pub fn rows(e: &dyn Estimator, p: &Problem, fits: &Fits) -> Result<(Vec<Estimate>, Targets)> {
+    let t = e.targets(p, fits)?;
+    let mut out = Vec::new();
+    for c in p.contrasts() {
+        let Some(formed) = contrast::form(&t, &c, p.spec.scale, p.spec.level) else {
+            continue;
+        };
+        let f = formed?;
+        out.push(Estimate {
+            method: e.about().name.into(),
+            estimand: p.spec.estimand,
+            scale: p.spec.scale,
+            contrast: c.label.clone(),
+            estimate: f.estimate,
+            std_error: f.std_error,
+            ci: f.ci,
+            ci_method: "sandwich".into(),
+            level: p.spec.level,
+            means: (!t.means_hidden).then(|| Means {
+                exposed: f.means.0,
+                unexposed: f.means.1,
+                labels: c.label.as_ref().map(ContrastLabel::values),
+            }),
+            notes: t.notes.clone(),
+            warnings: t.warnings.clone(),
+        });
+    }
+    Ok((out, t))
+}
+
+/// A replicate's contrast values, in the order of [`rows`] for the same
+/// estimator, then its curve points: NaN where one cannot be formed.
+pub fn replicate(points: &Points, p: &Problem, row_contrasts: &[ContrastSpec], curve: &[Target]) -> Vec<f64> {
+    let mut v: Vec<f64> = row_contrasts
+        .iter()
+        .map(|c| contrast::point(points, c, p.spec.scale))
+        .collect();
+    v.extend(curve.iter().map(|&t| points.get(t).unwrap_or(f64::NAN)));
+    v
+}
+
+/// One estimator used on its own, for library users: it fits the
+/// nuisance models it needs itself and reports the problem's first
+/// contrast (the only one for a binary exposure).
+#[derive(Clone, Copy)]
+pub struct Method(pub &'static dyn Estimator);
+
+/// The estimator called `name`, to use on its own.
+pub fn method(name: &str) -> Result<Method> {
+    by_name(name).map(Method)
+}
+
+impl Method {
+    /// The problem's strategy as far as an estimator can tell: front-door
+    /// when the problem has mediators.
+    fn strategy(p: &Problem) -> Strategy {
+        if p.mediators.is_empty() {
+            Strategy::Backdoor
+        } else {
+            Strategy::Frontdoor
         }
     }
-    m
+
+    /// The full-sample fits this estimator needs.
+    pub fn fits(&self, p: &Problem) -> Fits {
+        Fits::fit(p, None, None, self.0.about().needs)
+    }
+
+    /// The full-sample estimate of the first contrast.
+    pub fn estimate(&self, p: &Problem) -> Result<Estimate> {
+        if let Some(e) = refusal(self.0, p, Self::strategy(p)) {
+            return Err(e);
+        }
+        let (rows, _) = rows(self.0, p, &self.fits(p))?;
+        rows.into_iter()
+            .next()
+            .ok_or_else(|| Error::Numerical(format!("{} forms no contrast here", self.0.about().name)))
+    }
+
+    /// The first contrast under frequency weights `freq`, its models
+    /// started from the full-sample `full` when given.
+    pub fn point(&self, p: &Problem, freq: Option<&[f64]>, full: Option<&Fits>) -> Result<f64> {
+        if let Some(e) = refusal(self.0, p, Self::strategy(p)) {
+            return Err(e);
+        }
+        let fits = Fits::fit(p, freq, full, self.0.about().needs);
+        let points = self.0.point(p, &fits, freq)?;
+        let c = p
+            .contrasts()
+            .into_iter()
+            .next()
+            .ok_or_else(|| Error::Numerical("no contrast".into()))?;
+        let v = contrast::point(&points, &c, p.spec.scale);
+        if v.is_finite() {
+            Ok(v)
+        } else {
+            // Say why, as the full-sample estimate would.
+            contrast::effect(
+                p.spec.scale,
+                points.get(c.level).unwrap_or(f64::NAN),
+                points.get(c.reference).unwrap_or(f64::NAN),
+            )
+        }
+    }
 }

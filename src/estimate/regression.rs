@@ -7,14 +7,28 @@
 //! 2002;56:29-38), so it accounts for both the fitted coefficients and the
 //! averaging over covariates.
 
-use super::contrast::{Arms, effect, interval};
-use super::outcome::OutcomeModel;
-use super::{Estimate, Means, Method, Problem, Warm};
+use super::{About, Estimator, ExposureKind, Points, Serves, Target, Targets};
 use crate::data::Setting;
+use crate::identify::Strategy;
+use crate::learn::{Fits, Needs, OutcomeFit};
+use crate::problem::{Estimand, Problem};
 use crate::{Error, Result};
 
 /// Standardization over the outcome model.
 pub struct Regression;
+
+static ABOUT: About = About {
+    name: "regression",
+    label: "regression (standardization)",
+    strategies: &[Strategy::Backdoor],
+    serves: &[Serves::Binary, Serves::Levels, Serves::Dose],
+    estimands: &[Estimand::Ate, Estimand::Att, Estimand::Atc],
+    needs: Needs {
+        outcome: true,
+        exposure: false,
+    },
+    default: true,
+};
 
 /// Weighted mean of `m` over `u` (`u` = frequency x group).
 fn mean(m: &[f64], u: &[f64]) -> f64 {
@@ -26,36 +40,36 @@ fn mean(m: &[f64], u: &[f64]) -> f64 {
 }
 
 /// Frequency weight times estimand-group membership for every row.
-pub(crate) fn group_weights(p: &Problem, freq: Option<&[f64]>) -> Vec<f64> {
+fn group_weights(p: &Problem, freq: Option<&[f64]>) -> Vec<f64> {
     (0..p.n())
         .map(|i| freq.map_or(1.0, |f| f[i]) * p.group(i))
         .collect()
 }
 
-impl Regression {
-    fn fit<'a>(&self, p: &'a Problem, freq: Option<&[f64]>, warm: Option<&Warm>) -> Result<OutcomeModel<'a>> {
-        OutcomeModel::fit(p, freq, warm)
-    }
-}
-
-impl Method for Regression {
-    fn name(&self) -> &'static str {
-        "regression"
+impl Estimator for Regression {
+    fn about(&self) -> &'static About {
+        &ABOUT
     }
 
-    fn point(&self, p: &Problem, freq: Option<&[f64]>, warm: Option<&Warm>) -> Result<f64> {
-        let m = self.fit(p, freq, warm)?;
+    fn methods_sentence(&self, kind: &ExposureKind) -> String {
+        let form = match kind {
+            ExposureKind::Dose => " at each dose of the curve",
+            ExposureKind::Levels(_) => " at each exposure level",
+            ExposureKind::Binary => "",
+        };
+        format!("The outcome model was standardized over the sample{form} (the parametric g-formula; Robins 1986).")
+    }
+
+    fn point(&self, p: &Problem, fits: &Fits, freq: Option<&[f64]>) -> Result<Points> {
+        let m = fits.outcome()?;
         let u = group_weights(p, freq);
-        let (s1, s0) = p.settings();
-        effect(
-            p.spec.scale,
-            mean(&m.predict(p, s1), &u),
-            mean(&m.predict(p, s0), &u),
-        )
+        let targets = p.targets();
+        let values = targets.iter().map(|t| mean(&m.predict(p, t.setting()), &u)).collect();
+        Ok(Points { targets, values })
     }
 
-    fn estimate(&self, p: &Problem) -> Result<Estimate> {
-        let m = self.fit(p, None, None)?;
+    fn targets(&self, p: &Problem, fits: &Fits) -> Result<Targets> {
+        let m = fits.outcome()?;
         let u = group_weights(p, None);
         let total: f64 = u.iter().sum();
         if total <= 0.0 {
@@ -65,25 +79,13 @@ impl Method for Regression {
             )));
         }
         let observed = m.predict(p, Setting::Observed);
-        let (s1, s0) = p.settings();
-        let arm = |s: Setting| {
-            let pred = m.predict(p, s);
-            let mu = mean(&pred, &u);
-            let scaled: Vec<f64> = u.iter().map(|g| g / total).collect();
-            let k = m.gradient(p, s, &pred, &scaled);
-            let infl = m.influence(p, &k, &observed);
-            let phi: Vec<f64> = (0..p.n())
-                .map(|i| u[i] * (pred[i] - mu) / total + infl[i])
-                .collect();
-            (mu, phi)
-        };
-        let (mu1, phi1) = arm(s1);
-        let (mu0, phi0) = arm(s0);
-        let arms = Arms { mu1, mu0, phi1, phi0 };
-        let (estimate, std_error, ci) = interval(p.spec.scale, &arms, p.spec.level)?;
-        let mut warnings = Vec::new();
+        let mut out = Targets::default();
+        for t in p.targets() {
+            let (mu, phi) = arm(p, m, t, &u, total, &observed);
+            out.push(t, mu, phi);
+        }
         if let Some(s) = &m.separation {
-            warnings.push(format!(
+            out.warnings.push(format!(
                 "outcome model shows {s}; predictions near 0 or 1 are unstable"
             ));
         }
@@ -92,47 +94,42 @@ impl Method for Regression {
         } else {
             "least squares"
         };
-        let products: Vec<String> = m
-            .design
+        let products: Vec<String> = p
+            .outcome_design
             .terms()
             .iter()
             .filter(|t| t.factors.len() > 1 && t.uses(p.exposure))
             .map(|t| t.name.clone())
             .collect();
-        let mut notes = vec![format!(
+        out.notes.push(format!(
             "outcome model: {model} on the exposure and the adjustment terms{}",
             if products.is_empty() {
                 String::new()
             } else {
                 format!(", with products {}", products.join(", "))
             }
-        )];
-        if !p.binary_exposure() {
-            notes.push(match p.spec.contrast {
+        ));
+        if p.kind == ExposureKind::Dose {
+            out.notes.push(match p.spec.contrast {
                 Some((a, b)) => format!("effect of setting the exposure to {b} rather than {a}"),
                 None => "effect of raising the exposure by one unit from its observed values".into(),
             });
         }
-        Ok(Estimate {
-            method: self.name().into(),
-            estimand: p.spec.estimand,
-            scale: p.spec.scale,
-            estimate,
-            std_error,
-            ci,
-            ci_method: "sandwich".into(),
-            level: p.spec.level,
-            means: Some(Means {
-                exposed: arms.mu1,
-                unexposed: arms.mu0,
-            }),
-            notes,
-            warnings,
-            warm: Warm {
-                propensity: None,
-                outcome: Some(m.coef.clone()),
-                ..Warm::default()
-            },
-        })
+        Ok(out)
     }
+}
+
+/// The mean under target `t` and its influence: the averaging over the
+/// estimand's population stacked with the outcome model's score equations.
+fn arm(p: &Problem, m: &OutcomeFit, t: Target, u: &[f64], total: f64, observed: &[f64]) -> (f64, Vec<f64>) {
+    let s = t.setting();
+    let pred = m.predict(p, s);
+    let mu = mean(&pred, u);
+    let scaled: Vec<f64> = u.iter().map(|g| g / total).collect();
+    let k = m.gradient(p, s, &pred, &scaled);
+    let infl = m.influence(p, &k, observed);
+    let phi: Vec<f64> = (0..p.n())
+        .map(|i| u[i] * (pred[i] - mu) / total + infl[i])
+        .collect();
+    (mu, phi)
 }

@@ -6,7 +6,7 @@
 //! least-squares fit `A ~ L`, from which partial R2 = t^2 / (t^2 + df) for
 //! benchmarking follows.
 
-use super::Problem;
+use crate::problem::Problem;
 use crate::data::Setting;
 use crate::model::Ols;
 use crate::{Error, Result};
@@ -44,9 +44,11 @@ pub struct SensitivityInputs {
     pub terms: Vec<TermStat>,
 }
 
-/// The inputs, or `None` when the outcome is binary (no linear model).
+/// The inputs, or `None` when the outcome is binary (no linear model) or
+/// the exposure enters the outcome model by more than one term (levels,
+/// or a dose with a curved shape: no single coefficient is the effect).
 pub fn sensitivity_inputs(p: &Problem) -> Result<Option<SensitivityInputs>> {
-    if p.binary_outcome() {
+    if p.binary_outcome() || p.adjusted.exposure_terms().len() != 1 {
         return Ok(None);
     }
     let out = Ols::fit(&p.adjusted.rows(&p.frame, Setting::Observed), p.y(), None)?;
@@ -85,4 +87,20 @@ pub fn sensitivity_inputs(p: &Problem) -> Result<Option<SensitivityInputs>> {
         outcome_sd: sd,
         terms,
     }))
+}
+
+/// For a categorical exposure and a linear outcome: each non-reference
+/// level's coefficient in `Y ~ A + L` (its contrast with the reference) as
+/// (estimate, classic standard error, residual df), in level order.
+pub fn level_coefficients(p: &Problem) -> Result<Vec<(f64, f64, f64)>> {
+    if p.binary_outcome() {
+        return Ok(Vec::new());
+    }
+    let out = Ols::fit(&p.adjusted.rows(&p.frame, Setting::Observed), p.y(), None)?;
+    let se = out.se();
+    Ok(p.adjusted
+        .exposure_terms()
+        .into_iter()
+        .map(|j| (out.coef[j], se[j], out.df))
+        .collect())
 }

@@ -22,6 +22,17 @@ pub enum Strategy {
     None,
 }
 
+impl Strategy {
+    /// Its name in output (`backdoor`, `frontdoor`, `none`).
+    pub fn name(self) -> &'static str {
+        match self {
+            Strategy::Backdoor => "backdoor",
+            Strategy::Frontdoor => "frontdoor",
+            Strategy::None => "none",
+        }
+    }
+}
+
 /// The backdoor part of an [`Identification`].
 #[derive(Debug, Clone, PartialEq, Serialize)]
 pub struct BackdoorSummary {

@@ -199,6 +199,29 @@ impl Multinomial {
     pub fn se(&self) -> DVector<f64> {
         self.cov.diagonal().map(f64::sqrt)
     }
+
+    /// Fitted probabilities of every level for every row of `rows`,
+    /// `[level][row]` (level 0 included).
+    pub fn probabilities<R: Rows + ?Sized>(&self, rows: &R) -> Vec<Vec<f64>> {
+        let km1 = self.coef.ncols();
+        let eta: Vec<Vec<f64>> = (0..km1)
+            .map(|k| linear_predictor(rows, &self.coef.column(k).into_owned()))
+            .collect();
+        let n = rows.nrows();
+        let mut out = vec![vec![0.0; n]; km1 + 1];
+        let mut e = vec![0.0; km1];
+        let mut mu = vec![0.0; km1];
+        for i in 0..n {
+            for k in 0..km1 {
+                e[k] = eta[k][i];
+            }
+            out[0][i] = softmax(&e, 0, &mut mu).exp();
+            for k in 0..km1 {
+                out[k + 1][i] = mu[k];
+            }
+        }
+        out
+    }
 }
 
 /// The information matrix and the score over the stacked parameters.

@@ -74,15 +74,9 @@ pub fn evalue_cell(e: Option<&EValue>) -> String {
     }
 }
 
-fn method_label(m: &str) -> &str {
-    match m {
-        "regression" => "regression (standardization)",
-        "ipw" => "IPW (normalized weights)",
-        "ipw-ht" => "IPW (Horvitz-Thompson)",
-        "aipw" => "AIPW (doubly robust)",
-        "frontdoor" => "front-door formula",
-        other => other,
-    }
+/// A method's label, as its estimator declares it.
+pub fn method_label(m: &str) -> &str {
+    crate::estimate::by_name(m).map_or(m, |e| e.about().label)
 }
 
 fn bootstrap_label(kind: &str) -> &str {
@@ -137,29 +131,39 @@ pub fn estimates_table(a: &Analysis) -> Table {
     let boot = a.estimates.iter().find_map(|e| e.bootstrap.as_ref());
     let analytic_head = format!("{pct} interval (analytic)");
     let boot_head = boot.map(|b| format!("{pct} interval (bootstrap {})", bootstrap_label(&b.interval)));
-    let mut heads = vec![
-        "method",
+    let contrasts = a.estimates.iter().any(|e| e.estimate.contrast.is_some());
+    let mut heads = vec!["method"];
+    if contrasts {
+        heads.push("contrast");
+    }
+    heads.extend([
         "estimand",
         "scale",
         "estimate",
         "std. error (analytic)",
         &analytic_head,
-    ];
+    ]);
     heads.extend(boot_head.as_deref());
     let mut t = Table::new(&format!("Effect of {} on {}", a.exposure, a.outcome), &heads)
         .align(1, Align::Left)
         .align(2, Align::Left);
+    if contrasts {
+        t = t.align(3, Align::Left);
+    }
     for it in &a.estimates {
         let e = &it.estimate;
         let sh = |v: f64| num(shown(a, e.scale, v));
-        let mut row = vec![
-            method_label(&e.method).into(),
+        let mut row = vec![method_label(&e.method).into()];
+        if contrasts {
+            row.push(e.contrast.as_ref().map_or("-".into(), |c| c.words()));
+        }
+        row.extend([
             e.estimand.to_string(),
             scale_label(a, e.scale).into(),
             sh(e.estimate),
             sh(e.std_error),
             shown_interval(a, e.scale, it.analytic_ci),
-        ];
+        ]);
         if boot.is_some() {
             row.push(match &it.bootstrap {
                 Some(b) => shown_interval(a, e.scale, b.ci),
@@ -212,7 +216,14 @@ pub fn question(a: &Analysis) -> String {
             " ({} = {} against {} = {})",
             a.exposure, c.exposed, a.exposure, c.unexposed
         ),
-        None => " (a continuous exposure)".into(),
+        None => match &a.kind {
+            crate::estimate::ExposureKind::Levels(l) => format!(
+                " (a categorical exposure: levels {}, each against {})",
+                l[1..].join(", "),
+                l[0]
+            ),
+            _ => " (a continuous exposure)".into(),
+        },
     };
     let kind = if a.binary_outcome {
         "binary outcome"
@@ -247,10 +258,105 @@ pub fn sample_text(a: &Analysis) -> String {
     t
 }
 
+/// The dose-response curves as one table: a row per dose, a column per
+/// method (estimate and interval).
+pub fn curves_table(a: &Analysis) -> Option<Table> {
+    let first = a.curves.first()?;
+    let level = a.estimates.first().map_or(0.95, |e| e.estimate.level);
+    let heads: Vec<String> = std::iter::once(format!("dose of {}", a.exposure))
+        .chain(a.curves.iter().map(|c| method_label(&c.method).to_string()))
+        .collect();
+    let heads: Vec<&str> = heads.iter().map(String::as_str).collect();
+    let mut t = Table::new(&format!("Mean {} had everyone received each dose", a.outcome), &heads);
+    for (k, q) in first.points.iter().enumerate() {
+        let mut row = vec![num(q.x)];
+        for c in &a.curves {
+            row.push(c.points.get(k).map_or("-".into(), |p| {
+                format!("{} ({})", num(p.estimate), interval(p.ci))
+            }));
+        }
+        t.row(row);
+    }
+    t.notes.push(format!(
+        "Each cell: the estimated mean with its pointwise {:.0}% interval.",
+        100.0 * level
+    ));
+    Some(t)
+}
+
+/// Diagnostics of a categorical exposure's levels, or of a continuous
+/// exposure's weights.
+fn other_diagnostics(a: &Analysis) -> Vec<Block> {
+    let mut b = Vec::new();
+    if let Some(levels) = &a.level_diagnostics {
+        let mut t = Table::new(
+            "Propensity and weights by exposure level",
+            &[
+                "level",
+                "rows",
+                "P(own level) range",
+                "outside the others' range",
+                "weights mean (max)",
+                "effective size",
+            ],
+        )
+        .align(0, Align::Left);
+        for l in levels {
+            t.row(vec![
+                l.level.clone(),
+                l.rows.to_string(),
+                format!("{} to {}", num(l.propensity.min), num(l.propensity.max)),
+                l.outside_others_range.to_string(),
+                format!("{} ({})", num(l.weights.mean), num(l.weights.max)),
+                sig(l.ess, 5),
+            ]);
+        }
+        b.push(Block::Table(t));
+        let reference = levels.first().map_or("", |l| l.level.as_str());
+        let mut t = Table::new(
+            &format!("Covariate balance against {reference} (standardized mean differences, before / after weighting)"),
+            &std::iter::once("term")
+                .chain(levels.iter().skip(1).map(|l| l.level.as_str()))
+                .collect::<Vec<_>>(),
+        )
+        .align(0, Align::Left);
+        if let Some(l1) = levels.get(1) {
+            for (j, r) in l1.balance.iter().enumerate() {
+                let mut row = vec![r.covariate.clone()];
+                for l in levels.iter().skip(1) {
+                    row.push(l.balance.get(j).map_or("-".into(), |x| {
+                        format!("{} / {}", num(x.smd_raw), num(x.smd_weighted))
+                    }));
+                }
+                t.row(row);
+            }
+            t.notes.push(
+                "Absolute differences below 0.1 are commonly read as adequate balance (common practice).".into(),
+            );
+            b.push(Block::Table(t));
+        }
+    }
+    if let Some(d) = &a.dose_diagnostics {
+        b.push(Block::Para(format!(
+            "Stabilized density-ratio weights: mean {}, min {}, max {}; effective sample size {}. The normal \
+             model of the exposure has residual standard deviation {}, residual skewness {} and excess \
+             kurtosis {}.",
+            num(d.weights.mean),
+            num(d.weights.min),
+            num(d.weights.max),
+            sig(d.ess, 5),
+            num(d.residual_sd),
+            num(d.residual_skewness),
+            num(d.residual_excess_kurtosis)
+        )));
+    }
+    b
+}
+
 /// Diagnostics: propensity ranges, weights and the balance table.
 pub fn diagnostics_blocks(a: &Analysis) -> Vec<Block> {
     let Some(d) = &a.diagnostics else {
-        return Vec::new();
+        return other_diagnostics(a);
     };
     let p = &d.propensity;
     let w = &d.weights;
@@ -303,11 +409,12 @@ pub fn diagnostics_blocks(a: &Analysis) -> Vec<Block> {
 /// File names of the figures of one analysis in a report bundle, all
 /// starting with `prefix` (e.g. `figures/main-`, see [`figure_prefix`]):
 /// the graph, the balance plot and the sensitivity figure.
-pub fn figure_paths(prefix: &str) -> [String; 3] {
+pub fn figure_paths(prefix: &str) -> [String; 4] {
     [
         format!("{prefix}graph.svg"),
         format!("{prefix}balance.svg"),
         format!("{prefix}sensitivity.svg"),
+        format!("{prefix}curve.svg"),
     ]
 }
 
@@ -364,17 +471,9 @@ pub fn methods_paragraphs(a: &Analysis) -> Vec<String> {
         ),
         Strategy::None => "The effect was not identified under the declared graph.".into(),
     };
-    for it in &a.estimates {
-        let m = it.estimate.method.as_str();
+    for sentence in &a.methods_sentences {
         s.push(' ');
-        s.push_str(match m {
-            "regression" => "The outcome model was standardized over the sample (the parametric g-formula; Robins 1986).",
-            "ipw" => "Inverse probability weighting with normalized (Hajek) weights used a logistic propensity model, whose estimation the standard error accounts for (Lunceford & Davidian 2004).",
-            "ipw-ht" => "Horvitz-Thompson inverse probability weighting used a logistic propensity model, whose estimation the standard error accounts for (Lunceford & Davidian 2004).",
-            "aipw" => "The augmented inverse probability weighted (doubly robust) estimator combined both models (Robins, Rotnitzky & Zhao 1994).",
-            "frontdoor" => "The front-door formula was applied by plug-in (Pearl 1995).",
-            _ => "",
-        });
+        s.push_str(sentence);
     }
     let mut paras = vec![s];
     let mut s = String::new();
@@ -447,14 +546,23 @@ pub fn analysis_blocks(a: &Analysis, figures: Option<&str>) -> Vec<Block> {
         Block::Heading("Estimates".into()),
         Block::Table(estimates_table(a)),
     ]);
+    if let Some(t) = curves_table(a) {
+        b.push(Block::Table(t));
+        b.extend(fig(
+            3,
+            "The dose-response curve of each method, with its pointwise interval",
+        ));
+    }
     let diag = diagnostics_blocks(a);
     if !diag.is_empty() {
         b.push(Block::Heading("Diagnostics".into()));
         b.extend(diag);
-        b.extend(fig(
-            1,
-            "Covariate balance: absolute standardized mean differences before and after weighting",
-        ));
+        if a.diagnostics.is_some() {
+            b.extend(fig(
+                1,
+                "Covariate balance: absolute standardized mean differences before and after weighting",
+            ));
+        }
     }
     b.push(Block::Heading("Sensitivity to unmeasured confounding".into()));
     b.extend(super::sensitivity_doc::sensitivity_blocks(a));

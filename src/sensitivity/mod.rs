@@ -28,4 +28,22 @@ pub struct SensitivityBlock {
     /// value of an analysis); absent where they do not apply.
     #[serde(skip_serializing_if = "Option::is_none")]
     pub benchmarks: Option<robustness::BenchmarkTable>,
+    /// With several contrasts (a categorical exposure): each contrast's
+    /// E-value and robustness value.
+    #[serde(skip_serializing_if = "Vec::is_empty")]
+    pub by_contrast: Vec<ContrastSensitivity>,
+}
+
+/// The sensitivity of one contrast.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct ContrastSensitivity {
+    /// The two levels compared.
+    pub contrast: crate::estimate::ContrastLabel,
+    /// The method whose estimate is read.
+    pub method: String,
+    /// Its E-value.
+    pub evalue: Option<evalue::EValue>,
+    /// The robustness value of its outcome-model coefficient (linear
+    /// outcome).
+    pub robustness_value: Option<robustness::RobustnessValue>,
 }

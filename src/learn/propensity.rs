@@ -1,21 +1,19 @@
-//! The propensity model shared by IPW, AIPW and the diagnostics: a logistic
-//! regression of the exposure on the adjustment terms, scores clipped to
-//! `[trim, 1 - trim]` when asked, and the inverse-probability weights of
-//! each estimand (ATE: 1/e and 1/(1-e); ATT: 1 and e/(1-e); ATC: (1-e)/e
-//! and 1). The ATE weights follow Hernán & Robins, *Causal Inference: What
-//! If*, 2020, ch. 12; the ATT and ATC forms are common practice, no source.
+//! The propensity model of a binary exposure, shared by IPW, AIPW and the
+//! diagnostics: a logistic regression of the exposure on the adjustment
+//! terms, scores clipped to `[trim, 1 - trim]` when asked, and each row's
+//! influence on a linear functional of its coefficients.
 
-use super::{Estimand, Problem, Warm};
+use super::Nuisance;
 use crate::data::Kind;
 use crate::maths::expit_std as expit;
 use crate::model::{Logit, LogitOptions, linear_predictor};
+use crate::problem::Problem;
 use crate::{Error, Result};
 use nalgebra::DVector;
-use std::borrow::Cow;
 
 /// A fitted propensity model.
 #[derive(Debug, Clone)]
-pub(crate) struct Propensity {
+pub struct Propensity {
     /// Coefficients.
     pub coef: DVector<f64>,
     /// The fit with its information matrix (full-sample fits only).
@@ -26,50 +24,21 @@ pub(crate) struct Propensity {
     raw: Option<Vec<f64>>,
 }
 
-impl Propensity {
-    /// Fits with frequency weights `w`; the full-sample fit (`w` = None) is
-    /// made once per problem and shared. Refuses (an error) when the
+impl Nuisance for Propensity {
+    /// Fits with frequency weights `w`; a resample starts from `full`,
+    /// reusing its information matrix. Refuses (an error) when the
     /// exposure is separated, since the weights would be unbounded.
-    pub fn fit<'a>(p: &'a Problem, w: Option<&[f64]>, warm: Option<&Warm>) -> Result<Cow<'a, Propensity>> {
-        let shared = warm.and_then(|x| x.shared.as_deref());
-        let warm = warm.and_then(|x| x.propensity.as_ref());
-        if let (Some(_), Some(c)) = (w, shared) {
-            if let Some(f) = c.propensity.get() {
-                return Ok(Cow::Owned(f.clone()));
-            }
-            let f = Propensity::compute(p, w, warm)?;
-            let _ = c.propensity.set(f.clone());
-            return Ok(Cow::Owned(f));
-        }
-        if w.is_none() {
-            if let Some(c) = p.cache.propensity.get() {
-                return Ok(Cow::Borrowed(c));
-            }
-            let fitted = Propensity::compute(p, None, warm)?;
-            let _ = p.cache.propensity.set(fitted);
-            if let Some(c) = p.cache.propensity.get() {
-                return Ok(Cow::Borrowed(c));
-            }
-        }
-        Ok(Cow::Owned(Propensity::compute(p, w, warm)?))
-    }
-
-    fn compute(p: &Problem, w: Option<&[f64]>, warm: Option<&DVector<f64>>) -> Result<Propensity> {
+    fn fit(p: &Problem, w: Option<&[f64]>, full: Option<&Propensity>) -> Result<Propensity> {
         let rows = p.propensity_rows();
         let opts = LogitOptions::default();
-        // A resample starts from the full-sample fit, reusing its
-        // information matrix, when that fit is at hand.
-        let full = p.cache.propensity.get().and_then(|c| c.fit.as_ref());
+        let full = full.and_then(|c| c.fit.as_ref());
         let (coef, separation, fit, eta) = match (w, full) {
             (Some(w), Some(full)) => {
                 let r = full.refit(&rows, p.a(), w, opts)?;
                 (r.coef, r.separation, None, Some(r.eta))
             }
             _ => {
-                let start = match warm {
-                    Some(b) => b.clone(),
-                    None => p.propensity.logit_start(p.a(), w),
-                };
+                let start = p.propensity.logit_start(p.a(), w);
                 let f = Logit::fit(&rows, p.a(), w, Some(&start), opts)?;
                 (f.coef.clone(), f.separation.clone(), Some(f), None)
             }
@@ -83,7 +52,7 @@ impl Propensity {
                 None => Error::Separation(format!(
                     "the exposure '{x}' is predicted perfectly by {} ({s} in its propensity model): those \
                      units had no chance of the other exposure level (a positivity violation), so weighting \
-                     (ipw, aipw) cannot be used, and clipping the scores with --trim would only hide it; \
+                     (ipw, aipw) cannot be used, and clipping the scores would only hide it; \
                      coarsen or leave out the covariates named, or restrict the data to units that could \
                      have been either exposed or unexposed",
                     separating_terms(p, &coef)
@@ -105,7 +74,9 @@ impl Propensity {
         };
         Ok(Propensity { coef, fit, e, raw })
     }
+}
 
+impl Propensity {
     /// Row i's score before clipping.
     pub fn raw(&self, i: usize) -> f64 {
         self.raw.as_ref().map_or(self.e[i], |r| r[i])
@@ -134,7 +105,7 @@ impl Propensity {
 /// do not overlap); when none does alone, the model terms whose
 /// coefficients (times the term's standard deviation) grew largest as the
 /// fit diverged.
-pub(crate) fn separating_terms(p: &Problem, coef: &DVector<f64>) -> String {
+pub fn separating_terms(p: &Problem, coef: &DVector<f64>) -> String {
     let a = p.a();
     let mut alone = Vec::new();
     for &c in &p.covariates {
@@ -215,13 +186,3 @@ pub(crate) fn separating_terms(p: &Problem, coef: &DVector<f64>) -> String {
     )
 }
 
-/// The weight of a row in each arm for `estimand`, and its derivative in the
-/// score: `(h1, h0, dh1/de, dh0/de)`.
-pub(crate) fn arm_weights(estimand: Estimand, a: f64, e: f64) -> (f64, f64, f64, f64) {
-    let b = 1.0 - a;
-    match estimand {
-        Estimand::Ate => (a / e, b / (1.0 - e), -a / (e * e), b / ((1.0 - e) * (1.0 - e))),
-        Estimand::Att => (a, b * e / (1.0 - e), 0.0, b / ((1.0 - e) * (1.0 - e))),
-        Estimand::Atc => (a * (1.0 - e) / e, b, -a / (e * e), 0.0),
-    }
-}

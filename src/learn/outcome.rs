@@ -4,79 +4,41 @@
 //! exposure set to a value; and the coefficients' influence on a linear
 //! functional.
 
-use super::{Problem, Warm};
-use crate::data::{Design, Setting};
+use super::Nuisance;
+use crate::data::Setting;
 use crate::maths::expit_std as expit;
 use crate::model::{Chol, Logit, LogitOptions, Ols, Separation, linear_predictor, weighted_sum};
+use crate::problem::{Problem, aliased};
 use crate::{Error, Result};
 use nalgebra::DVector;
 
-/// The coefficients of a fitted outcome model and the factor of its bread.
+/// A fitted outcome model: its coefficients and the factor of its bread.
 #[derive(Debug, Clone)]
-pub(crate) struct OutcomeFit {
-    coef: DVector<f64>,
-    chol: Chol,
-    separation: Option<Separation>,
+pub struct OutcomeFit {
+    /// Coefficients of the problem's outcome design.
+    pub coef: DVector<f64>,
+    /// Factor of the bread (the information matrix, or X'WX).
+    pub chol: Chol,
+    /// Signs of separation of a logistic fit.
+    pub separation: Option<Separation>,
+    /// A logistic model (binary outcome), else least squares.
+    pub binary: bool,
     /// The linear predictor of every row, exposure as observed.
     eta: Vec<f64>,
-    /// A logistic fit, to start resamples from.
+    /// A full-sample logistic fit, to start resamples from.
     logit: Option<Logit>,
 }
 
-/// A fitted outcome model.
-pub(crate) struct OutcomeModel<'a> {
-    pub design: &'a Design,
-    pub coef: DVector<f64>,
-    pub binary: bool,
-    pub chol: Chol,
-    pub separation: Option<Separation>,
-    eta: Vec<f64>,
-}
-
-impl<'a> OutcomeModel<'a> {
-    /// Fits the problem's outcome design with frequency weights `w`; the
-    /// full-sample fit (`w` = None) is made once per problem and shared.
-    pub fn fit(p: &'a Problem, w: Option<&[f64]>, warm: Option<&Warm>) -> Result<OutcomeModel<'a>> {
-        let shared = warm.and_then(|x| x.shared.as_deref());
-        let warm = warm.and_then(|x| x.outcome.as_ref());
-        let f = match (w, p.cache.outcome.get()) {
-            (Some(_), _) if shared.is_some_and(|c| c.outcome.get().is_some()) => shared
-                .and_then(|c| c.outcome.get())
-                .cloned()
-                .expect("checked above"),
-            (Some(_), _) if shared.is_some() => {
-                let f = OutcomeModel::compute(p, w, warm)?;
-                if let Some(c) = shared {
-                    let _ = c.outcome.set(f.clone());
-                }
-                f
-            }
-            (None, Some(f)) => f.clone(),
-            (None, None) => {
-                let f = OutcomeModel::compute(p, None, warm)?;
-                let _ = p.cache.outcome.set(f.clone());
-                f
-            }
-            (Some(_), _) => OutcomeModel::compute(p, w, warm)?,
-        };
-        Ok(OutcomeModel {
-            design: &p.outcome_design,
-            coef: f.coef,
-            binary: p.binary_outcome(),
-            chol: f.chol,
-            separation: f.separation,
-            eta: f.eta,
-        })
-    }
-
-    fn compute(p: &Problem, w: Option<&[f64]>, warm: Option<&DVector<f64>>) -> Result<OutcomeFit> {
+impl Nuisance for OutcomeFit {
+    /// Fits the problem's outcome design with frequency weights `w`; a
+    /// resample of a binary outcome starts from `full`, reusing its
+    /// information matrix.
+    fn fit(p: &Problem, w: Option<&[f64]>, full: Option<&OutcomeFit>) -> Result<OutcomeFit> {
         let design = &p.outcome_design;
         let rows = p.outcome_rows();
         let opts = LogitOptions::default();
-        // A resample of a binary outcome starts from the full-sample fit,
-        // reusing its information matrix, when that fit is at hand.
-        let full = p.cache.outcome.get().and_then(|c| c.logit.as_ref());
-        let exposure = design.exposure_term().unwrap_or(usize::MAX);
+        let full = full.and_then(|c| c.logit.as_ref());
+        let exposure = design.exposure_terms();
         // Under separation the information matrix is near singular and a
         // column may look aliased there while its coefficient is simply not
         // updated; otherwise an aliased exposure (e.g. a replicate with no
@@ -87,35 +49,39 @@ impl<'a> OutcomeModel<'a> {
         // exposure coefficient: when a column is aliased (terms aliased in
         // the full data are already dropped, so this is rare), decide again
         // with the covariates first, as for the full data.
+        let hits = |a: &[usize]| a.iter().any(|j| exposure.contains(j));
         let aliased_in = |chol: &Chol| match chol.aliased() {
             a if a.is_empty() => false,
-            a if a.contains(&exposure) => true,
-            _ => super::problem::aliased(design, &p.frame, w).contains(&exposure),
+            a if hits(&a) => true,
+            _ => hits(&aliased(design, &p.frame, w)),
         };
-        let (fit, exposure_aliased) = match (p.binary_outcome(), w, full) {
+        let binary = p.binary_outcome();
+        let (fit, exposure_aliased) = match (binary, w, full) {
             (true, Some(w), Some(full)) => {
                 let r = full.refit(&rows, p.y(), w, opts)?;
                 // The refit factors no new information matrix, so aliasing
                 // is decided directly; the factor kept is the full sample's
                 // (a resample's influence is never asked for).
-                let aliased = super::problem::aliased(design, &p.frame, Some(w)).contains(&exposure);
+                let aliased = hits(&aliased(design, &p.frame, Some(w)));
                 let fit = OutcomeFit {
                     coef: r.coef,
                     chol: full.chol().clone(),
                     separation: r.separation,
+                    binary,
                     eta: r.eta,
                     logit: None,
                 };
                 (fit, aliased)
             }
             (true, _, _) => {
-                let start = warm.cloned().unwrap_or_else(|| design.logit_start(p.y(), w));
+                let start = design.logit_start(p.y(), w);
                 let f = Logit::fit(&rows, p.y(), w, Some(&start), opts)?;
                 let fit = OutcomeFit {
                     eta: linear_predictor(&rows, &f.coef),
                     coef: f.coef.clone(),
                     chol: f.chol().clone(),
                     separation: f.separation.clone(),
+                    binary,
                     logit: w.is_none().then_some(f),
                 };
                 let aliased = aliased_in(&fit.chol);
@@ -128,6 +94,7 @@ impl<'a> OutcomeModel<'a> {
                     coef,
                     chol,
                     separation: None,
+                    binary,
                     logit: None,
                 };
                 let aliased = aliased_in(&fit.chol);
@@ -141,7 +108,9 @@ impl<'a> OutcomeModel<'a> {
         }
         Ok(fit)
     }
+}
 
+impl OutcomeFit {
     /// Mean outcome of every row with the exposure set by `setting`: the
     /// observed linear predictor, changed in the terms that involve the
     /// exposure only.
@@ -149,9 +118,10 @@ impl<'a> OutcomeModel<'a> {
         let mut m = self.eta.clone();
         if setting != Setting::Observed {
             let a = p.exposure;
-            let terms = self.design.terms();
+            let design = &p.outcome_design;
+            let terms = design.terms();
             let (own, other): (Vec<usize>, Vec<usize>) = (0..terms.len()).partition(|&j| terms[j].uses(a));
-            let part = self.design.without(&other);
+            let part = design.without(&other);
             let b = DVector::from_iterator(own.len(), own.iter().map(|&j| self.coef[j]));
             let new = linear_predictor(&part.rows(&p.frame, setting), &b);
             let old = linear_predictor(&part.rows(&p.frame, Setting::Observed), &b);
@@ -174,7 +144,7 @@ impl<'a> OutcomeModel<'a> {
     /// in the coefficients.
     pub fn gradient(&self, p: &Problem, setting: Setting, mu: &[f64], u: &[f64]) -> DVector<f64> {
         let v: Vec<f64> = u.iter().zip(mu).map(|(a, &m)| a * self.slope(m)).collect();
-        weighted_sum(&self.design.rows(&p.frame, setting), &v)
+        weighted_sum(&p.outcome_design.rows(&p.frame, setting), &v)
     }
 
     /// Row i's influence on `k' (b - beta)`: `x_i' B^-1 k (y_i - mu_i)`.
@@ -192,7 +162,7 @@ impl<'a> OutcomeModel<'a> {
 mod tests {
     use super::*;
     use crate::data::{Dataset, Shape};
-    use crate::estimate::Spec;
+    use crate::problem::Spec;
 
     fn problem(binary_exposure: bool) -> Problem {
         problem_of(binary_exposure, 400)
@@ -245,7 +215,7 @@ mod tests {
             ),
         ] {
             let p = problem(binary);
-            let m = OutcomeModel::fit(&p, None, None).unwrap();
+            let m = OutcomeFit::fit(&p, None, None).unwrap();
             assert!(p.outcome_design.terms().iter().any(|t| t.factors.len() > 1));
             for s in settings {
                 let direct = linear_predictor(&p.outcome_design.rows(&p.frame, s), &m.coef);

@@ -1,21 +1,99 @@
 //! An estimation problem, prepared once: the complete-case frame, the coded
-//! exposure and outcome, and the three designs (propensity `A ~ L`,
-//! outcome `Y ~ A + L [+ A x L_j]`, and the no-product `Y ~ A + L` for
-//! sensitivity analysis). Aliased adjustment terms are dropped here, once,
-//! with a warning naming them.
+//! exposure and outcome, the three designs (propensity `A ~ L`, outcome
+//! `Y ~ A + L [+ A x L_j]`, and the no-product `Y ~ A + L` for sensitivity
+//! analysis) with their rows kept in memory when they fit, the targets an
+//! estimator forms and the contrasts asked of them. Aliased adjustment
+//! terms are dropped here, once, with a warning naming them. A problem is
+//! read by every later stage and changed by none; it holds no fits.
 
-use super::{Estimand, Scale};
 use crate::data::{
-    Dataset, Design, DesignRows, ExposureCoding, Frame, Kind, Role, Sample, Setting, Shape, Store,
+    Dataset, Design, DesignRows, ExposureChoice, ExposureCoding, Frame, Kind, Role, Sample, Setting, Shape,
+    Store,
 };
 use crate::error::Setting as Opt;
 use crate::model::{ALIAS_TOL, Chol, accumulate};
+use crate::estimate::{ContrastLabel, ContrastSpec, ExposureKind, Target};
 use crate::{Error, Result};
 use nalgebra::DMatrix;
-use std::sync::OnceLock;
+use serde::Serialize;
 
-use super::outcome::OutcomeFit;
-use super::propensity::Propensity;
+/// The population an effect averages over.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, Default)]
+pub enum Estimand {
+    /// Average treatment effect, over everyone.
+    #[default]
+    #[serde(rename = "ATE")]
+    Ate,
+    /// Average treatment effect on the treated (exposed).
+    #[serde(rename = "ATT")]
+    Att,
+    /// Average treatment effect on the controls (unexposed).
+    #[serde(rename = "ATC")]
+    Atc,
+}
+
+impl std::str::FromStr for Estimand {
+    type Err = Error;
+    fn from_str(s: &str) -> Result<Self> {
+        match s.to_ascii_lowercase().as_str() {
+            "ate" => Ok(Estimand::Ate),
+            "att" => Ok(Estimand::Att),
+            "atc" => Ok(Estimand::Atc),
+            _ => Err(Error::option(
+                Opt::Estimand,
+                format!("'{s}': expected ate, att or atc"),
+            )),
+        }
+    }
+}
+
+impl std::fmt::Display for Estimand {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        f.write_str(match self {
+            Estimand::Ate => "ATE",
+            Estimand::Att => "ATT",
+            Estimand::Atc => "ATC",
+        })
+    }
+}
+
+/// The scale of a contrast between the two mean outcomes.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, Default)]
+#[serde(rename_all = "lowercase")]
+pub enum Scale {
+    /// mu1 - mu0.
+    #[default]
+    Difference,
+    /// mu1 / mu0 (binary outcome).
+    Ratio,
+    /// [mu1 / (1 - mu1)] / [mu0 / (1 - mu0)] (binary outcome).
+    Odds,
+}
+
+impl std::str::FromStr for Scale {
+    type Err = Error;
+    fn from_str(s: &str) -> Result<Self> {
+        match s.to_ascii_lowercase().as_str() {
+            "difference" => Ok(Scale::Difference),
+            "ratio" => Ok(Scale::Ratio),
+            "odds" => Ok(Scale::Odds),
+            _ => Err(Error::option(
+                Opt::Scale,
+                format!("'{s}': expected difference, ratio or odds"),
+            )),
+        }
+    }
+}
+
+impl std::fmt::Display for Scale {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        f.write_str(match self {
+            Scale::Difference => "difference",
+            Scale::Ratio => "ratio",
+            Scale::Odds => "odds",
+        })
+    }
+}
 
 /// What to estimate, from the analysis plan.
 #[derive(Debug, Clone)]
@@ -45,10 +123,19 @@ pub struct Spec {
     /// For a continuous exposure: compare setting it to `.1` with `.0`.
     /// `None`: the effect of a one-unit increase from the observed values.
     pub contrast: Option<(f64, f64)>,
+    /// For a continuous exposure: the doses of the dose-response curve.
+    /// `None`: [`CURVE_POINTS`] doses evenly from the 5th to the 95th
+    /// percentile.
+    pub at: Option<Vec<f64>>,
     /// The value of a two-valued exposure that counts as exposed (see
     /// [`Frame::push_exposure`]); `None`: the default rule.
     pub exposed: Option<String>,
+    /// The reference level of a categorical exposure; `None`: the lowest.
+    pub reference: Option<String>,
 }
+
+/// Doses on the default dose-response grid (common practice, no source).
+pub const CURVE_POINTS: usize = 9;
 
 impl Default for Spec {
     fn default() -> Self {
@@ -65,7 +152,9 @@ impl Default for Spec {
             trim: None,
             level: 0.95,
             contrast: None,
+            at: None,
             exposed: None,
+            reference: None,
         }
     }
 }
@@ -85,6 +174,10 @@ pub struct Problem {
     pub exposure: usize,
     /// Which value of a two-valued exposure is coded 1, and why.
     pub exposure_coding: Option<ExposureCoding>,
+    /// Binary, categorical (levels) or continuous.
+    pub kind: ExposureKind,
+    /// The doses of the dose-response curve (continuous exposure only).
+    pub curve: Vec<f64>,
     /// Frame columns of the adjustment set.
     pub covariates: Vec<usize>,
     /// Frame columns of the front-door mediators.
@@ -97,24 +190,17 @@ pub struct Problem {
     pub adjusted: Design,
     /// Warnings raised while preparing (dropped rows, aliased terms).
     pub warnings: Vec<String>,
-    /// Full-sample model fits, shared by the methods.
-    pub(crate) cache: Cache,
-}
-
-/// Full-sample fits and the designs' rows, made once on first use.
-#[derive(Debug, Clone, Default)]
-pub(crate) struct Cache {
-    pub propensity: OnceLock<Propensity>,
-    pub outcome: OnceLock<OutcomeFit>,
-    propensity_rows: OnceLock<Option<Store>>,
-    outcome_rows: OnceLock<Option<Store>>,
+    /// The propensity design's rows, kept when they fit in memory.
+    propensity_store: Option<Store>,
+    /// The outcome design's rows (exposure as observed), likewise.
+    outcome_store: Option<Store>,
 }
 
 /// Aliased terms of `design` under frequency weights `w` (`None`: all
 /// ones), taken in the order intercept, adjustment terms, exposure,
 /// exposure products: the exposure counts as aliased when the adjustment
 /// terms explain it, and a product when the terms before it do.
-pub(super) fn aliased(design: &Design, frame: &Frame, w: Option<&[f64]>) -> Vec<usize> {
+pub(crate) fn aliased(design: &Design, frame: &Frame, w: Option<&[f64]>) -> Vec<usize> {
     let c = accumulate(&design.rows(frame, Setting::Observed), None, |i, _| {
         (w.map_or(1.0, |w| w[i]), 0.0, 0.0, 0.0)
     });
@@ -186,8 +272,17 @@ impl Problem {
         }
         let mut frame = Frame::new(sample.used);
         let outcome = frame.push_from(data, &sample, &spec.outcome, Role::Number)?;
-        let (exposure, exposure_coding) =
-            frame.push_exposure(data, &sample, &spec.exposure, spec.exposed.as_deref())?;
+        let choice = ExposureChoice {
+            exposed: spec.exposed.clone(),
+            reference: spec.reference.clone(),
+            categorical: spec.categorical.contains(&spec.exposure),
+        };
+        let (exposure, exposure_coding) = frame.push_exposure(data, &sample, &spec.exposure, &choice)?;
+        let kind = match frame.kind(exposure) {
+            Kind::Binary { .. } => ExposureKind::Binary,
+            Kind::Categorical { levels } => ExposureKind::Levels(levels.clone()),
+            Kind::Numeric => ExposureKind::Dose,
+        };
         let role = |n: &String| Role::Covariate {
             categorical: spec.categorical.contains(n),
         };
@@ -210,7 +305,7 @@ impl Problem {
         // One design, centred and checked once; the others are its subsets.
         let full = Design::build(&frame, Some(exposure), &covariates, spec.shape, &interact);
         let drop = aliased(&full, &frame, None);
-        if drop.iter().any(|&j| Some(j) == full.exposure_term()) {
+        if drop.iter().any(|j| full.exposure_terms().contains(j)) {
             let few = if sample.used <= full.ncols() {
                 format!(
                     " (there are only {} complete rows for {} model terms)",
@@ -267,6 +362,15 @@ impl Problem {
             &propensity,
             &outcome_design,
         ));
+        let curve = match &kind {
+            ExposureKind::Dose => match &spec.at {
+                Some(at) => at.clone(),
+                None => default_curve(frame.col(exposure)),
+            },
+            _ => Vec::new(),
+        };
+        let propensity_store = Store::of(&propensity.rows(&frame, Setting::Observed));
+        let outcome_store = Store::of(&outcome_design.rows(&frame, Setting::Observed));
         Ok(Problem {
             spec: spec.clone(),
             sample,
@@ -274,33 +378,28 @@ impl Problem {
             outcome,
             exposure,
             exposure_coding,
+            kind,
+            curve,
             covariates,
             mediators,
             propensity,
             outcome_design,
             adjusted,
             warnings,
-            cache: Cache::default(),
+            propensity_store,
+            outcome_store,
         })
     }
 
-    /// The rows of the propensity design, read from memory once computed
-    /// when they fit [`Store::MAX_VALUES`].
+    /// The rows of the propensity design, read from memory when kept.
     pub fn propensity_rows(&self) -> DesignRows<'_> {
-        self.stored_rows(&self.propensity, &self.cache.propensity_rows)
+        (self.propensity.rows(&self.frame, Setting::Observed)).with_store(self.propensity_store.as_ref())
     }
 
     /// The rows of the outcome design with the exposure as observed, read
-    /// from memory as [`Problem::propensity_rows`].
+    /// from memory when kept.
     pub fn outcome_rows(&self) -> DesignRows<'_> {
-        self.stored_rows(&self.outcome_design, &self.cache.outcome_rows)
-    }
-
-    /// The observed rows of `design`, with the store kept in `cell`.
-    fn stored_rows<'a>(&'a self, design: &'a Design, cell: &'a OnceLock<Option<Store>>) -> DesignRows<'a> {
-        let rows = design.rows(&self.frame, Setting::Observed);
-        let store = cell.get_or_init(|| Store::of(&rows));
-        rows.with_store(store.as_ref())
+        (self.outcome_design.rows(&self.frame, Setting::Observed)).with_store(self.outcome_store.as_ref())
     }
 
     /// Outcome values (0/1 when binary).
@@ -323,21 +422,76 @@ impl Problem {
         matches!(self.frame.kind(self.exposure), Kind::Binary { .. })
     }
 
+    /// The levels of a categorical exposure, reference first (empty for
+    /// other kinds).
+    pub fn levels(&self) -> &[String] {
+        match &self.kind {
+            ExposureKind::Levels(l) => l,
+            _ => &[],
+        }
+    }
+
     /// Is the outcome binary (fitted by logistic regression)?
     pub fn binary_outcome(&self) -> bool {
         matches!(self.frame.kind(self.outcome), Kind::Binary { .. })
     }
 
-    /// The two exposure settings compared, (exposed, unexposed): 1 vs 0 for
-    /// a binary exposure; `contrast.1` vs `contrast.0`, or the observed
-    /// value plus one vs the observed value, for a continuous one.
-    pub fn settings(&self) -> (Setting, Setting) {
-        if self.binary_exposure() {
-            return (Setting::Fixed(1.0), Setting::Fixed(0.0));
+    /// The targets every estimator is asked for: both levels of a binary
+    /// exposure (exposed first); every level of a categorical one; for a
+    /// dose, the curve's doses, then the two doses of the contrast or the
+    /// one-unit shift and the observed exposure.
+    pub fn targets(&self) -> Vec<Target> {
+        match &self.kind {
+            ExposureKind::Binary => vec![Target::Level(1), Target::Level(0)],
+            ExposureKind::Levels(l) => (0..l.len()).map(Target::Level).collect(),
+            ExposureKind::Dose => {
+                let mut t: Vec<Target> = self.curve.iter().map(|&x| Target::Dose(x)).collect();
+                let extra = match self.spec.contrast {
+                    Some((a, b)) => [Target::Dose(b), Target::Dose(a)],
+                    None => [Target::Shifted, Target::Observed],
+                };
+                for e in extra {
+                    if !t.contains(&e) {
+                        t.push(e);
+                    }
+                }
+                t
+            }
         }
-        match self.spec.contrast {
-            Some((a, b)) => (Setting::Fixed(b), Setting::Fixed(a)),
-            None => (Setting::Shift(1.0), Setting::Observed),
+    }
+
+    /// The contrasts reported: exposed vs unexposed; every level vs the
+    /// reference; the second dose of the contrast vs the first, or the
+    /// one-unit shift vs the observed exposure.
+    pub fn contrasts(&self) -> Vec<ContrastSpec> {
+        let plain = |level, reference| ContrastSpec {
+            level,
+            reference,
+            label: None,
+        };
+        match &self.kind {
+            ExposureKind::Binary => vec![plain(Target::Level(1), Target::Level(0))],
+            ExposureKind::Levels(l) => (1..l.len())
+                .map(|k| ContrastSpec {
+                    level: Target::Level(k),
+                    reference: Target::Level(0),
+                    label: Some(ContrastLabel::Levels {
+                        level: l[k].clone(),
+                        reference: l[0].clone(),
+                    }),
+                })
+                .collect(),
+            ExposureKind::Dose => match self.spec.contrast {
+                Some((a, b)) => vec![ContrastSpec {
+                    level: Target::Dose(b),
+                    reference: Target::Dose(a),
+                    label: Some(ContrastLabel::Doses {
+                        level: b,
+                        reference: a,
+                    }),
+                }],
+                None => vec![plain(Target::Shifted, Target::Observed)],
+            },
         }
     }
 
@@ -350,17 +504,23 @@ impl Problem {
         }
     }
 
-    /// The refusal for weighting methods when the exposure is continuous.
-    pub(crate) fn require_binary_exposure(&self, method: &str) -> Result<()> {
-        if self.binary_exposure() {
-            return Ok(());
-        }
-        Err(Error::input(format!(
-            "--method {method} needs a binary exposure, but '{}' takes more than two values; \
-             use --method regression for a continuous exposure",
-            self.spec.exposure
-        )))
-    }
+}
+
+/// [`CURVE_POINTS`] doses evenly spaced from the 5th to the 95th
+/// percentile of `x` (percentiles by linear interpolation between order
+/// statistics, common practice).
+fn default_curve(x: &[f64]) -> Vec<f64> {
+    let mut v = x.to_vec();
+    v.sort_by(f64::total_cmp);
+    let q = |p: f64| {
+        let h = p * (v.len() - 1) as f64;
+        let (lo, hi) = (h.floor() as usize, h.ceil() as usize);
+        v[lo] + (h - lo as f64) * (v[hi] - v[lo])
+    };
+    let (a, b) = (q(0.05), q(0.95));
+    (0..CURVE_POINTS)
+        .map(|k| a + (b - a) * k as f64 / (CURVE_POINTS - 1) as f64)
+        .collect()
 }
 
 fn check_spec(spec: &Spec) -> Result<()> {
@@ -411,18 +571,28 @@ fn check_spec(spec: &Spec) -> Result<()> {
 /// no source).
 pub const ROWS_PER_TERM: usize = 10;
 
-/// Each group of a binary exposure needs two rows: with one, its outcome
-/// variance, and so any standard error, is not defined.
+/// Each group of a binary exposure, and each level of a categorical one,
+/// needs two rows: with one, its outcome variance, and so any standard
+/// error, is not defined.
 fn check_groups(frame: &Frame, spec: &Spec, exposure: usize) -> Result<()> {
-    if !matches!(frame.kind(exposure), Kind::Binary { .. }) {
-        return Ok(());
+    let labels: Vec<String> = match frame.kind(exposure) {
+        Kind::Binary { .. } => vec!["unexposed".into(), "exposed".into()],
+        Kind::Categorical { levels } => levels.iter().map(|l| format!("'{l}'")).collect(),
+        Kind::Numeric => return Ok(()),
+    };
+    let mut count = vec![0usize; labels.len()];
+    for &a in frame.col(exposure) {
+        count[a as usize] += 1;
     }
-    let exposed = frame.col(exposure).iter().filter(|&&a| a == 1.0).count();
-    let unexposed = frame.nrows() - exposed;
-    for (k, group) in [(exposed, "exposed"), (unexposed, "unexposed")] {
-        if k < 2 {
+    for (k, group) in count.iter().zip(&labels).rev() {
+        if *k < 2 {
+            let what = if labels.len() == 2 {
+                format!("{group} row")
+            } else {
+                format!("row at level {group}")
+            };
             return Err(Error::input(format!(
-                "the exposure '{}' has only {k} {group} row among the {} complete rows: each exposure \
+                "the exposure '{}' has only {k} {what} among the {} complete rows: each exposure \
                  group needs at least 2 rows for an estimate with a standard error",
                 spec.exposure,
                 frame.nrows()
@@ -455,9 +625,9 @@ fn few_valued_exposure(frame: &Frame, spec: &Spec, exposure: usize) -> Option<St
     values.sort_by(f64::total_cmp);
     let shown: Vec<String> = values.iter().map(|v| format!("{v}")).collect();
     Some(format!(
-        "the exposure '{}' takes {} values ({}): it is treated as continuous, so the effect is that of \
-         a one-unit increase (or of --contrast A,B) and only regression applies; the weighting methods \
-         need an exposure recoded to two values",
+        "the exposure '{}' takes {} values ({}): it is treated as continuous (a dose), so the effect is \
+         that of a one-unit increase or of two chosen doses, along a fitted dose-response curve; to \
+         compare its values as levels instead, name it categorical",
         spec.exposure,
         values.len(),
         shown.join(", ")
@@ -546,10 +716,28 @@ fn check_kinds(frame: &Frame, spec: &Spec, outcome: usize, exposure: usize) -> R
             ),
         ));
     }
-    if spec.contrast.is_some() && binary(exposure) {
-        return Err(Error::input(
-            "a contrast of exposure values applies to a continuous exposure only",
+    let dose = frame.kind(exposure) == &Kind::Numeric;
+    if spec.contrast.is_some() && !dose {
+        return Err(Error::option(
+            Opt::Contrast,
+            "applies to a continuous exposure only (for levels, every level is compared with the reference)",
         ));
+    }
+    if spec.at.is_some() && !dose {
+        return Err(Error::option(Opt::At, "applies to a continuous exposure only"));
+    }
+    if let Some((a, b)) = spec.contrast
+        && !(a.is_finite() && b.is_finite() && a != b)
+    {
+        return Err(Error::option(
+            Opt::Contrast,
+            format!("{a},{b}: two different finite doses are needed"),
+        ));
+    }
+    if let Some(at) = &spec.at
+        && (at.is_empty() || at.iter().any(|x| !x.is_finite()))
+    {
+        return Err(Error::option(Opt::At, "needs one or more finite doses"));
     }
     Ok(())
 }
