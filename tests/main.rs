@@ -25,6 +25,7 @@ mod identify_dsep;
 mod identify_props;
 mod identify_textbook;
 mod model_fixtures;
+mod report_curve;
 mod robust_data;
 mod robust_first_hour;
 mod robust_flags;

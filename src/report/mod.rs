@@ -10,6 +10,7 @@ pub mod bundle;
 pub mod check_text;
 pub mod compare_doc;
 pub mod csv;
+pub mod curve_figure;
 pub mod doc;
 pub mod estimate_doc;
 pub mod graph_figure;

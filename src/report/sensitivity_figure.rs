@@ -103,7 +103,7 @@ pub fn label_width(s: &str, size: f64) -> f64 {
 }
 
 /// Ticks from `lo` to `hi` at a round step, `lo` and `hi` included.
-fn ticks(lo: f64, hi: f64) -> Vec<f64> {
+pub(super) fn ticks(lo: f64, hi: f64) -> Vec<f64> {
     let step = nice_ceiling((hi - lo) / 6.0);
     let mut t = vec![lo];
     let mut k = (lo / step).floor() + 1.0;
@@ -262,7 +262,7 @@ fn text_style() -> String {
 }
 
 /// Lines of `text` wrapped to `width` pixels at `size`.
-fn lines(text: &str, width: f64, size: f64) -> Vec<String> {
+pub(super) fn lines(text: &str, width: f64, size: f64) -> Vec<String> {
     let chars = (width / label_width("x", size)).floor().max(10.0) as usize;
     wrap(text, chars, "").lines().map(String::from).collect()
 }
