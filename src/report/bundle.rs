@@ -10,7 +10,7 @@ use super::doc::{Block, DataTable, Doc, Exporter, Table};
 use super::estimate_doc::{self, figure_paths};
 use super::graph_figure::{self, Marks};
 use super::sensitivity_figure::{self, benchmark_yardsticks};
-use super::{balance_figure, markdown::Markdown};
+use super::{balance_figure, curve_figure, markdown::Markdown};
 use super::{csv, latex};
 use crate::Result;
 use crate::analysis::Analysis;
@@ -50,13 +50,16 @@ pub fn marks(plan: &Plan) -> Marks {
 /// The figures of one analysis, named with `prefix` (see
 /// [`estimate_doc::figure_paths`]); figures that do not apply are left out.
 pub fn figures(plan: &Plan, a: Option<&Analysis>, prefix: &str) -> Result<Vec<File>> {
-    let [graph, balance, tipping] = figure_paths(prefix);
+    let [graph, balance, tipping, curve] = figure_paths(prefix);
     let mut out = vec![file(&graph, graph_figure::svg(&plan.roles.graph, &marks(plan)))];
     let Some(a) = a else { return Ok(out) };
     if let Some(d) = &a.diagnostics
         && !d.balance.is_empty()
     {
         out.push(file(&balance, balance_figure::svg(&d.balance)));
+    }
+    if !a.curves.is_empty() {
+        out.push(file(&curve, curve_figure::curve_svg(&curve_plot(a))));
     }
     let s = &a.sensitivity;
     let r2 = s.robustness_value.as_ref().map(|rv| {
@@ -67,6 +70,51 @@ pub fn figures(plan: &Plan, a: Option<&Analysis>, prefix: &str) -> Result<Vec<Fi
         out.push(file(&tipping, sensitivity_figure::figure(s.evalue.as_ref(), r2)?));
     }
     Ok(out)
+}
+
+/// The dose-response figure's content from an analysis.
+fn curve_plot(a: &Analysis) -> curve_figure::CurvePlot {
+    let level = a.estimates.first().map_or(0.95, |e| e.estimate.level);
+    let marks = a
+        .estimates
+        .iter()
+        .find_map(|e| match &e.estimate.contrast {
+            Some(crate::estimate::ContrastLabel::Doses { level, reference }) => Some([*reference, *level]),
+            _ => None,
+        })
+        .map(|d| {
+            d.iter()
+                .map(|&x| curve_figure::MarkedDose {
+                    x,
+                    label: format!("dose {}", estimate_doc::num(x)),
+                })
+                .collect()
+        })
+        .unwrap_or_default();
+    curve_figure::CurvePlot {
+        title: format!("Mean {} had everyone received each dose of {}", a.outcome, a.exposure),
+        x_label: format!("{} (dose)", a.exposure),
+        y_label: format!("mean {}", a.outcome),
+        level,
+        series: a
+            .curves
+            .iter()
+            .map(|c| curve_figure::CurveSeries {
+                label: estimate_doc::method_label(&c.method).to_string(),
+                points: c
+                    .points
+                    .iter()
+                    .map(|q| curve_figure::CurvePoint {
+                        x: q.x,
+                        estimate: q.estimate,
+                        lower: q.ci[0],
+                        upper: q.ci[1],
+                    })
+                    .collect(),
+            })
+            .collect(),
+        marks,
+    }
 }
 
 /// The tables of a document's blocks, in order.

@@ -120,18 +120,35 @@ fn strategy_cells(a: &Analysis) -> [Cell; 2] {
 /// of the estimate the E-value describes; the `ci_*` columns hold the
 /// interval the report recommends (bootstrap when it ran), the `analytic_*`
 /// and `bootstrap_*` columns each kind separately.
+///
+/// With a categorical exposure or a contrast of two doses, two columns
+/// after `scale`, `contrast_level` and `contrast_reference`, name the two
+/// values compared, and each row's E-value is its own contrast's.
 pub fn estimates(graph: &str, a: &Analysis) -> DataTable {
-    let mut t = DataTable::new("estimates", &ESTIMATE_COLUMNS);
+    let contrasts = a.estimates.iter().any(|e| e.estimate.contrast.is_some());
+    let mut columns = ESTIMATE_COLUMNS.to_vec();
+    if contrasts {
+        columns.splice(8..8, ["contrast_level", "contrast_reference"]);
+    }
+    let mut t = DataTable::new("estimates", &columns);
     let [strategy, set] = strategy_cells(a);
     for it in &a.estimates {
         let e = &it.estimate;
-        let ev = a
+        let own = a
             .sensitivity
-            .evalue
-            .as_ref()
-            .filter(|_| a.details.evalue_method.as_deref() == Some(e.method.as_str()));
+            .by_contrast
+            .iter()
+            .find(|c| Some(&c.contrast) == e.contrast.as_ref() && c.method == e.method)
+            .and_then(|c| c.evalue.as_ref());
+        let ev = own.or_else(|| {
+            a.sensitivity
+                .evalue
+                .as_ref()
+                .filter(|_| a.details.evalue_method.as_deref() == Some(e.method.as_str()))
+                .filter(|_| a.sensitivity.by_contrast.is_empty())
+        });
         let b = it.bootstrap.as_ref();
-        t.row(vec![
+        let mut row = vec![
             text(graph),
             text(&a.exposure),
             text(&a.outcome),
@@ -159,7 +176,12 @@ pub fn estimates(graph: &str, a: &Analysis) -> DataTable {
             Cell::opt(ev.and_then(|v| v.ci_limit)),
             Cell::Count(a.sample.used),
             Cell::Empty,
-        ]);
+        ];
+        if contrasts {
+            let [l, r] = e.contrast.as_ref().map_or([String::new(), String::new()], |c| c.values());
+            row.splice(8..8, [text(l), text(r)]);
+        }
+        t.row(row);
     }
     t
 }
