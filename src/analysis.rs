@@ -9,20 +9,20 @@
 use crate::check::{self, CheckOptions, Correction};
 use crate::data::{Dataset, ExposureCoding};
 use crate::estimate::{
-    self, ContrastSpec, Diagnostics, DoseDiagnostics, Estimand, Estimate, Estimator,
-    ExposureKind, LevelDiagnostics, Problem, Scale, SensitivityInputs, Spec, Target, Targets,
+    self, ContrastSpec, Diagnostics, DoseDiagnostics, Estimand, Estimate, Estimator, ExposureKind,
+    LevelDiagnostics, Problem, Scale, SensitivityInputs, Spec, Target, Targets,
 };
-use crate::learn::{Fits, Needs};
 use crate::graph::{Names, set_text};
 use crate::identify::Strategy;
 use crate::infer::bootstrap::{self, BootOpts, BootstrapBlock, IntervalKind};
+use crate::learn::{Fits, Needs};
 use crate::plan::Plan;
 use crate::progress::Reporter;
-use crate::sensitivity::{ContrastSensitivity, SensitivityBlock};
 use crate::sensitivity::evalue::{self, EValue};
 use crate::sensitivity::robustness::{
     self, BenchmarkChoice, BenchmarkTable, Coefficient, Covariate, DEFAULT_BENCHMARKS, RobustnessValue,
 };
+use crate::sensitivity::{ContrastSensitivity, SensitivityBlock};
 use crate::{Error, Result};
 use serde::Serialize;
 use std::collections::BTreeMap;
@@ -306,8 +306,12 @@ pub fn run(plan: &Plan, data: &Dataset, opts: &Options) -> Result<Analysis> {
     let problem = Problem::build(data, &spec(plan, opts))?;
     let methods: Vec<&'static dyn Estimator> = match &opts.methods {
         Some(m) => {
-            let chosen: Vec<&'static dyn Estimator> = m.iter().map(|n| estimate::by_name(n)).collect::<Result<_>>()?;
-            if let Some(e) = chosen.iter().find_map(|e| estimate::refusal(*e, &problem, plan.strategy)) {
+            let chosen: Vec<&'static dyn Estimator> =
+                m.iter().map(|n| estimate::by_name(n)).collect::<Result<_>>()?;
+            if let Some(e) = chosen
+                .iter()
+                .find_map(|e| estimate::refusal(*e, &problem, plan.strategy))
+            {
                 return Err(e);
             }
             chosen
@@ -356,7 +360,15 @@ pub fn run(plan: &Plan, data: &Dataset, opts: &Options) -> Result<Analysis> {
         targets.push(t);
     }
     if opts.bootstrap > 0 {
-        warnings.extend(run_bootstrap(&problem, &methods, &fits, needs, &mut estimates, &mut curves, opts)?);
+        warnings.extend(run_bootstrap(
+            &problem,
+            &methods,
+            &fits,
+            needs,
+            &mut estimates,
+            &mut curves,
+            opts,
+        )?);
     }
     let (mut diagnostics, mut level_diagnostics, mut dose_diagnostics) = (None, None, None);
     if plan.strategy == Strategy::Backdoor {
@@ -385,7 +397,10 @@ pub fn run(plan: &Plan, data: &Dataset, opts: &Options) -> Result<Analysis> {
         }
     }
     let (sensitivity, details) = sensitivity(&problem, &targets, &estimates, opts)?;
-    let methods_sentences = methods.iter().map(|m| m.methods_sentence(&problem.kind)).collect();
+    let methods_sentences = methods
+        .iter()
+        .map(|m| m.methods_sentence(&problem.kind))
+        .collect();
     let check = match &opts.check {
         Some(c) => {
             let sum = check_summary(plan, data, c)?;

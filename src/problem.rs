@@ -11,8 +11,8 @@ use crate::data::{
     Store,
 };
 use crate::error::Setting as Opt;
-use crate::model::{ALIAS_TOL, Chol, accumulate};
 use crate::estimate::{ContrastLabel, ContrastSpec, ExposureKind, Target};
+use crate::model::{ALIAS_TOL, Chol, accumulate};
 use crate::{Error, Result};
 use nalgebra::DMatrix;
 use serde::Serialize;
@@ -503,7 +503,6 @@ impl Problem {
             Estimand::Atc => 1.0 - self.a()[i],
         }
     }
-
 }
 
 /// [`CURVE_POINTS`] doses evenly spaced from the 5th to the 95th

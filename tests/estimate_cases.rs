@@ -172,7 +172,10 @@ fn continuous_exposure_by_regression_only() {
     assert!(method("ipw").unwrap().estimate(&p2).is_ok());
     for m in ["ipw-ht", "aipw"] {
         match method(m).unwrap().estimate(&p) {
-            Err(Error::Option { setting: Setting::Method, message }) => {
+            Err(Error::Option {
+                setting: Setting::Method,
+                message,
+            }) => {
                 assert!(message.contains("continuous exposure"), "{message}")
             }
             other => panic!("{m}: {other:?}"),

@@ -259,7 +259,11 @@ fn estimate_and_diagnostics_serialise_to_the_contract_keys() {
     assert_eq!(v["ci_method"], "sandwich");
     assert_eq!(v["ci"].as_array().unwrap().len(), 2);
     assert!(v.get("warm").is_none() && v.get("warnings").is_none());
-    let dg = serde_json::to_value(causeway::estimate::diagnostics(&p, method("ipw").unwrap().fits(&p).propensity().unwrap())).unwrap();
+    let dg = serde_json::to_value(causeway::estimate::diagnostics(
+        &p,
+        method("ipw").unwrap().fits(&p).propensity().unwrap(),
+    ))
+    .unwrap();
     for k in ["min", "max", "treated_outside_control_range"] {
         assert!(dg["propensity"].get(k).is_some(), "{k}");
     }

@@ -212,22 +212,20 @@ fn exposure_with_more_than_two_values_and_ipw() {
         .map(|(i, (z, _, y))| (z, (i % 3) as f64, y))
         .collect();
     let text = csv(&three);
-    expect(
-        &estimate(&text, &["--method", "ipw"]),
-        2,
-        &[
-            "--method ipw needs a binary exposure",
-            "'x' takes more than two values",
-        ],
-    );
-    // Without --method: the documented fallback, regression for a continuous
-    // exposure, with a warning that says so.
+    // With the weighting method asked for, a continuous exposure gets the
+    // weighted dose-response curve (no one-unit shift row).
+    let (v, _) = json_and_text(&text, &["--method", "ipw"]);
+    assert!(v["estimates"].as_array().unwrap().is_empty(), "{v}");
+    assert_eq!(v["curves"][0]["method"], "ipw");
+    // Without --method: regression's shift effect and both curves, with a
+    // warning that says the exposure is taken as a dose.
     let (v, t) = json_and_text(&text, &[]);
     assert_eq!(methods(&v), ["regression"]);
+    assert_eq!(v["curves"].as_array().unwrap().len(), 2);
     warned(
         &v,
         &t,
-        "the exposure 'x' takes 3 values (0, 1, 2): it is treated as continuous",
+        "the exposure 'x' takes 3 values (0, 1, 2): it is treated as continuous (a dose)",
     );
 }
 

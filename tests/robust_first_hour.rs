@@ -246,21 +246,43 @@ fn exposed_values_that_do_not_fit_are_refused() {
         2,
         &["--exposed 'yes'", "'enrolled'", "'continued' and 'quit'"],
     );
-    // Three text levels: refused, naming them.
+    // Three text levels: a categorical exposure; an exposed value does not
+    // apply to it, and a reference level must be one of its levels.
     let mut n = 0;
     let three = demo_recoded(dir.path(), "three.csv", |_| {
         n += 1;
         ["a", "b", "c"][n % 3].into()
     });
     expect(
-        &estimate(dir.path(), &three, &[]),
+        &estimate(dir.path(), &three, &["--exposed", "b"]),
         2,
-        &[
-            "'enrolled' holds text with 3 levels",
-            "'a', 'b', 'c'",
-            "not supported yet",
-        ],
+        &["--exposed 'b'", "'enrolled' has 3 levels"],
     );
+    expect(
+        &estimate(dir.path(), &three, &["--reference", "z"]),
+        2,
+        &["--reference 'z' is not a level", "'a', 'b', 'c'"],
+    );
+    // Run: every method's rows compare each level with the reference, and
+    // the JSON names both (cli-contract, "Turn 2 additions").
+    let v = json(&estimate(
+        dir.path(),
+        &three,
+        &["--reference", "b", "--format", "json"],
+    ));
+    let rows = v["estimates"].as_array().unwrap();
+    assert_eq!(rows.len(), 6, "{v}");
+    for r in rows {
+        assert_eq!(r["contrast"]["reference"], "b", "{r}");
+        assert!(
+            ["a", "c"].contains(&r["contrast"]["level"].as_str().unwrap()),
+            "{r}"
+        );
+        assert!(r["means"]["b"].is_number(), "{r}");
+    }
+    assert_eq!(v["diagnostics"].as_object().map(|_| 0), None);
+    assert_eq!(v["level_diagnostics"].as_array().unwrap().len(), 3);
+    assert_eq!(v["sensitivity"]["by_contrast"].as_array().unwrap().len(), 2);
     // A continuous exposure has no exposed value.
     let graph = repo("demo-data/main.graph").display().to_string();
     let csv = repo("demo-data/study.csv").display().to_string();

@@ -173,7 +173,12 @@ impl Design {
         }
         let multiplied: Vec<&Term> = own
             .iter()
-            .filter(|t| !matches!(t.factors[0].transform, Transform::Square | Transform::Spline { .. }))
+            .filter(|t| {
+                !matches!(
+                    t.factors[0].transform,
+                    Transform::Square | Transform::Spline { .. }
+                )
+            })
             .collect();
         for e in &multiplied {
             for &c in interact {

@@ -11,12 +11,12 @@
 //! the two working models is wrong.
 
 use super::{About, Estimator, ExposureKind, Points, Serves, Target, Targets};
+use crate::Result;
 use crate::data::Setting;
 use crate::identify::Strategy;
 use crate::learn::{Fits, Needs, OutcomeFit};
 use crate::model::weighted_sum;
 use crate::problem::{Estimand, Problem};
-use crate::Result;
 use nalgebra::DVector;
 
 /// Augmented IPW.
@@ -158,7 +158,11 @@ fn propensity_influence(
             let sign = if k == 1 { 1.0 } else { -1.0 };
             let g: Vec<f64> = (0..n)
                 .map(|i| {
-                    let de = if ps.clipped(i) { 0.0 } else { ps.e[i] * (1.0 - ps.e[i]) };
+                    let de = if ps.clipped(i) {
+                        0.0
+                    } else {
+                        ps.e[i] * (1.0 - ps.e[i])
+                    };
                     sign * dq[i] * de
                 })
                 .collect();

@@ -92,12 +92,14 @@ pub fn form(t: &Targets, c: &ContrastSpec, scale: Scale, level: f64) -> Option<R
         phi1: &t.influence[i1],
         phi0: &t.influence[i0],
     };
-    Some(interval(scale, &arms, level).map(|(estimate, std_error, ci)| Formed {
-        estimate,
-        std_error,
-        ci,
-        means: (arms.mu1, arms.mu0),
-    }))
+    Some(
+        interval(scale, &arms, level).map(|(estimate, std_error, ci)| Formed {
+            estimate,
+            std_error,
+            ci,
+            means: (arms.mu1, arms.mu0),
+        }),
+    )
 }
 
 /// The point value of contrast `c` from a replicate's targets; NaN when
@@ -190,7 +192,7 @@ mod tests {
         let arms = Arms {
             mu1: 0.5,
             mu0: 0.25,
-                phi1: &[0.1, 0.0],
+            phi1: &[0.1, 0.0],
             phi0: &[0.0, -0.1],
         };
         let (e, se, ci) = interval(Scale::Ratio, &arms, 0.95).unwrap();

@@ -244,10 +244,13 @@ impl Estimator for FrontDoor {
             Path::Discrete => {
                 let (cell, k) = cells(p);
                 let t = table(p, &cell, k, freq)?;
-                targets.iter().map(|&x| match x {
-                    Target::Level(l) => t.psi(l),
-                    _ => f64::NAN,
-                }).collect()
+                targets
+                    .iter()
+                    .map(|&x| match x {
+                        Target::Level(l) => t.psi(l),
+                        _ => f64::NAN,
+                    })
+                    .collect()
             }
             Path::Linear => {
                 let e = linear(p, freq, false)?.effect;
@@ -281,7 +284,8 @@ impl Estimator for FrontDoor {
         };
         out.notes.push(format!("front-door formula by plug-in: {note}"));
         if p.kind != ExposureKind::Binary {
-            out.notes.push("effect of a one-unit increase in the exposure".into());
+            out.notes
+                .push("effect of a one-unit increase in the exposure".into());
         }
         Ok(out)
     }

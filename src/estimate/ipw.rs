@@ -329,7 +329,12 @@ impl Msm {
         let design = Design::build(&p.frame, Some(p.exposure), &[], p.spec.shape, &[]);
         let w: Vec<f64> = (0..p.n()).map(|i| freq.map_or(1.0, |f| f[i]) * sw[i]).collect();
         let (coef, chol) = Ols::coefficients(&design.rows(&p.frame, Setting::Observed), p.y(), Some(&w))?;
-        Ok(Msm { design, coef, chol, w })
+        Ok(Msm {
+            design,
+            coef,
+            chol,
+            w,
+        })
     }
 
     /// The design row at target `t`'s dose (the average row with the

@@ -138,7 +138,9 @@ pub fn refusal(e: &dyn Estimator, p: &Problem, strategy: Strategy) -> Option<Err
     if !a.serves.iter().any(|s| s.covers(&p.kind)) {
         let fitting: Vec<&str> = ESTIMATORS
             .iter()
-            .filter(|x| x.about().strategies.contains(&strategy) && x.about().serves.iter().any(|s| s.covers(&p.kind)))
+            .filter(|x| {
+                x.about().strategies.contains(&strategy) && x.about().serves.iter().any(|s| s.covers(&p.kind))
+            })
             .map(|x| x.about().name)
             .collect();
         return Some(Error::option(

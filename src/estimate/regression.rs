@@ -57,14 +57,19 @@ impl Estimator for Regression {
             ExposureKind::Levels(_) => " at each exposure level",
             ExposureKind::Binary => "",
         };
-        format!("The outcome model was standardized over the sample{form} (the parametric g-formula; Robins 1986).")
+        format!(
+            "The outcome model was standardized over the sample{form} (the parametric g-formula; Robins 1986)."
+        )
     }
 
     fn point(&self, p: &Problem, fits: &Fits, freq: Option<&[f64]>) -> Result<Points> {
         let m = fits.outcome()?;
         let u = group_weights(p, freq);
         let targets = p.targets();
-        let values = targets.iter().map(|t| mean(&m.predict(p, t.setting()), &u)).collect();
+        let values = targets
+            .iter()
+            .map(|t| mean(&m.predict(p, t.setting()), &u))
+            .collect();
         Ok(Points { targets, values })
     }
 

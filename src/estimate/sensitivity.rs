@@ -6,9 +6,9 @@
 //! least-squares fit `A ~ L`, from which partial R2 = t^2 / (t^2 + df) for
 //! benchmarking follows.
 
-use crate::problem::Problem;
 use crate::data::Setting;
 use crate::model::Ols;
+use crate::problem::Problem;
 use crate::{Error, Result};
 use serde::Serialize;
 

@@ -185,4 +185,3 @@ pub fn separating_terms(p: &Problem, coef: &DVector<f64>) -> String {
         top.join(", ")
     )
 }
-

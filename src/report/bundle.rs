@@ -92,7 +92,10 @@ fn curve_plot(a: &Analysis) -> curve_figure::CurvePlot {
         })
         .unwrap_or_default();
     curve_figure::CurvePlot {
-        title: format!("Mean {} had everyone received each dose of {}", a.outcome, a.exposure),
+        title: format!(
+            "Mean {} had everyone received each dose of {}",
+            a.outcome, a.exposure
+        ),
         x_label: format!("{} (dose)", a.exposure),
         y_label: format!("mean {}", a.outcome),
         level,

@@ -178,7 +178,10 @@ pub fn estimates(graph: &str, a: &Analysis) -> DataTable {
             Cell::Empty,
         ];
         if contrasts {
-            let [l, r] = e.contrast.as_ref().map_or([String::new(), String::new()], |c| c.values());
+            let [l, r] = e
+                .contrast
+                .as_ref()
+                .map_or([String::new(), String::new()], |c| c.values());
             row.splice(8..8, [text(l), text(r)]);
         }
         t.row(row);

@@ -267,7 +267,10 @@ pub fn curves_table(a: &Analysis) -> Option<Table> {
         .chain(a.curves.iter().map(|c| method_label(&c.method).to_string()))
         .collect();
     let heads: Vec<&str> = heads.iter().map(String::as_str).collect();
-    let mut t = Table::new(&format!("Mean {} had everyone received each dose", a.outcome), &heads);
+    let mut t = Table::new(
+        &format!("Mean {} had everyone received each dose", a.outcome),
+        &heads,
+    );
     for (k, q) in first.points.iter().enumerate() {
         let mut row = vec![num(q.x)];
         for c in &a.curves {
@@ -331,7 +334,8 @@ fn other_diagnostics(a: &Analysis) -> Vec<Block> {
                 t.row(row);
             }
             t.notes.push(
-                "Absolute differences below 0.1 are commonly read as adequate balance (common practice).".into(),
+                "Absolute differences below 0.1 are commonly read as adequate balance (common practice)."
+                    .into(),
             );
             b.push(Block::Table(t));
         }
