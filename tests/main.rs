@@ -24,6 +24,7 @@ mod graph_props;
 mod identify_dsep;
 mod identify_props;
 mod identify_textbook;
+mod library_words;
 mod model_fixtures;
 mod robust_data;
 mod robust_first_hour;
