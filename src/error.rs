@@ -25,13 +25,22 @@ pub enum Error {
     Numerical(String),
     /// A bad value of an analysis setting. The library names the setting in
     /// neutral words; the command line prints its flag instead.
-    #[error("{} {message}", setting.words())]
+    #[error("{}", self.text(&Words))]
     Option {
         /// Which setting.
         setting: Setting,
         /// What is wrong, following the setting's name (for example
         /// `'magic': expected one of ...`).
         message: String,
+    },
+    /// A problem the user can fix through a setting: the problem, then
+    /// what to do about it (see [`Advice`]).
+    #[error("{}", self.text(&Words))]
+    Advised {
+        /// The problem.
+        error: Box<Error>,
+        /// What to do about it.
+        advice: Advice,
     },
     /// A file that could not be read or written.
     #[error("{path}: {source}")]
@@ -102,6 +111,14 @@ pub enum Setting {
     Contrast,
     /// How continuous terms enter the models.
     Shape,
+    /// Using an adjustment set that fails the backdoor criterion anyway.
+    ForceAdjust,
+    /// The separator of the data file's fields.
+    Delimiter,
+    /// The coefficient a simulation gives an edge written without one.
+    DefaultCoef,
+    /// Reading an odds or hazard ratio of a common outcome.
+    CommonOutcome,
 }
 
 impl Setting {
@@ -135,6 +152,85 @@ impl Setting {
             Setting::At => "the dose list",
             Setting::Contrast => "the dose contrast",
             Setting::Shape => "the term shape",
+            Setting::ForceAdjust => "the override for an invalid adjustment set",
+            Setting::Delimiter => "the column separator",
+            Setting::DefaultCoef => "the default edge coefficient",
+            Setting::CommonOutcome => "the common-outcome conversion",
+        }
+    }
+}
+
+/// One thing a user can do through a setting.
+#[derive(Clone, Debug, PartialEq, Eq)]
+pub enum Remedy {
+    /// Give the setting one of these values.
+    Choose(Setting, Vec<String>),
+    /// Turn the setting (a switch) on.
+    TurnOn(Setting),
+    /// Give the setting a value of one's own.
+    Give(Setting),
+}
+
+/// Advice carried by an error or a note: remedies, any one of which helps,
+/// and what they achieve ("to estimate with it anyway"; may be empty).
+#[derive(Clone, Debug, PartialEq, Eq)]
+pub struct Advice {
+    /// The alternatives, in the order they are offered.
+    pub remedies: Vec<Remedy>,
+    /// Words that follow the remedies, or nothing.
+    pub purpose: &'static str,
+}
+
+impl Advice {
+    /// Advice of a single remedy.
+    pub fn one(remedy: Remedy, purpose: &'static str) -> Advice {
+        Advice {
+            remedies: vec![remedy],
+            purpose,
+        }
+    }
+
+    /// The advice as a clause, in `phrasing`: the remedies joined by
+    /// ", or ", then the purpose.
+    pub fn text(&self, phrasing: &dyn Phrasing) -> String {
+        let mut s = self
+            .remedies
+            .iter()
+            .map(|r| phrasing.remedy(r))
+            .collect::<Vec<_>>()
+            .join(", or ");
+        if !self.purpose.is_empty() {
+            s.push(' ');
+            s.push_str(self.purpose);
+        }
+        s
+    }
+}
+
+/// How messages name a [`Setting`] and word a [`Remedy`]. The library's own
+/// is [`Words`]; a front end gives its own (the command line names its
+/// flags), so the library's text never depends on one front end.
+pub trait Phrasing {
+    /// The name of `setting`, as the subject of a message.
+    fn setting(&self, setting: Setting) -> &'static str;
+    /// One remedy as a clause starting with a verb.
+    fn remedy(&self, remedy: &Remedy) -> String;
+}
+
+/// The library's neutral phrasing: settings by [`Setting::words`].
+#[derive(Clone, Copy, Debug, Default)]
+pub struct Words;
+
+impl Phrasing for Words {
+    fn setting(&self, setting: Setting) -> &'static str {
+        setting.words()
+    }
+
+    fn remedy(&self, remedy: &Remedy) -> String {
+        match remedy {
+            Remedy::Choose(s, values) => format!("set {} to {}", s.words(), values.join(" or ")),
+            Remedy::TurnOn(s) => format!("turn on {}", s.words()),
+            Remedy::Give(s) => format!("give {}", s.words()),
         }
     }
 }
@@ -150,6 +246,38 @@ impl Error {
             | Error::Io { .. } => 2,
             Error::NotIdentified(_) => 3,
             Error::Numerical(_) => 1,
+            Error::Advised { error, .. } => error.exit_code(),
+        }
+    }
+
+    /// The message in `phrasing`: as [`Display`](std::fmt::Display) gives
+    /// it, with settings and advice worded by `phrasing` instead of
+    /// [`Words`].
+    pub fn text(&self, phrasing: &dyn Phrasing) -> String {
+        match self {
+            Error::Option { setting, message } => {
+                format!("{} {message}", phrasing.setting(*setting))
+            }
+            Error::Advised { error, advice } => {
+                format!("{}; {}", error.text(phrasing), advice.text(phrasing))
+            }
+            other => other.to_string(),
+        }
+    }
+
+    /// The problem itself, without any advice.
+    pub fn problem(&self) -> &Error {
+        match self {
+            Error::Advised { error, .. } => error.problem(),
+            other => other,
+        }
+    }
+
+    /// This error with `advice` on what to do about it.
+    pub fn advised(self, advice: Advice) -> Self {
+        Error::Advised {
+            error: Box::new(self),
+            advice,
         }
     }
 
@@ -226,6 +354,35 @@ fn edit_distance(a: &str, b: &str) -> usize {
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    #[test]
+    fn advice_is_worded_without_flags() {
+        let e = Error::option(Setting::Adjust, "{z} does not meet the backdoor criterion").advised(Advice {
+            remedies: vec![
+                Remedy::Choose(Setting::Adjust, vec!["optimal".into(), "minimal".into()]),
+                Remedy::TurnOn(Setting::ForceAdjust),
+            ],
+            purpose: "to estimate with it anyway",
+        });
+        assert_eq!(
+            e.to_string(),
+            "the adjustment set {z} does not meet the backdoor criterion; set the adjustment set to \
+             optimal or minimal, or turn on the override for an invalid adjustment set to estimate with it anyway"
+        );
+        assert_eq!(e.exit_code(), 2);
+        assert!(matches!(
+            e.problem(),
+            Error::Option {
+                setting: Setting::Adjust,
+                ..
+            }
+        ));
+        let give = Advice::one(Remedy::Give(Setting::DefaultCoef), "");
+        assert_eq!(give.text(&Words), "give the default edge coefficient");
+        let e = Error::NotIdentified("no set".into()).advised(give);
+        assert_eq!(e.exit_code(), 3);
+        assert_eq!(e.to_string(), "no set; give the default edge coefficient");
+    }
 
     #[test]
     fn edit_distances() {

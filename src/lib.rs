@@ -34,4 +34,4 @@ pub mod report;
 pub mod sensitivity;
 pub mod simulate;
 
-pub use error::{Error, Result, Setting};
+pub use error::{Advice, Error, Phrasing, Remedy, Result, Setting, Words};

@@ -1,11 +1,10 @@
-//! The analysis plan: flags checked and names resolved before any model is
-//! fitted. A plan holds the graph with its unobserved nodes marked (nodes
+//! The analysis plan: settings checked and names resolved before any model
+//! is fitted. A plan holds the graph with its unobserved nodes marked (nodes
 //! that are not columns of the data, and those named as latent), the
 //! exposure and outcome, the identification under the graph, and the set
 //! the estimate will use (adjustment set or front-door set).
 
-use crate::error::Setting;
-use crate::error::nearest_names;
+use crate::error::{Advice, Phrasing, Remedy, Setting, Words, nearest_names};
 use crate::graph::{Graph, Names, Node, set_text};
 use crate::identify::{Identification, Strategy, identify};
 use crate::{Error, Result};
@@ -24,7 +23,7 @@ pub enum AdjustChoice {
 }
 
 impl AdjustChoice {
-    /// Parses the `--adjust` value: `optimal`, `minimal`, or `A,B,C`.
+    /// Parses the adjustment setting: `optimal`, `minimal`, or `A,B,C`.
     pub fn parse(s: &str) -> AdjustChoice {
         match s.trim() {
             "optimal" => AdjustChoice::Optimal,
@@ -129,7 +128,7 @@ impl Roles {
         })
     }
 
-    /// Resolves an `--adjust` list to observed nodes other than the
+    /// Resolves the analyst's adjustment set to observed nodes other than the
     /// exposure and outcome.
     pub fn adjust_nodes(&self, names: &[String]) -> Result<Vec<Node>> {
         let mut set = Vec::new();
@@ -155,7 +154,7 @@ impl Roles {
     }
 }
 
-/// The node called `name`, or an input error naming the flag.
+/// The node called `name`, or an error naming `setting`.
 pub fn node(g: &Graph, name: &str, setting: Setting) -> Result<Node> {
     g.node(name).ok_or_else(|| {
         Error::option(
@@ -188,10 +187,20 @@ pub struct Plan {
 }
 
 impl Plan {
-    /// Identifies the effect and chooses the set to use. An invalid
-    /// `--adjust` set is refused unless `force` is set, and then used with a
-    /// warning.
+    /// Identifies the effect and chooses the set to use. An invalid set of
+    /// the analyst's is refused unless `force` is set, and then used with a
+    /// warning, worded by [`Words`].
     pub fn new(roles: Roles, adjust: &AdjustChoice, force: bool) -> Result<Plan> {
+        Plan::phrased(roles, adjust, force, &Words)
+    }
+
+    /// As [`Plan::new`], with the warnings naming settings in `phrasing`.
+    pub fn phrased(
+        roles: Roles,
+        adjust: &AdjustChoice,
+        force: bool,
+        phrasing: &dyn Phrasing,
+    ) -> Result<Plan> {
         let g = &roles.graph;
         let (x, y) = (roles.exposure, roles.outcome);
         let given = match adjust {
@@ -207,28 +216,37 @@ impl Plan {
                 (
                     Some(gs.set.clone()),
                     None,
-                    "the set given with --adjust, which meets the backdoor criterion".into(),
+                    "the set given by the analyst, which meets the backdoor criterion".into(),
                 )
             }
             (Some(gs), _) => {
                 let why = given_set_problem(g, gs);
+                let set = set_text(&gs.set, Names::Plain, "{}");
                 if !force {
-                    return Err(Error::input(format!(
-                        "--adjust {} does not meet the backdoor criterion: {why}. Use --adjust optimal or \
-                         minimal, or add --force-adjust to estimate with it anyway",
-                        set_text(&gs.set, Names::Plain, "{}")
-                    )));
+                    let choose = ["optimal", "minimal"].map(String::from).to_vec();
+                    return Err(Error::option(
+                        Setting::Adjust,
+                        format!("{set} does not meet the backdoor criterion: {why}"),
+                    )
+                    .advised(Advice {
+                        remedies: vec![
+                            Remedy::Choose(Setting::Adjust, choose),
+                            Remedy::TurnOn(Setting::ForceAdjust),
+                        ],
+                        purpose: "to estimate with it anyway",
+                    }));
                 }
                 warnings.push(format!(
-                    "the adjustment set {} given with --adjust does not meet the backdoor criterion ({why}); \
-                     it was used because --force-adjust was given, so the estimate is biased under the graph",
-                    set_text(&gs.set, Names::Plain, "{}")
+                    "{} {set} does not meet the backdoor criterion ({why}); it was used as asked ({}), \
+                     so the estimate is biased under the graph",
+                    phrasing.setting(Setting::Adjust),
+                    phrasing.setting(Setting::ForceAdjust),
                 ));
                 strategy = Strategy::Backdoor;
                 (
                     Some(gs.set.clone()),
                     None,
-                    "the set given with --adjust (forced; not valid under the graph)".into(),
+                    "the set given by the analyst (forced; not valid under the graph)".into(),
                 )
             }
             (None, _) => match id.strategy {

@@ -161,7 +161,7 @@ fn the_delimiter_is_detected_from_the_header_line() {
         Some(Delimiter::Tab)
     );
     assert_eq!(Delimiter::from_path(std::path::Path::new("d.csv")), None);
-    assert_eq!(Delimiter::parse("semicolon"), Some(Delimiter::Semicolon));
+    assert_eq!(Delimiter::ALL.map(Delimiter::name), ["comma", "tab", "semicolon"]);
 }
 
 #[test]
@@ -191,11 +191,25 @@ fn a_header_read_with_the_wrong_delimiter_is_named_as_such() {
     let e = Dataset::read(&b"a\tb\tc\n1\t2\t3\n"[..], "d.txt", &opts).unwrap_err();
     assert_eq!(
         e.to_string(),
-        "d.txt:1: read as comma-separated, the header is one field of 5 characters containing tabs; \
-         the file looks tab-separated: use --delimiter tab"
+        "d.txt:1: read as comma-separated, the header is one field of 5 characters containing tabs \
+         (the file looks tab-separated); set the column separator to tab"
     );
     let e = Dataset::read_header(&b"a;b\n"[..], "d.txt", Some(Delimiter::Tab)).unwrap_err();
     assert!(e.to_string().contains("looks semicolon-separated"), "{e}");
+    // The advice is a typed value: the setting and the value to give it.
+    match e {
+        causeway::Error::Advised { error, advice } => {
+            assert!(matches!(*error, causeway::Error::Input(_)), "{error:?}");
+            assert_eq!(
+                advice.remedies,
+                [causeway::Remedy::Choose(
+                    causeway::Setting::Delimiter,
+                    vec!["semicolon".to_string()]
+                )]
+            );
+        }
+        other => panic!("{other:?}"),
+    }
     // Detected, a one-column file is simply one column.
     assert_eq!(
         Dataset::read_header(&b"a b\n1\n"[..], "d.txt", None).unwrap(),

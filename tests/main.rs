@@ -25,6 +25,7 @@ mod graph_props;
 mod identify_dsep;
 mod identify_props;
 mod identify_textbook;
+mod library_words;
 mod model_fixtures;
 mod report_curve;
 mod robust_data;

@@ -134,7 +134,13 @@ pub fn compare(inputs: &[GraphInput], data: &DataSource, f: &EstimateFlags) -> R
         }
         run.result = match analysis::run(plan, ds, &opts) {
             Ok(a) => RunResult::Done(Box::new(a)),
-            Err(e @ (Error::Input(_) | Error::Option { .. } | Error::Io { .. } | Error::Graph(_))) => {
+            Err(
+                e @ (Error::Input(_)
+                | Error::Option { .. }
+                | Error::Advised { .. }
+                | Error::Io { .. }
+                | Error::Graph(_)),
+            ) => {
                 return Err(e);
             }
             Err(e) => RunResult::Stopped {

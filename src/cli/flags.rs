@@ -317,7 +317,12 @@ impl EstimateFlags {
                 causeway::plan::node(&roles.graph, &name, setting)?;
             }
         }
-        Plan::new(roles, &AdjustChoice::parse(&self.adjust), self.force_adjust)
+        Plan::phrased(
+            roles,
+            &AdjustChoice::parse(&self.adjust),
+            self.force_adjust,
+            &super::Flags,
+        )
     }
 }
 

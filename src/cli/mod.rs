@@ -2,7 +2,7 @@
 //! arguments and a `run` function. This module dispatches and maps errors to
 //! exit codes; all computing happens in the library.
 
-use causeway::{Error, Setting};
+use causeway::{Error, Phrasing, Remedy, Setting};
 use clap::{Parser, Subcommand};
 use std::io::Write;
 
@@ -85,24 +85,34 @@ pub fn main() -> i32 {
 }
 
 fn report_error(e: &Error) -> i32 {
-    let mut err = std::io::stderr().lock();
-    let label = match e {
+    let label = match e.problem() {
         Error::NotIdentified(_) => "not identified",
         _ => "error",
     };
-    match e {
-        Error::Option { setting, message } => {
-            let _ = writeln!(err, "causeway: {label}: {} {message}", flag(*setting));
-        }
-        _ => {
-            let _ = writeln!(err, "causeway: {label}: {e}");
-        }
-    }
+    let _ = writeln!(std::io::stderr().lock(), "causeway: {label}: {}", e.text(&Flags));
     e.exit_code()
 }
 
+/// The command line's phrasing of the library's messages: settings by
+/// their flags, advice as what to type.
+pub struct Flags;
+
+impl Phrasing for Flags {
+    fn setting(&self, setting: Setting) -> &'static str {
+        flag(setting)
+    }
+
+    fn remedy(&self, remedy: &Remedy) -> String {
+        match remedy {
+            Remedy::Choose(s, values) => format!("use {} {}", flag(*s), values.join(" or ")),
+            Remedy::TurnOn(s) => format!("add {}", flag(*s)),
+            Remedy::Give(s) => format!("give {}", flag(*s)),
+        }
+    }
+}
+
 /// The flag that sets a library [`Setting`]: the one place the binary puts
-/// flag names on the library's option errors.
+/// flag names on the library's messages (through [`Flags`]).
 pub fn flag(setting: Setting) -> &'static str {
     match setting {
         Setting::Method => "--method",
@@ -132,5 +142,105 @@ pub fn flag(setting: Setting) -> &'static str {
         Setting::At => "--at",
         Setting::Contrast => "--contrast",
         Setting::Shape => "--shape",
+        Setting::ForceAdjust => "--force-adjust",
+        Setting::Delimiter => "--delimiter",
+        Setting::DefaultCoef => "--default-coef",
+        Setting::CommonOutcome => "--common-outcome",
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use causeway::{Advice, Words};
+    use clap::CommandFactory;
+
+    /// Every setting, so that each is checked against the flags below.
+    const SETTINGS: [Setting; 31] = [
+        Setting::Method,
+        Setting::Estimand,
+        Setting::Scale,
+        Setting::Interval,
+        Setting::Bootstrap,
+        Setting::Level,
+        Setting::Trim,
+        Setting::Interact,
+        Setting::Alpha,
+        Setting::Q,
+        Setting::Estimate,
+        Setting::Se,
+        Setting::Df,
+        Setting::R2Exposure,
+        Setting::R2Outcome,
+        Setting::Ci,
+        Setting::Smd,
+        Setting::Exposure,
+        Setting::Outcome,
+        Setting::Latent,
+        Setting::Adjust,
+        Setting::Categorical,
+        Setting::ForceAdjust,
+        Setting::Delimiter,
+        Setting::DefaultCoef,
+        Setting::CommonOutcome,
+        Setting::Exposed,
+        Setting::Reference,
+        Setting::At,
+        Setting::Contrast,
+        Setting::Shape,
+    ];
+
+    #[test]
+    fn every_setting_names_a_flag_that_exists() {
+        let cli = Cli::command();
+        let mut longs = Vec::new();
+        for sub in cli.get_subcommands() {
+            longs.extend(sub.get_arguments().filter_map(|a| a.get_long()).map(String::from));
+        }
+        for s in SETTINGS {
+            let f = flag(s);
+            assert!(longs.iter().any(|l| format!("--{l}") == f), "{s:?}: {f}");
+            assert!(!Words.setting(s).contains("--"), "{s:?}");
+        }
+    }
+
+    #[test]
+    fn advice_names_flags_and_values() {
+        let advice = Advice {
+            remedies: vec![
+                Remedy::Choose(Setting::Adjust, vec!["optimal".into(), "minimal".into()]),
+                Remedy::TurnOn(Setting::ForceAdjust),
+            ],
+            purpose: "to estimate with it anyway",
+        };
+        assert_eq!(
+            advice.text(&Flags),
+            "use --adjust optimal or minimal, or add --force-adjust to estimate with it anyway"
+        );
+        let e = Error::input("the file looks tab-separated").advised(Advice::one(
+            Remedy::Choose(Setting::Delimiter, vec!["tab".into()]),
+            "",
+        ));
+        assert_eq!(
+            e.text(&Flags),
+            "the file looks tab-separated; use --delimiter tab"
+        );
+        let e = Error::option(Setting::Level, "'2': must lie between 0 and 1");
+        assert_eq!(e.text(&Flags), "--level '2': must lie between 0 and 1");
+        assert_eq!(e.to_string(), "the interval level '2': must lie between 0 and 1");
+    }
+
+    /// The values the library advises for the separator are the flag's.
+    #[test]
+    fn delimiter_names_are_the_flag_values() {
+        use clap::ValueEnum;
+        for arg in common::DelimiterArg::value_variants() {
+            let value = arg.to_possible_value().unwrap();
+            assert_eq!(value.get_name(), causeway::data::Delimiter::from(*arg).name());
+        }
+        assert_eq!(
+            common::DelimiterArg::value_variants().len(),
+            causeway::data::Delimiter::ALL.len()
+        );
     }
 }

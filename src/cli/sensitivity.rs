@@ -283,7 +283,7 @@ pub fn run(a: Args) -> Result<i32> {
 fn text(ev: Option<&EValue>, reg: Option<&Regression>) -> String {
     let mut s = String::from("Sensitivity to unmeasured confounding\n\n");
     if let Some(e) = ev {
-        s.push_str(&evalue_section(e));
+        s.push_str(&evalue_section(e, &super::Flags));
         s.push('\n');
     }
     if let Some(r) = reg {

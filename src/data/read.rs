@@ -11,7 +11,7 @@
 //! lines, so they would name the line before the right one.
 
 use super::{Column, Dataset};
-use crate::{Error, Result};
+use crate::{Advice, Error, Remedy, Result, Setting};
 use std::collections::{HashMap, VecDeque};
 use std::io::Read;
 use std::path::Path;
@@ -130,11 +130,6 @@ impl Delimiter {
             Delimiter::Tab => "tab",
             Delimiter::Semicolon => "semicolon",
         }
-    }
-
-    /// The separator called `name` (comma, tab or semicolon).
-    pub fn parse(name: &str) -> Option<Delimiter> {
-        Delimiter::ALL.into_iter().find(|d| d.name() == name.trim())
     }
 
     /// The separator a file name implies: tab for `.tsv`, else none.
@@ -355,12 +350,15 @@ fn one_field_header(name: &str, source: &str, line: u64, used: Delimiter) -> Res
         Delimiter::Semicolon => "semicolons",
     };
     Err(Error::input(format!(
-        "{source}:{line}: read as {}-separated, the header is one field of {} characters containing {plural}; \
-         the file looks {}-separated: use --delimiter {}",
+        "{source}:{line}: read as {}-separated, the header is one field of {} characters containing {plural} \
+         (the file looks {}-separated)",
         used.name(),
         name.chars().count(),
         likely.name(),
-        likely.name()
+    ))
+    .advised(Advice::one(
+        Remedy::Choose(Setting::Delimiter, vec![likely.name().to_string()]),
+        "",
     )))
 }
 

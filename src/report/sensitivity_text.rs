@@ -3,6 +3,7 @@
 //! Hazlett 2020), each with a reading in words, and the caution that goes
 //! with them. Nothing here computes a statistic.
 
+use crate::error::{Advice, Phrasing, Remedy, Setting};
 use crate::sensitivity::evalue::{EValue, SCALE_HR_RARE, SCALE_OR_RARE, SCALE_RR};
 use crate::sensitivity::robustness::{Adjusted, Coefficient, RobustnessValue};
 use std::fmt::Write;
@@ -86,8 +87,9 @@ pub fn evalue_reading(e: &EValue, n: Names) -> String {
     s
 }
 
-/// The E-value section: the numbers, the conversion used and a reading.
-pub fn evalue_section(e: &EValue) -> String {
+/// The E-value section: the numbers, the conversion used and a reading;
+/// `phrasing` words the advice on a common outcome.
+pub fn evalue_section(e: &EValue, phrasing: &dyn Phrasing) -> String {
     let mut s = String::new();
     let _ = writeln!(s, "Risk-ratio scale (E-value; {})", e.scale);
     let ci = e
@@ -118,9 +120,13 @@ pub fn evalue_section(e: &EValue) -> String {
     s.push('\n');
     s.push_str(&wrap(&evalue_reading(e, Names::default()), 78, ""));
     if e.scale == SCALE_OR_RARE || e.scale == SCALE_HR_RARE {
+        let advice = Advice::one(Remedy::TurnOn(Setting::CommonOutcome), "otherwise");
         s.push_str(&wrap(
-            "Note: the ratio is read as a risk ratio, which assumes the outcome is rare \
-             (under about 15% by the end of follow-up); use --common-outcome otherwise.",
+            &format!(
+                "Note: the ratio is read as a risk ratio, which assumes the outcome is rare \
+                 (under about 15% by the end of follow-up); {}.",
+                advice.text(phrasing)
+            ),
             78,
             "",
         ));

@@ -38,7 +38,7 @@ pub use csv::{format_number, write_csv};
 pub use truth::{CHUNK, Contrast, MAX_PATHS, Method, PathTerm, Truth, TruthOptions, true_effect};
 
 use crate::graph::{Coef, Graph, Node};
-use crate::{Error, Result};
+use crate::{Advice, Error, Remedy, Result, Setting};
 use rng::Stream;
 
 /// Choices that the graph file does not make.
@@ -206,10 +206,13 @@ impl Model {
             };
             return Err(Error::input(format!(
                 "{} without a coefficient: {}{more}; write one after the edge's target, as in 'a -> b (0.5)' \
-                 (per level for a categorical parent: 'role -> y (warehouse 2, driver 3.5)'), \
-                 or give a default coefficient (--default-coef)",
+                 (per level for a categorical parent: 'role -> y (warehouse 2, driver 3.5)')",
                 if n == 1 { "an edge" } else { "edges" },
                 shown.join(", ")
+            ))
+            .advised(Advice::one(
+                Remedy::Give(Setting::DefaultCoef),
+                "to set every edge without one",
             )));
         }
         Ok(Model {
@@ -568,7 +571,19 @@ mod tests {
     #[test]
     fn invalid_models_are_errors_naming_the_place() {
         let e = model_err("a -> b\nb -> c (1)\n");
-        assert!(e.contains("'a' -> 'b'") && e.contains("--default-coef"), "{e}");
+        assert!(
+            e.contains("'a' -> 'b'")
+                && e.ends_with("; give the default edge coefficient to set every edge without one"),
+            "{e}"
+        );
+        let g = parse("a -> b\n", "g.txt").unwrap().graph;
+        match Model::new(&g, &Options::default()) {
+            Err(Error::Advised { error, advice }) => {
+                assert!(matches!(*error, Error::Input(_)), "{error:?}");
+                assert_eq!(advice.remedies, [Remedy::Give(Setting::DefaultCoef)]);
+            }
+            other => panic!("{other:?}"),
+        }
         let e = model_err("a <-> b\n");
         assert!(e.contains("'a' <-> 'b'"), "{e}");
         let e = model_err("x -> r\nr : levels(p 0.5, q 0.5)\n");
