@@ -23,7 +23,7 @@ use crate::sensitivity::robustness::{
     self, BenchmarkChoice, BenchmarkTable, Coefficient, Covariate, DEFAULT_BENCHMARKS, RobustnessValue,
 };
 use crate::sensitivity::{ContrastSensitivity, SensitivityBlock};
-use crate::{Error, Result};
+use crate::{Error, Result, Setting};
 use serde::Serialize;
 use std::collections::BTreeMap;
 use std::sync::Mutex;
@@ -293,14 +293,20 @@ pub fn run(plan: &Plan, data: &Dataset, opts: &Options) -> Result<Analysis> {
     }
     for name in &opts.model.interact {
         if !plan.adjustment_set.iter().flatten().any(|c| c == name) {
-            return Err(Error::input(format!(
-                "--interact '{name}' is not in the adjustment set used ({}); products with the exposure \
+            return Err(Error::option(
+                Setting::Interact,
+                format!(
+                    "'{name}' is not in the adjustment set used ({}); products with the exposure \
                  are formed with adjustment covariates only{}",
-                plan.adjustment_set
-                    .as_ref()
-                    .map_or("none".to_string(), |s| set_text(s, Names::Plain, "{}")),
-                crate::error::nearest_names(name, plan.adjustment_set.iter().flatten().map(String::as_str))
-            )));
+                    plan.adjustment_set
+                        .as_ref()
+                        .map_or("none".to_string(), |s| set_text(s, Names::Plain, "{}")),
+                    crate::error::nearest_names(
+                        name,
+                        plan.adjustment_set.iter().flatten().map(String::as_str)
+                    )
+                ),
+            ));
         }
     }
     let problem = Problem::build(data, &spec(plan, opts))?;

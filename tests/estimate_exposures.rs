@@ -146,8 +146,8 @@ fn categorical_contrast_intervals_cover() {
         }
     }
     for (m, name) in methods.iter().enumerate() {
-        for k in 0..2 {
-            let rate = hits[m][k] as f64 / runs as f64;
+        for (k, &hit) in hits[m].iter().enumerate() {
+            let rate = hit as f64 / runs as f64;
             assert!(
                 (0.91..=0.99).contains(&rate),
                 "{name} level {}: coverage {rate}",

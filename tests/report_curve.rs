@@ -174,6 +174,23 @@ fn check_layout(svg: &str) {
             assert!(apart(p, q), "'{a}' {p:?} overprints '{b}' {q:?}");
         }
     }
+    // Legend swatches (the band samples) overlap no text and no other swatch.
+    let swatches: Vec<Box4> = doc
+        .descendants()
+        .filter(|n| n.has_tag_name("rect") && in_legend(*n) && n.attribute("fill-opacity").is_some())
+        .map(|n| {
+            let (x, y) = (num(n, "x"), num(n, "y"));
+            [x, y, x + num(n, "width"), y + num(n, "height")]
+        })
+        .collect();
+    for (i, p) in swatches.iter().enumerate() {
+        for (t, q) in &boxes {
+            assert!(apart(p, q), "a legend swatch {p:?} overprints '{t}' {q:?}");
+        }
+        for q in &swatches[i + 1..] {
+            assert!(apart(p, q), "legend swatches {p:?} and {q:?} overlap");
+        }
+    }
     // Vertical lines (marked doses) cross no text.
     for l in doc.descendants().filter(|n| n.has_tag_name("line")) {
         let (x, y1, y2) = (
@@ -318,6 +335,12 @@ fn missing_intervals_leave_the_band_out() {
     assert!(bar, "the lone interval at dose 20 is drawn as a bar");
     let texts: Vec<String> = text_boxes(&doc).into_iter().map(|t| t.0).collect();
     assert!(texts.iter().any(|t| t.contains("only the estimate is drawn")));
+    assert!(
+        texts
+            .iter()
+            .any(|t| t.starts_with("Bands and bars: pointwise 95%")),
+        "the caption names both kinds of interval drawn: {texts:?}"
+    );
 
     for p in &mut plot.series[0].points {
         p.lower = f64::NAN;

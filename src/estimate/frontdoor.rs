@@ -67,17 +67,19 @@ fn path(p: &Problem) -> Result<Path> {
         Ok(Path::Discrete)
     } else if p.mediators.iter().all(|&m| !discrete(m)) {
         if p.binary_outcome() || p.spec.scale != Scale::Difference {
-            return Err(Error::input(
-                "--method frontdoor with continuous mediators uses linear models and needs a \
-                 continuous outcome on the difference scale; declare the mediators --categorical \
+            return Err(Error::option(
+                Opt::Method,
+                "'frontdoor' with continuous mediators uses linear models and needs a \
+                 continuous outcome on the difference scale; name the mediators categorical \
                  if they take few values",
             ));
         }
         Ok(Path::Linear)
     } else {
-        Err(Error::input(
-            "--method frontdoor: the mediators are a mix of discrete and continuous columns; \
-             declare them all --categorical or use continuous ones only",
+        Err(Error::option(
+            Opt::Method,
+            "'frontdoor': the mediators are a mix of discrete and continuous columns; \
+             name them all categorical or use continuous ones only",
         ))
     }
 }

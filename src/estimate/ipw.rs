@@ -124,13 +124,13 @@ impl Estimator for Ipw {
                     values: vec![mu1, mu0],
                 })
             }
-            ExposureKind::Levels(levels) => {
+            ExposureKind::Levels(_) => {
                 let prob = &fits.levels()?.prob;
                 let mut targets = Vec::new();
                 let mut values = Vec::new();
-                for k in 0..levels.len() {
+                for (k, pk) in prob.iter().enumerate() {
                     targets.push(Target::Level(k));
-                    values.push(self.level_mean(p, &prob[k], k, freq)?);
+                    values.push(self.level_mean(p, pk, k, freq)?);
                 }
                 Ok(Points { targets, values })
             }

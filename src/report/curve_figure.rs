@@ -29,7 +29,8 @@
 //! caption. Legend and labels sit outside the plot, so none can overprint
 //! the data or each other; labels too long for their place end in an
 //! ellipsis. Series differ in colour, dash pattern and marker shape, so the
-//! figure reads in greyscale (four styles, repeated beyond four series).
+//! figure reads in greyscale (four colours and dash patterns; the marker
+//! shifts beyond four series).
 //! Axis limits are round numbers around the data (a flat curve or a single
 //! dose is given a range around its value); values of very large or very
 //! small magnitude are labelled in units of a power of ten, named in the
@@ -99,12 +100,16 @@ const MARKER: f64 = 9.0;
 const CAUTION: &str = "An estimate is only as valid as the declared graph and the usual assumptions.";
 
 /// Colour, dash pattern and marker of the `i`th series.
+/// Beyond four series the marker shifts, so no two of the first sixteen
+/// series look alike.
 fn style(i: usize) -> (&'static str, &'static str, Shape) {
+    let shapes = [Shape::Circle, Shape::Square, Shape::Triangle, Shape::Diamond];
+    let shape = shapes[(i + i / 4) % 4];
     match i % 4 {
-        0 => (ink::DEEP, "", Shape::Circle),
-        1 => (ink::WARM, r#" stroke-dasharray="7 4""#, Shape::Square),
-        2 => (ink::TEXT, r#" stroke-dasharray="2 3""#, Shape::Triangle),
-        _ => (ink::MUTED, r#" stroke-dasharray="9 3 2 3""#, Shape::Diamond),
+        0 => (ink::DEEP, "", shape),
+        1 => (ink::WARM, r#" stroke-dasharray="7 4""#, shape),
+        2 => (ink::TEXT, r#" stroke-dasharray="2 3""#, shape),
+        _ => (ink::MUTED, r#" stroke-dasharray="9 3 2 3""#, shape),
     }
 }
 
@@ -113,8 +118,14 @@ fn line_style(i: usize) -> String {
     format!(r#"stroke="{colour}" stroke-width="2.2" stroke-linejoin="round"{dash}"#)
 }
 
-fn band_style(i: usize) -> String {
-    format!(r#"fill="{}" fill-opacity="0.16" stroke="none""#, style(i).0)
+/// A band's fill and faint edge; lighter when three or more bands may
+/// overlap, so that each stays traceable by its edge.
+fn band_style(i: usize, count: usize) -> String {
+    let colour = style(i).0;
+    let fill = if count <= 2 { 0.16 } else { 0.1 };
+    format!(
+        r#"fill="{colour}" fill-opacity="{fill}" stroke="{colour}" stroke-opacity="0.45" stroke-width="0.7""#
+    )
 }
 
 fn marker_style(i: usize) -> String {
@@ -291,6 +302,12 @@ fn has_interval(p: &CurvePoint) -> bool {
     p.lower.is_finite() && p.upper.is_finite()
 }
 
+/// The stretches of a run whose doses all have intervals: each is drawn
+/// as a band, or as a bar when it holds a single dose.
+fn interval_parts(run: &[CurvePoint]) -> impl Iterator<Item = &[CurvePoint]> {
+    run.split(|p| !has_interval(p)).filter(|part| !part.is_empty())
+}
+
 /// Rows for the labels of marked doses (at pixel positions, with labels
 /// already cut to half the plot), top row first, each with the side of its
 /// line its label takes (true: right). A line runs from its label's row
@@ -352,13 +369,9 @@ pub fn curve_svg(plot: &CurvePlot) -> String {
     let series_runs: Vec<Vec<Vec<CurvePoint>>> = plot.series.iter().map(runs).collect();
     let placed = || series_runs.iter().flatten().flatten();
     let (x_lo, x_hi, x_ticks) = dose_axis(span(placed().map(|p| p.x).chain(plot.marks.iter().map(|m| m.x))));
-    let (y_lo, y_hi) = span(placed().flat_map(|p| {
-        let bounds = if has_interval(p) {
-            [p.lower, p.upper]
-        } else {
-            [f64::NAN; 2]
-        };
-        [p.estimate, bounds[0], bounds[1]]
+    let (y_lo, y_hi) = span(placed().flat_map(|p| match has_interval(p) {
+        true => vec![p.estimate, p.lower, p.upper],
+        false => vec![p.estimate],
     }));
     let (y_lo, y_hi) = limits(y_lo, y_hi);
     let y_ticks = ticks(y_lo, y_hi);
@@ -400,23 +413,19 @@ pub fn curve_svg(plot: &CurvePlot) -> String {
         .iter()
         .map(|l| fit(l, plot_w, SMALL))
         .collect();
-    let any_bar = series_runs.iter().flatten().any(|r| {
-        r.iter().any(has_interval) && !r.windows(2).any(|w| has_interval(&w[0]) && has_interval(&w[1]))
-    });
-    let any_band = series_runs
-        .iter()
-        .flatten()
-        .any(|r| r.windows(2).any(|w| has_interval(&w[0]) && has_interval(&w[1])));
+    let parts = || series_runs.iter().flatten().flat_map(|r| interval_parts(r));
+    let any_bar = parts().any(|p| p.len() == 1);
+    let any_band = parts().any(|p| p.len() > 1);
     let any_missing = placed().any(|p| !has_interval(p));
     let level = level_text(plot.level);
     let mut caption = match (any_band, any_bar) {
         (true, true) => format!(
-            "Shaded bands and bars: pointwise {level} confidence intervals at each evaluated dose, not a band for the whole curve."
+            "Bands and bars: pointwise {level} confidence intervals, each for its own dose, not for the whole curve at once."
         ),
         (true, false) => format!(
-            "Shaded bands: pointwise {level} confidence intervals at each evaluated dose, not a band for the whole curve."
+            "Shaded bands: pointwise {level} confidence intervals, each for its own dose, not for the whole curve at once."
         ),
-        (false, true) => format!("Bars: pointwise {level} confidence intervals at each evaluated dose."),
+        (false, true) => format!("Bars: pointwise {level} confidence intervals, each for its own dose."),
         (false, false) => format!("No {level} confidence interval could be formed at any dose."),
     };
     if any_missing && (any_band || any_bar) {
@@ -459,7 +468,7 @@ pub fn curve_svg(plot: &CurvePlot) -> String {
     c.raw(r#"<g class="legend">"#);
     for (i, (l, (lx, row))) in legend.iter().zip(&legend_pos).enumerate() {
         let cy = y + *row as f64 * ROW + ROW / 2.0;
-        c.rect(lx + 2.0, cy - 7.0, 34.0, 14.0, &band_style(i));
+        c.rect(lx + 2.0, cy - 7.0, 34.0, 14.0, &band_style(i, plot.series.len()));
         c.line(lx + 2.0, cy, lx + 36.0, cy, &line_style(i));
         c.marker(style(i).2, lx + 19.0, cy, MARKER, &marker_style(i));
         c.text(lx + 44.0, cy + 4.0, SMALL, "start", &ts, l);
@@ -540,32 +549,23 @@ pub fn curve_svg(plot: &CurvePlot) -> String {
 
     // Bands and bars first, then lines, then markers on top.
     for (i, runs) in series_runs.iter().enumerate() {
-        for run in runs {
-            let mut k = 0;
-            while k < run.len() {
-                if !has_interval(&run[k]) {
-                    k += 1;
-                    continue;
-                }
-                let start = k;
-                while k < run.len() && has_interval(&run[k]) {
-                    k += 1;
-                }
-                let part = &run[start..k];
-                if part.len() == 1 {
-                    let (x, lo, hi) = (px(part[0].x), py(part[0].lower), py(part[0].upper));
-                    let bar = format!(r#"stroke="{}" stroke-width="1.6""#, style(i).0);
-                    c.line(x, lo, x, hi, &bar);
-                    c.line(x - 4.0, lo, x + 4.0, lo, &bar);
-                    c.line(x - 4.0, hi, x + 4.0, hi, &bar);
-                } else {
-                    let outline: Vec<(f64, f64)> = part
-                        .iter()
-                        .map(|p| (px(p.x), py(p.upper)))
-                        .chain(part.iter().rev().map(|p| (px(p.x), py(p.lower))))
-                        .collect();
-                    c.polygon(&outline, &format!(r#"class="band" {}"#, band_style(i)));
-                }
+        for part in runs.iter().flat_map(|r| interval_parts(r)) {
+            if let [p] = part {
+                let (x, lo, hi) = (px(p.x), py(p.lower), py(p.upper));
+                let bar = format!(r#"stroke="{}" stroke-width="1.6""#, style(i).0);
+                c.line(x, lo, x, hi, &bar);
+                c.line(x - 4.0, lo, x + 4.0, lo, &bar);
+                c.line(x - 4.0, hi, x + 4.0, hi, &bar);
+            } else {
+                let outline: Vec<(f64, f64)> = part
+                    .iter()
+                    .map(|p| (px(p.x), py(p.upper)))
+                    .chain(part.iter().rev().map(|p| (px(p.x), py(p.lower))))
+                    .collect();
+                c.polygon(
+                    &outline,
+                    &format!(r#"class="band" {}"#, band_style(i, plot.series.len())),
+                );
             }
         }
     }
