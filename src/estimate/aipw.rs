@@ -37,19 +37,45 @@ static ABOUT: About = About {
 
 /// P(A = k | L) for every row and level: the logistic score of a binary
 /// exposure (clipped when asked) or the multinomial probabilities.
-fn probabilities(p: &Problem, fits: &Fits) -> Result<Vec<Vec<f64>>> {
-    Ok(match p.kind {
-        ExposureKind::Binary => {
-            let e = &fits.propensity()?.e;
-            vec![e.iter().map(|e| 1.0 - e).collect(), e.clone()]
-        }
-        _ => fits.levels()?.prob.clone(),
-    })
+enum Scores<'a> {
+    Binary(&'a [f64]),
+    Levels(&'a [Vec<f64>]),
 }
 
-/// Row i's augmented term at level `k`: m + 1{A=k} (Y - m) / q.
+impl Scores<'_> {
+    fn of<'a>(p: &Problem, fits: &'a Fits) -> Result<Scores<'a>> {
+        Ok(match p.kind {
+            ExposureKind::Binary => Scores::Binary(&fits.propensity()?.e),
+            _ => Scores::Levels(&fits.levels()?.prob),
+        })
+    }
+
+    /// P(A = k | L_i).
+    fn q(&self, k: usize, i: usize) -> f64 {
+        match self {
+            Scores::Binary(e) if k == 1 => e[i],
+            Scores::Binary(e) => 1.0 - e[i],
+            Scores::Levels(prob) => prob[k][i],
+        }
+    }
+}
+
+/// Row i's augmented term at level `k`: m + 1{A=k} (Y - m) / q (no
+/// branch on the exposure: the indicator multiplies).
+#[inline]
 fn term(a: f64, k: usize, y: f64, m: f64, q: f64) -> f64 {
-    if a as usize == k { m + (y - m) / q } else { m }
+    let r = f64::from(u8::from(a as usize == k));
+    m + r * (y - m) / q
+}
+
+/// `sum_i f_i term_i` at level `k`, with `q(i)` = P(A = k | L_i).
+#[inline]
+fn weighted_terms(p: &Problem, k: usize, m: &[f64], freq: Option<&[f64]>, q: impl Fn(usize) -> f64) -> f64 {
+    let (a, y) = (p.a(), p.y());
+    match freq {
+        Some(f) => (0..p.n()).map(|i| f[i] * term(a[i], k, y[i], m[i], q(i))).sum(),
+        None => (0..p.n()).map(|i| term(a[i], k, y[i], m[i], q(i))).sum(),
+    }
 }
 
 impl Estimator for Aipw {
@@ -70,17 +96,21 @@ impl Estimator for Aipw {
 
     fn point(&self, p: &Problem, fits: &Fits, freq: Option<&[f64]>) -> Result<Points> {
         // The propensity model first: its failure is the reason reported.
-        let q = probabilities(p, fits)?;
+        let q = Scores::of(p, fits)?;
         let om = fits.outcome()?;
-        let (a, y) = (p.a(), p.y());
         let mut out = Points::default();
-        let sw: f64 = (0..p.n()).map(|i| freq.map_or(1.0, |f| f[i])).sum();
+        let sw: f64 = match freq {
+            Some(f) => f.iter().sum(),
+            None => p.n() as f64,
+        };
         for t in p.targets() {
             let Target::Level(k) = t else { continue };
-            let m = om.predict(p, t.setting());
-            let s: f64 = (0..p.n())
-                .map(|i| freq.map_or(1.0, |f| f[i]) * term(a[i], k, y[i], m[i], q[k][i]))
-                .sum();
+            let m = om.at(p, t);
+            let s = match &q {
+                Scores::Binary(e) if k == 1 => weighted_terms(p, k, &m, freq, |i| e[i]),
+                Scores::Binary(e) => weighted_terms(p, k, &m, freq, |i| 1.0 - e[i]),
+                Scores::Levels(prob) => weighted_terms(p, k, &m, freq, |i| prob[k][i]),
+            };
             out.targets.push(t);
             out.values.push(s / sw);
         }
@@ -89,7 +119,7 @@ impl Estimator for Aipw {
 
     fn targets(&self, p: &Problem, fits: &Fits) -> Result<Targets> {
         // The propensity model first: its failure is the reason reported.
-        let q = probabilities(p, fits)?;
+        let q = Scores::of(p, fits)?;
         let om = fits.outcome()?;
         let n = p.n();
         let nf = n as f64;
@@ -99,21 +129,21 @@ impl Estimator for Aipw {
         let mut out = Targets::default();
         for t in p.targets() {
             let Target::Level(k) = t else { continue };
-            let m = om.predict(p, t.setting());
-            let mu = (0..n).map(|i| term(a[i], k, y[i], m[i], q[k][i])).sum::<f64>() / nf;
+            let m = om.at(p, t);
+            let mu = (0..n).map(|i| term(a[i], k, y[i], m[i], q.q(k, i))).sum::<f64>() / nf;
             let r = |i: usize| f64::from(u8::from(a[i] as usize == k));
             // d/d beta = (1 - R/q) dm.
-            let u: Vec<f64> = (0..n).map(|i| (1.0 - r(i) / q[k][i]) / nf).collect();
+            let u: Vec<f64> = (0..n).map(|i| (1.0 - r(i) / q.q(k, i)) / nf).collect();
             let kb = om.gradient(p, t.setting(), &m, &u);
             drop(u);
             let mut phi = om.influence(p, &kb, &observed);
             // d/d q = -R (Y - m) / q^2, through the propensity model.
             let dq: Vec<f64> = (0..n)
-                .map(|i| -r(i) * (y[i] - m[i]) / (q[k][i] * q[k][i]) / nf)
+                .map(|i| -r(i) * (y[i] - m[i]) / (q.q(k, i) * q.q(k, i)) / nf)
                 .collect();
             let ig = propensity_influence(p, fits, k, &dq, &prop_rows)?;
             for (i, v) in phi.iter_mut().enumerate() {
-                *v += (term(a[i], k, y[i], m[i], q[k][i]) - mu) / nf + ig[i];
+                *v += (term(a[i], k, y[i], m[i], q.q(k, i)) - mu) / nf + ig[i];
             }
             out.push(t, mu, phi);
         }

@@ -66,10 +66,7 @@ impl Estimator for Regression {
         let m = fits.outcome()?;
         let u = group_weights(p, freq);
         let targets = p.targets();
-        let values = targets
-            .iter()
-            .map(|t| mean(&m.predict(p, t.setting()), &u))
-            .collect();
+        let values = targets.iter().map(|&t| mean(&m.at(p, t), &u)).collect();
         Ok(Points { targets, values })
     }
 
@@ -128,7 +125,7 @@ impl Estimator for Regression {
 /// estimand's population stacked with the outcome model's score equations.
 fn arm(p: &Problem, m: &OutcomeFit, t: Target, u: &[f64], total: f64, observed: &[f64]) -> (f64, Vec<f64>) {
     let s = t.setting();
-    let pred = m.predict(p, s);
+    let pred = m.at(p, t);
     let mu = mean(&pred, u);
     let scaled: Vec<f64> = u.iter().map(|g| g / total).collect();
     let k = m.gradient(p, s, &pred, &scaled);

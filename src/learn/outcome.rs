@@ -6,6 +6,7 @@
 
 use super::Nuisance;
 use crate::data::Setting;
+use crate::estimate::Target;
 use crate::maths::expit_std as expit;
 use crate::model::{Chol, Logit, LogitOptions, Ols, Separation, linear_predictor, weighted_sum};
 use crate::problem::{Problem, aliased};
@@ -27,6 +28,9 @@ pub struct OutcomeFit {
     eta: Vec<f64>,
     /// A full-sample logistic fit, to start resamples from.
     logit: Option<Logit>,
+    /// Every row's mean outcome under each of the problem's targets, made
+    /// with the fit (every estimator that reads the model needs them).
+    at: Vec<(Target, Vec<f64>)>,
 }
 
 impl Nuisance for OutcomeFit {
@@ -70,6 +74,7 @@ impl Nuisance for OutcomeFit {
                     binary,
                     eta: r.eta,
                     logit: None,
+                    at: Vec::new(),
                 };
                 (fit, aliased)
             }
@@ -83,6 +88,7 @@ impl Nuisance for OutcomeFit {
                     separation: f.separation.clone(),
                     binary,
                     logit: w.is_none().then_some(f),
+                    at: Vec::new(),
                 };
                 let aliased = aliased_in(&fit.chol);
                 (fit, aliased)
@@ -96,6 +102,7 @@ impl Nuisance for OutcomeFit {
                     separation: None,
                     binary,
                     logit: None,
+                    at: Vec::new(),
                 };
                 let aliased = aliased_in(&fit.chol);
                 (fit, aliased)
@@ -106,11 +113,26 @@ impl Nuisance for OutcomeFit {
                 "the exposure term is aliased in the outcome model".into(),
             ));
         }
+        let mut fit = fit;
+        fit.at = p
+            .targets()
+            .into_iter()
+            .map(|t| (t, fit.predict(p, t.setting())))
+            .collect();
         Ok(fit)
     }
 }
 
 impl OutcomeFit {
+    /// Every row's mean outcome under target `t` of the problem the model
+    /// was fitted for.
+    pub fn at(&self, p: &Problem, t: Target) -> std::borrow::Cow<'_, [f64]> {
+        match self.at.iter().find(|(u, _)| *u == t) {
+            Some((_, m)) => std::borrow::Cow::Borrowed(m),
+            None => std::borrow::Cow::Owned(self.predict(p, t.setting())),
+        }
+    }
+
     /// Mean outcome of every row with the exposure set by `setting`: the
     /// observed linear predictor, changed in the terms that involve the
     /// exposure only.
