@@ -659,11 +659,23 @@ fn small_sample(
              bootstrap interval"
         ));
     };
-    if matches!(frame.kind(exposure), Kind::Binary { .. }) {
-        let m = ones(exposure).min(n - ones(exposure));
+    let groups = match frame.kind(exposure) {
+        Kind::Binary { .. } => 2,
+        Kind::Categorical { levels } => levels.len(),
+        Kind::Numeric => 0,
+    };
+    if groups > 0 {
+        let mut count = vec![0usize; groups];
+        for &a in frame.col(exposure) {
+            count[a as usize] += 1;
+        }
         check(
-            "the smaller exposure group",
-            m,
+            if groups == 2 {
+                "the smaller exposure group"
+            } else {
+                "the smallest exposure group"
+            },
+            count.iter().copied().min().unwrap_or(0),
             "propensity model",
             propensity.ncols().saturating_sub(1),
         );
@@ -720,6 +732,12 @@ fn check_kinds(frame: &Frame, spec: &Spec, outcome: usize, exposure: usize) -> R
         return Err(Error::option(
             Opt::Contrast,
             "applies to a continuous exposure only (for levels, every level is compared with the reference)",
+        ));
+    }
+    if spec.trim.is_some() && !binary(exposure) {
+        return Err(Error::option(
+            Opt::Trim,
+            "applies to the propensity scores of a binary exposure only",
         ));
     }
     if spec.at.is_some() && !dose {

@@ -290,3 +290,161 @@ fn dose_response_reproduces_what_if_12_4() {
         );
     }
 }
+
+fn cli(dir: &std::path::Path, extra: &[&str]) -> Value {
+    let mut args = extra.to_vec();
+    args.extend_from_slice(&["--format", "json", "--quiet"]);
+    let r = crate::helpers::run_in(dir, &args);
+    assert_eq!(r.code, 0, "{}", r.stderr);
+    serde_json::from_str(&r.stdout).expect("JSON")
+}
+
+fn demo(cmd: &str) -> Vec<String> {
+    let graph = crate::helpers::repo("demo-data/main.graph").display().to_string();
+    let data = crate::helpers::repo("demo-data/study.csv").display().to_string();
+    vec![cmd.into(), "--graph".into(), graph, "--data".into(), data]
+}
+
+// The bootstrap covers every contrast of a categorical exposure and every
+// point of a dose-response curve: each row gets its own bootstrap block and
+// each curve point a bootstrap interval around its estimate.
+#[test]
+fn the_bootstrap_covers_every_contrast_and_curve_point() {
+    let dir = tempfile::tempdir().unwrap();
+    let mut args = demo("estimate");
+    args.extend(
+        [
+            "--exposure",
+            "role",
+            "--outcome",
+            "pain_days",
+            "--reference",
+            "office",
+            "--bootstrap",
+            "60",
+        ]
+        .map(String::from),
+    );
+    let args: Vec<&str> = args.iter().map(String::as_str).collect();
+    let v = cli(dir.path(), &args);
+    let rows = v["estimates"].as_array().unwrap();
+    assert_eq!(rows.len(), 6);
+    for r in rows {
+        let b = &r["bootstrap"];
+        assert_eq!(b["replicates"], 60, "{r}");
+        let (lo, hi) = (b["ci"][0].as_f64().unwrap(), b["ci"][1].as_f64().unwrap());
+        let e = r["estimate"].as_f64().unwrap();
+        assert!(lo < e && e < hi, "{r}");
+        assert_eq!(r["ci_method"], "bootstrap-percentile");
+    }
+    let mut args = demo("estimate");
+    args.extend(
+        [
+            "--exposure",
+            "bmi",
+            "--outcome",
+            "pain_days",
+            "--at",
+            "20,30",
+            "--bootstrap",
+            "60",
+        ]
+        .map(String::from),
+    );
+    let args: Vec<&str> = args.iter().map(String::as_str).collect();
+    let v = cli(dir.path(), &args);
+    let curves = v["curves"].as_array().unwrap();
+    assert_eq!(curves.len(), 2);
+    for c in curves {
+        assert_eq!(c["kind"], "dose-response");
+        for q in c["points"].as_array().unwrap() {
+            let e = q["estimate"].as_f64().unwrap();
+            let (lo, hi) = (q["ci"][0].as_f64().unwrap(), q["ci"][1].as_f64().unwrap());
+            let sandwich = 1.96 * q["std_error"].as_f64().unwrap();
+            assert!(lo < e && e < hi, "{q}");
+            // The percentile interval is of the sandwich interval's width
+            // to within a factor of 2 (60 replicates).
+            assert!((hi - lo) > sandwich && (hi - lo) < 4.0 * sandwich, "{q}");
+        }
+    }
+}
+
+// The bundle of a dose-response analysis holds the curve figure (valid
+// SVG) and a LaTeX table fragment that balances; a categorical exposure's
+// bundle has the contrast columns in its CSV.
+#[test]
+fn bundles_hold_the_curve_figure_and_the_contrasts() {
+    let dir = tempfile::tempdir().unwrap();
+    let out = dir.path().join("dose");
+    let mut args = demo("estimate");
+    args.extend(
+        [
+            "--exposure",
+            "bmi",
+            "--outcome",
+            "pain_days",
+            "--contrast",
+            "20,30",
+            "--quiet",
+            "--out",
+        ]
+        .map(String::from),
+    );
+    args.push(out.display().to_string());
+    let args: Vec<&str> = args.iter().map(String::as_str).collect();
+    let r = crate::helpers::run_in(dir.path(), &args);
+    assert_eq!(r.code, 0, "{}", r.stderr);
+    let svg = std::fs::read_to_string(out.join("figures/main-curve.svg")).unwrap();
+    roxmltree::Document::parse(&svg).expect("the curve figure parses");
+    assert!(svg.contains("dose 20") && svg.contains("dose 30"), "marked doses");
+    crate::cli_compare::assert_tex_balanced(&std::fs::read_to_string(out.join("table.tex")).unwrap());
+    let report = std::fs::read_to_string(out.join("report.md")).unwrap();
+    assert!(report.contains("main-curve.svg"), "the report shows the figure");
+    let out = dir.path().join("levels");
+    let mut args = demo("estimate");
+    args.extend(["--exposure", "role", "--outcome", "pain_days", "--quiet", "--out"].map(String::from));
+    args.push(out.display().to_string());
+    let args: Vec<&str> = args.iter().map(String::as_str).collect();
+    let r = crate::helpers::run_in(dir.path(), &args);
+    assert_eq!(r.code, 0, "{}", r.stderr);
+    let csv = std::fs::read_to_string(out.join("estimates.csv")).unwrap();
+    let head = csv.lines().next().unwrap();
+    assert!(head.contains("contrast_level,contrast_reference"), "{head}");
+    assert!(
+        csv.contains("office,driver") || csv.contains(",warehouse,driver"),
+        "{csv}"
+    );
+}
+
+// `compare` under two graphs shows every contrast of each.
+#[test]
+fn compare_shows_every_contrast() {
+    let dir = tempfile::tempdir().unwrap();
+    let other = crate::helpers::write(
+        dir.path(),
+        "other.graph",
+        "age -> role\nage -> pain_days\nrole -> pain_days\ncommute_minutes -> pain_days\n",
+    );
+    let graph = crate::helpers::repo("demo-data/main.graph").display().to_string();
+    let data = crate::helpers::repo("demo-data/study.csv").display().to_string();
+    let v = cli(
+        dir.path(),
+        &[
+            "compare",
+            "--graph",
+            &graph,
+            "--graph",
+            &other,
+            "--data",
+            &data,
+            "--exposure",
+            "role",
+            "--outcome",
+            "pain_days",
+            "--method",
+            "regression",
+        ],
+    );
+    let text = v.to_string();
+    assert!(text.matches("\"reference\":\"driver\"").count() >= 4, "{text}");
+}

@@ -24,7 +24,10 @@ use std::path::PathBuf;
 /// header line; --delimiter overrides). A two-valued exposure may be
 /// numbers or text (e.g. quit/continued): --exposed names the exposed
 /// value; without it the larger number, or the text level that sorts last,
-/// is exposed, and the report says which.
+/// is exposed, and the report says which. An exposure of three or more
+/// levels compares each with --reference (default the lowest); a numeric
+/// exposure with many values is a dose, with a dose-response curve at --at
+/// and a comparison of two doses with --contrast.
 ///
 /// Examples (run from the repository root):
 ///   causeway estimate --graph demo-data/main.graph --data demo-data/study.csv \
@@ -35,6 +38,10 @@ use std::path::PathBuf;
 ///   causeway estimate --graph demo-data/main.graph --data demo-data/study.csv \
 ///       --exposure enrolled --outcome pain_days --categorical role \
 ///       --benchmark role,age --benchmark-multiples 1,3
+///   causeway estimate --graph demo-data/main.graph --data demo-data/study.csv \
+///       --exposure role --outcome pain_days --reference office
+///   causeway estimate --graph demo-data/main.graph --data demo-data/study.csv \
+///       --exposure bmi --outcome pain_days --at 20,25,30,35 --contrast 20,30
 #[derive(clap::Args)]
 #[command(verbatim_doc_comment)]
 pub struct Args {

@@ -86,7 +86,7 @@ fn curve_plot(a: &Analysis) -> curve_figure::CurvePlot {
             d.iter()
                 .map(|&x| curve_figure::MarkedDose {
                     x,
-                    label: format!("dose {}", estimate_doc::num(x)),
+                    label: format!("dose {}", estimate_doc::value(x)),
                 })
                 .collect()
         })

@@ -159,7 +159,10 @@ pub fn comparison_table(runs: &[Run], level: f64) -> Table {
                         r.graph.clone(),
                         strategy.into(),
                         set_text(&set),
-                        e.method.clone(),
+                        match &e.contrast {
+                            Some(c) => format!("{} ({})", e.method, c.words()),
+                            None => e.method.clone(),
+                        },
                         scale_label(a, e.scale).into(),
                         num(shown(a, e.scale, e.estimate)),
                         shown_interval(a, e.scale, e.ci),

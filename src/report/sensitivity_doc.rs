@@ -16,12 +16,48 @@ pub fn sensitivity_blocks(a: &Analysis) -> Vec<Block> {
         exposure: &a.exposure,
         outcome: &a.outcome,
     };
+    let by = &a.sensitivity.by_contrast;
     if let (Some(e), Some(m)) = (&a.sensitivity.evalue, &a.details.evalue_method) {
+        let which = match by.first() {
+            Some(c) => format!("the {m} estimate of {}", c.contrast.words()),
+            None => format!("the {m} estimate"),
+        };
         b.push(Block::Para(format!(
-            "Risk-ratio scale (E-value, VanderWeele & Ding 2017; the {m} estimate, {}). {}",
+            "Risk-ratio scale (E-value, VanderWeele & Ding 2017; {which}, {}). {}",
             e.scale,
             evalue_reading(e, names)
         )));
+    }
+    if !by.is_empty() {
+        let level = a.estimates.first().map_or(0.95, |e| e.estimate.level);
+        let mut t = Table::new(
+            &format!("Each contrast's sensitivity ({} estimates)", by[0].method),
+            &[
+                "contrast",
+                "E-value (for the interval)",
+                "robustness value",
+                &format!("robustness value for the {:.0}% interval", 100.0 * level),
+            ],
+        )
+        .align(0, super::doc::Align::Left);
+        for c in by {
+            let ev = c.evalue.as_ref().map_or("-".into(), |e| match e.ci_limit {
+                Some(l) => format!("{} ({})", num(e.point), num(l)),
+                None => num(e.point),
+            });
+            let (rv, rva) = c
+                .robustness_value
+                .as_ref()
+                .map_or(("-".into(), "-".into()), |r| (pct(r.rv), pct(r.rv_alpha)));
+            t.row(vec![c.contrast.words(), ev, rv, rva]);
+        }
+        t.notes.push(
+            "E-values: the risk ratio by which a missing confounder would have to be tied to both the exposure \
+             level and the outcome; robustness values: the share of the residual variance of both it would \
+             have to explain (linear outcome model, the level's coefficient against the reference)."
+                .into(),
+        );
+        b.push(Block::Table(t));
     }
     if let (Some(rv), Some(c)) = (&a.sensitivity.robustness_value, &a.details.coefficient) {
         b.push(Block::Para(format!(
