@@ -32,21 +32,6 @@ pub enum Estimand {
     Atc,
 }
 
-impl std::str::FromStr for Estimand {
-    type Err = Error;
-    fn from_str(s: &str) -> Result<Self> {
-        match s.to_ascii_lowercase().as_str() {
-            "ate" => Ok(Estimand::Ate),
-            "att" => Ok(Estimand::Att),
-            "atc" => Ok(Estimand::Atc),
-            _ => Err(Error::option(
-                Opt::Estimand,
-                format!("'{s}': expected ate, att or atc"),
-            )),
-        }
-    }
-}
-
 impl std::fmt::Display for Estimand {
     fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
         f.write_str(match self {
@@ -68,21 +53,6 @@ pub enum Scale {
     Ratio,
     /// [mu1 / (1 - mu1)] / [mu0 / (1 - mu0)] (binary outcome).
     Odds,
-}
-
-impl std::str::FromStr for Scale {
-    type Err = Error;
-    fn from_str(s: &str) -> Result<Self> {
-        match s.to_ascii_lowercase().as_str() {
-            "difference" => Ok(Scale::Difference),
-            "ratio" => Ok(Scale::Ratio),
-            "odds" => Ok(Scale::Odds),
-            _ => Err(Error::option(
-                Opt::Scale,
-                format!("'{s}': expected difference, ratio or odds"),
-            )),
-        }
-    }
 }
 
 impl std::fmt::Display for Scale {

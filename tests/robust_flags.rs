@@ -92,8 +92,16 @@ fn unknown_method_and_other_names() {
     );
     expect(&estimate(&["--estimand", "atx"]), 2, &["atx"]);
     expect(&estimate(&["--scale", "log"]), 2, &["log"]);
-    expect(&estimate(&["--shape", "cubic"]), 2, &["--shape 'cubic'"]);
-    expect(&estimate(&["--interval", "wide"]), 2, &["--interval 'wide'"]);
+    expect(
+        &estimate(&["--shape", "cubic"]),
+        2,
+        &["invalid value 'cubic'", "--shape"],
+    );
+    expect(
+        &estimate(&["--interval", "wide"]),
+        2,
+        &["invalid value 'wide'", "--interval"],
+    );
     expect(&estimate(&["--contrast", "1"]), 2, &["--contrast '1'"]);
     expect(&estimate(&["--latent", "q"]), 2, &["--latent 'q' is not a node"]);
 }

@@ -40,8 +40,14 @@ pub struct EstimateFlags {
     #[arg(long, value_name = "LIST")]
     pub method: Option<String>,
     /// ate, att or atc.
-    #[arg(long, default_value = "ate", value_name = "WHICH")]
-    pub estimand: String,
+    #[arg(
+        long,
+        value_enum,
+        ignore_case = true,
+        default_value = "ate",
+        value_name = "WHICH"
+    )]
+    pub estimand: EstimandArg,
     /// optimal, minimal, or a comma-separated set to adjust for.
     #[arg(long, default_value = "optimal", value_name = "SET")]
     pub adjust: String,
@@ -55,20 +61,26 @@ pub struct EstimateFlags {
     /// How continuous covariates (and a continuous exposure, in the outcome
     /// model and the weighted dose-response model) enter: linear, quadratic
     /// or spline.
-    #[arg(long, default_value = "linear", value_name = "SHAPE")]
-    pub shape: String,
+    #[arg(long, value_enum, default_value = "linear", value_name = "SHAPE")]
+    pub shape: ShapeArg,
     /// Covariates whose product with the exposure enters the outcome model.
     #[arg(long, value_name = "A,B")]
     pub interact: Option<String>,
     /// Scale for a binary outcome: difference, ratio or odds.
-    #[arg(long, default_value = "difference", value_name = "SCALE")]
-    pub scale: String,
+    #[arg(
+        long,
+        value_enum,
+        ignore_case = true,
+        default_value = "difference",
+        value_name = "SCALE"
+    )]
+    pub scale: ScaleArg,
     /// Bootstrap replicates (0: analytic intervals only).
     #[arg(long, allow_negative_numbers = true, default_value_t = 0, value_name = "N")]
     pub bootstrap: usize,
     /// Bootstrap interval put in `ci`: percentile, bca or normal.
-    #[arg(long, default_value = "percentile", value_name = "KIND")]
-    pub interval: String,
+    #[arg(long, value_enum, default_value = "percentile", value_name = "KIND")]
+    pub interval: IntervalArg,
     /// Confidence level, in (0, 1).
     #[arg(
         long,
@@ -125,6 +137,73 @@ pub struct EstimateFlags {
     pub quiet: bool,
 }
 
+/// Defines a flag's value enum and its conversion to the library's type.
+macro_rules! value_enum {
+    ($(#[$doc:meta])* $name:ident => $target:ty { $($(#[$vdoc:meta])* $variant:ident => $value:expr),+ $(,)? }) => {
+        $(#[$doc])*
+        #[derive(Debug, Clone, Copy, PartialEq, Eq, clap::ValueEnum)]
+        pub enum $name {
+            $($(#[$vdoc])* $variant),+
+        }
+
+        impl From<$name> for $target {
+            fn from(v: $name) -> Self {
+                match v {
+                    $($name::$variant => $value),+
+                }
+            }
+        }
+    };
+}
+
+value_enum!(
+    /// The `--estimand` flag's values.
+    EstimandArg => Estimand {
+        /// Average effect over everyone.
+        Ate => Estimand::Ate,
+        /// Average effect over the exposed.
+        Att => Estimand::Att,
+        /// Average effect over the unexposed.
+        Atc => Estimand::Atc,
+    }
+);
+
+value_enum!(
+    /// The `--scale` flag's values.
+    ScaleArg => Scale {
+        /// Difference of the two means.
+        Difference => Scale::Difference,
+        /// Ratio of the two risks.
+        Ratio => Scale::Ratio,
+        /// Ratio of the two odds.
+        Odds => Scale::Odds,
+    }
+);
+
+value_enum!(
+    /// The `--shape` flag's values.
+    ShapeArg => Shape {
+        /// As is.
+        Linear => Shape::Linear,
+        /// With its square.
+        Quadratic => Shape::Quadratic,
+        /// A restricted cubic spline with 4 knots.
+        Spline => Shape::Spline,
+    }
+);
+
+value_enum!(
+    /// The `--interval` flag's values.
+    IntervalArg => IntervalKind {
+        /// Quantiles of the replicates.
+        Percentile => IntervalKind::Percentile,
+        /// Bias-corrected and accelerated.
+        Bca => IntervalKind::Bca,
+        /// Estimate plus or minus z times the bootstrap standard error.
+        Normal => IntervalKind::Normal,
+    }
+);
+
 fn list(s: &Option<String>) -> Vec<String> {
     s.as_deref().map(split_list).unwrap_or_default()
 }
@@ -151,16 +230,6 @@ impl EstimateFlags {
                 "--trim {t}: expected a number at least 0 and below 0.5"
             )));
         }
-        let shape = match self.shape.as_str() {
-            "linear" => Shape::Linear,
-            "quadratic" => Shape::Quadratic,
-            "spline" => Shape::Spline,
-            s => {
-                return Err(Error::input(format!(
-                    "--shape '{s}': expected linear, quadratic or spline"
-                )));
-            }
-        };
         let contrast = match &self.contrast {
             None => None,
             Some(c) => {
@@ -201,10 +270,10 @@ impl EstimateFlags {
             methods,
             model: Spec {
                 categorical: list(&self.categorical),
-                shape,
+                shape: self.shape.into(),
                 interact: list(&self.interact),
-                estimand: self.estimand.parse::<Estimand>()?,
-                scale: self.scale.parse::<Scale>()?,
+                estimand: self.estimand.into(),
+                scale: self.scale.into(),
                 trim: self.trim.filter(|&t| t > 0.0),
                 level: self.level,
                 contrast,
@@ -214,12 +283,7 @@ impl EstimateFlags {
                 ..Spec::default()
             },
             bootstrap: self.bootstrap,
-            interval: IntervalKind::parse(&self.interval).map_err(|_| {
-                Error::input(format!(
-                    "--interval '{}': expected percentile, bca or normal",
-                    self.interval
-                ))
-            })?,
+            interval: self.interval.into(),
             seed: self.seed,
             threads: self.threads,
             progress: super::bar::reporter(self.quiet),

@@ -117,19 +117,6 @@ impl IntervalKind {
             IntervalKind::Normal => "bootstrap-normal",
         }
     }
-
-    /// Parses the name of an interval kind.
-    pub fn parse(s: &str) -> Result<Self> {
-        match s {
-            "percentile" => Ok(IntervalKind::Percentile),
-            "bca" => Ok(IntervalKind::Bca),
-            "normal" => Ok(IntervalKind::Normal),
-            _ => Err(Error::option(
-                Setting::Interval,
-                format!("'{s}': expected percentile, bca or normal"),
-            )),
-        }
-    }
 }
 
 /// The jackknife used for the BCa acceleration.
@@ -681,7 +668,6 @@ mod tests {
         };
         assert!(run(3, &o, f).is_err());
         assert!(run(1, &BootOpts::default(), f).is_err());
-        assert!(IntervalKind::parse("studentized").is_err());
-        assert_eq!(IntervalKind::parse("bca").unwrap().ci_method(), "bootstrap-bca");
+        assert_eq!(IntervalKind::Bca.ci_method(), "bootstrap-bca");
     }
 }
