@@ -25,13 +25,13 @@ the binary `a` are not used). As an analyst would write it:
   influences (no degrees-of-freedom correction), as causeway does.
 
 Computed here and by causeway: the two models, the 4 means and 3
-contrasts of each method, their sandwich standard errors (and 95% normal
-intervals). Not computed here but computed in causeway's timed part: its
-problem preparation (complete cases, codings, checks for aliased terms
-and separation), the check of each model's convergence beyond
-statsmodels' own, and the rows' JSON records. Neither side computes
-diagnostics, balance, sensitivity or bootstrap intervals in this benchmark
-(the bench calls the estimators directly, not `analysis::run`).
+contrasts of each method, their sandwich standard errors and 95% normal
+intervals. Computed in causeway's timed part but not here: its problem
+preparation (complete cases, codings, the check for aliased terms, the
+separation check of the propensity model) and the result records with
+their notes. Neither side computes diagnostics, balance, sensitivity or
+bootstrap intervals in this benchmark (the bench calls the estimators
+directly, not `analysis::run`).
 
 The multinomial covariance from statsmodels is the inverse of the negative
 Hessian with its parameters ordered level by level (levels 2, 3, 4, each
