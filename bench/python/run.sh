@@ -1,17 +1,29 @@
 #!/usr/bin/env bash
-# Installs the pinned Python packages in a virtual environment and runs the
-# pandas + statsmodels reference of the bootstrap benchmark.
+# Installs the pinned Python packages in a virtual environment and runs a
+# pandas + statsmodels reference:
 #
-# Usage: bash bench/python/run.sh [DATA.csv] [REPLICATES]
-# DATA.csv defaults to the file `cargo bench --bench bootstrap` writes.
+# - the bootstrap benchmark's (default):
+#     bash bench/python/run.sh [DATA.csv] [REPLICATES]
+#   DATA.csv defaults to the file `cargo bench --bench bootstrap` writes;
+# - the estimate benchmark's 4-level categorical exposure:
+#     bash bench/python/run.sh multilevel [DATA.csv]
+#   DATA.csv defaults to the file `cargo bench --bench estimate` writes.
 set -euo pipefail
 here="$(cd "$(dirname "$0")" && pwd)"
 repo="$(cd "$here/../.." && pwd)"
-data="${1:-$repo/target/tmp/bootstrap-bench-20000.csv}"
-replicates="${2:-200}"
+if [ "${1:-}" = "multilevel" ]; then
+    shift
+    bench=estimate
+    data="${1:-$repo/target/tmp/estimate-bench-1000000.csv}"
+    run=("$here/multilevel_reference.py" "$data")
+else
+    bench=bootstrap
+    data="${1:-$repo/target/tmp/bootstrap-bench-20000.csv}"
+    run=("$here/bootstrap_reference.py" "$data" "${2:-200}")
+fi
 venv="${CAUSEWAY_BENCH_VENV:-$repo/target/bench-venv}"
 if [ ! -f "$data" ]; then
-    echo "no data at $data: run 'cargo bench --bench bootstrap' first, or give the CSV path" >&2
+    echo "no data at $data: run 'cargo bench --bench $bench' first, or give the CSV path" >&2
     exit 2
 fi
 if [ ! -x "$venv/bin/python" ]; then
@@ -28,4 +40,4 @@ fi
 blas_threads="${CAUSEWAY_BENCH_BLAS_THREADS:-1}"
 env -u OPENBLAS_CORETYPE -u OPENBLAS_L2_SIZE \
     OPENBLAS_NUM_THREADS="$blas_threads" OMP_NUM_THREADS="$blas_threads" \
-    "$venv/bin/python" "$here/bootstrap_reference.py" "$data" "$replicates"
+    "$venv/bin/python" "${run[@]}"
