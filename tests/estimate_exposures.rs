@@ -2,9 +2,10 @@
 //! statsmodels, with interval coverage in a seeded simulation; and a
 //! continuous exposure (a dose) against the book What If, section 12.4.
 
+use crate::estimate_nhefs::{COVARIATES, nhefs, nhefs_spec};
 use crate::estimate_sim::{normal, rng};
 use crate::helpers::{data, fixture};
-use causeway::data::{Dataset, ReadOptions, Shape};
+use causeway::data::{Dataset, ReadOptions};
 use causeway::estimate::{Problem, Scale, Spec, Target, by_name};
 use causeway::learn::{Fits, Needs};
 use rand::RngExt;
@@ -161,20 +162,9 @@ fn categorical_contrast_intervals_cover() {
 /// cigarettes a day at baseline (rows with the outcome missing are dropped
 /// by the analysis itself).
 fn nhefs_light_smokers() -> Dataset {
-    let d = Dataset::open(&data("nhefs.csv"), &ReadOptions::default()).unwrap();
-    let names = [
-        "smkintensity82_71",
-        "wt82_71",
-        "sex",
-        "race",
-        "age",
-        "education",
-        "smokeintensity",
-        "smokeyrs",
-        "exercise",
-        "active",
-        "wt71",
-    ];
+    let d = nhefs();
+    let mut names = vec!["smkintensity82_71", "wt82_71"];
+    names.extend(COVARIATES);
     let col = |n: &str| {
         d.column(n)
             .unwrap()
@@ -198,26 +188,9 @@ fn nhefs_light_smokers() -> Dataset {
 fn dose_problem(at: Vec<f64>) -> Problem {
     let spec = Spec {
         exposure: "smkintensity82_71".into(),
-        outcome: "wt82_71".into(),
-        covariates: [
-            "sex",
-            "race",
-            "age",
-            "education",
-            "smokeintensity",
-            "smokeyrs",
-            "exercise",
-            "active",
-            "wt71",
-        ]
-        .iter()
-        .map(|s| s.to_string())
-        .collect(),
-        categorical: vec!["education".into(), "exercise".into(), "active".into()],
-        shape: Shape::Quadratic,
         at: Some(at),
         contrast: Some((0.0, 20.0)),
-        ..Spec::default()
+        ..nhefs_spec(&COVARIATES, &[])
     };
     Problem::build(&nhefs_light_smokers(), &spec).unwrap()
 }
@@ -305,15 +278,23 @@ fn demo(cmd: &str) -> Vec<String> {
     vec![cmd.into(), "--graph".into(), graph, "--data".into(), data]
 }
 
+/// `estimate` on the demo study with `extra` flags, as JSON.
+fn demo_json(dir: &std::path::Path, extra: &[&str]) -> Value {
+    let mut args = demo("estimate");
+    args.extend(extra.iter().map(|s| s.to_string()));
+    let args: Vec<&str> = args.iter().map(String::as_str).collect();
+    cli(dir, &args)
+}
+
 // The bootstrap covers every contrast of a categorical exposure and every
 // point of a dose-response curve: each row gets its own bootstrap block and
 // each curve point a bootstrap interval around its estimate.
 #[test]
 fn the_bootstrap_covers_every_contrast_and_curve_point() {
     let dir = tempfile::tempdir().unwrap();
-    let mut args = demo("estimate");
-    args.extend(
-        [
+    let v = demo_json(
+        dir.path(),
+        &[
             "--exposure",
             "role",
             "--outcome",
@@ -322,11 +303,8 @@ fn the_bootstrap_covers_every_contrast_and_curve_point() {
             "office",
             "--bootstrap",
             "60",
-        ]
-        .map(String::from),
+        ],
     );
-    let args: Vec<&str> = args.iter().map(String::as_str).collect();
-    let v = cli(dir.path(), &args);
     let rows = v["estimates"].as_array().unwrap();
     assert_eq!(rows.len(), 6);
     for r in rows {
@@ -337,9 +315,9 @@ fn the_bootstrap_covers_every_contrast_and_curve_point() {
         assert!(lo < e && e < hi, "{r}");
         assert_eq!(r["ci_method"], "bootstrap-percentile");
     }
-    let mut args = demo("estimate");
-    args.extend(
-        [
+    let v = demo_json(
+        dir.path(),
+        &[
             "--exposure",
             "bmi",
             "--outcome",
@@ -348,11 +326,8 @@ fn the_bootstrap_covers_every_contrast_and_curve_point() {
             "20,30",
             "--bootstrap",
             "60",
-        ]
-        .map(String::from),
+        ],
     );
-    let args: Vec<&str> = args.iter().map(String::as_str).collect();
-    let v = cli(dir.path(), &args);
     let curves = v["curves"].as_array().unwrap();
     assert_eq!(curves.len(), 2);
     for c in curves {

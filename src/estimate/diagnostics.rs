@@ -217,15 +217,9 @@ pub fn diagnostics(p: &Problem, ps: &Propensity) -> Diagnostics {
             100.0 * top
         ));
     }
-    let poor: Vec<&str> = balance
-        .iter()
-        .filter(|b| b.smd_weighted.abs() > 0.1)
-        .map(|b| b.covariate.as_str())
-        .collect();
-    if !poor.is_empty() {
+    if let Some(poor) = poorly_balanced(&balance) {
         warnings.push(format!(
-            "after weighting, standardized mean differences above 0.1 remain for: {}",
-            poor.join(", ")
+            "after weighting, standardized mean differences above 0.1 remain for: {poor}"
         ));
     }
     Diagnostics {
@@ -234,6 +228,16 @@ pub fn diagnostics(p: &Problem, ps: &Propensity) -> Diagnostics {
         balance,
         warnings,
     }
+}
+
+/// The terms still out of balance after weighting (|SMD| above 0.1), listed.
+fn poorly_balanced(balance: &[Balance]) -> Option<String> {
+    let poor: Vec<&str> = balance
+        .iter()
+        .filter(|b| b.smd_weighted.abs() > 0.1)
+        .map(|b| b.covariate.as_str())
+        .collect();
+    (!poor.is_empty()).then(|| poor.join(", "))
 }
 
 fn balance(p: &Problem, h1: &[f64], h0: &[f64]) -> Vec<Balance> {
@@ -330,16 +334,10 @@ pub fn level_diagnostics(p: &Problem, lp: &LevelPropensity) -> (Vec<LevelDiagnos
                 "{near} rows at level {label} had a probability below 0.01 of that level (positivity is in doubt)"
             ));
         }
-        let poor: Vec<&str> = balance
-            .iter()
-            .filter(|b| b.smd_weighted.abs() > 0.1)
-            .map(|b| b.covariate.as_str())
-            .collect();
-        if !poor.is_empty() {
+        if let Some(poor) = poorly_balanced(&balance) {
             warnings.push(format!(
-                "after weighting, level {label} against {}: standardized mean differences above 0.1 remain for: {}",
-                levels[0],
-                poor.join(", ")
+                "after weighting, level {label} against {}: standardized mean differences above 0.1 remain for: {poor}",
+                levels[0]
             ));
         }
         out.push(LevelDiagnostics {

@@ -36,7 +36,7 @@
 //! small magnitude are labelled in units of a power of ten, named in the
 //! axis title.
 
-use super::sensitivity_figure::{label_width, lines, ticks};
+use super::sensitivity_figure::{LINE, MARGIN, ROW, SMALL, WIDTH, label_width, lines, ticks};
 use super::svg::{Shape, Svg, ink, nice_ceiling};
 
 /// One evaluated dose of a curve.
@@ -87,12 +87,7 @@ pub struct CurvePlot {
     pub marks: Vec<MarkedDose>,
 }
 
-const WIDTH: f64 = 780.0;
-const MARGIN: f64 = 24.0;
-const SMALL: f64 = 11.0;
 const TITLE: f64 = 17.0;
-const LINE: f64 = 17.0;
-const ROW: f64 = 26.0;
 const PLOT_H: f64 = 340.0;
 /// Gap between the plot frame and the data, so markers stay inside it.
 const INSET: f64 = 10.0;

@@ -85,12 +85,17 @@ pub fn hypothesised_yardsticks(rows: &[Adjusted]) -> Vec<Yardstick> {
         .collect()
 }
 
-const WIDTH: f64 = 780.0;
-const MARGIN: f64 = 24.0;
+/// Figure width, shared by the figures of this family.
+pub(super) const WIDTH: f64 = 780.0;
+/// Outer margin.
+pub(super) const MARGIN: f64 = 24.0;
 const FONT: f64 = 12.0;
-const SMALL: f64 = 11.0;
-const ROW: f64 = 26.0;
-const LINE: f64 = 17.0;
+/// Small text.
+pub(super) const SMALL: f64 = 11.0;
+/// Height of a legend row.
+pub(super) const ROW: f64 = 26.0;
+/// Height of a text line.
+pub(super) const LINE: f64 = 17.0;
 const PLOT_MIN: f64 = 420.0;
 const FOOTNOTE: &str = "One hidden confounder is assumed, described by how strongly it is tied to the exposure \
 and to the outcome beyond the measured covariates. The lines show how strong it would have to be, not that it \
