@@ -324,6 +324,14 @@ pub fn run(plan: &Plan, data: &Dataset, opts: &Options) -> Result<Analysis> {
         }
         None => estimate::applicable(&problem, plan.strategy),
     };
+    if methods.is_empty() {
+        return Err(Error::input(format!(
+            "no estimation method serves a {} exposure such as '{}' under the {} strategy",
+            problem.kind.words(),
+            problem.spec.exposure,
+            plan.strategy.name()
+        )));
+    }
     let mut needs = estimate::needs(&methods);
     if plan.strategy == Strategy::Backdoor {
         needs = needs.union(Needs {

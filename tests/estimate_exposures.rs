@@ -423,3 +423,92 @@ fn compare_shows_every_contrast() {
     let text = v.to_string();
     assert!(text.matches("\"reference\":\"driver\"").count() >= 4, "{text}");
 }
+
+// Settings that do not fit the exposure's kind are refused with exit 2,
+// naming the setting; so is a strategy no estimator serves for it.
+#[test]
+fn settings_that_do_not_fit_the_exposure_kind_are_refused() {
+    let dir = tempfile::tempdir().unwrap();
+    let run = |extra: &[&str]| {
+        let mut args = demo("estimate");
+        args.extend(extra.iter().map(|s| s.to_string()));
+        args.push("--quiet".into());
+        let args: Vec<&str> = args.iter().map(String::as_str).collect();
+        crate::helpers::run_in(dir.path(), &args)
+    };
+    for (extra, want) in [
+        (
+            vec!["--exposure", "bmi", "--outcome", "pain_days", "--method", "aipw"],
+            "does not serve a continuous exposure",
+        ),
+        (
+            vec![
+                "--exposure",
+                "role",
+                "--outcome",
+                "pain_days",
+                "--estimand",
+                "att",
+            ],
+            "--estimand att needs a binary exposure",
+        ),
+        (
+            vec!["--exposure", "role", "--outcome", "pain_days", "--trim", "0.01"],
+            "--trim applies to",
+        ),
+        (
+            vec!["--exposure", "enrolled", "--outcome", "pain_days", "--at", "1,2"],
+            "--at applies to a continuous exposure",
+        ),
+        (
+            vec![
+                "--exposure",
+                "role",
+                "--outcome",
+                "pain_days",
+                "--contrast",
+                "1,2",
+            ],
+            "--contrast applies to a continuous",
+        ),
+    ] {
+        let r = run(&extra);
+        assert_eq!(r.code, 2, "{extra:?}: {}", r.stderr);
+        assert!(r.stderr.contains(want), "{extra:?}: {}", r.stderr);
+    }
+    let graph = crate::helpers::write(dir.path(), "fd.graph", "x -> m -> y\nu -> x\nu -> y\n");
+    let mut csv = String::from("x,m,y\n");
+    for i in 0..60 {
+        let x = ["a", "b", "c"][i % 3];
+        csv.push_str(&format!(
+            "{x},{},{}\n",
+            (i % 7) as f64 * 0.5,
+            (i % 11) as f64 * 0.3
+        ));
+    }
+    let data = crate::helpers::write(dir.path(), "fd.csv", &csv);
+    let r = crate::helpers::run_in(
+        dir.path(),
+        &[
+            "estimate",
+            "--graph",
+            &graph,
+            "--data",
+            &data,
+            "--exposure",
+            "x",
+            "--outcome",
+            "y",
+            "--latent",
+            "u",
+            "--quiet",
+        ],
+    );
+    assert_eq!(r.code, 2, "{}", r.stderr);
+    assert!(
+        r.stderr
+            .contains("no estimation method serves a categorical exposure"),
+        "{}",
+        r.stderr
+    );
+}
