@@ -512,3 +512,64 @@ fn settings_that_do_not_fit_the_exposure_kind_are_refused() {
         r.stderr
     );
 }
+
+// Dose-response intervals cover in 200 seeded runs: a dose moderately
+// confounded by one covariate (a = 0.5 x + e), truth E[Y^a] = 1 + 0.5 a,
+// n = 1000. Standardization's sandwich is near nominal; the weighted
+// model's, which takes the weights as known, is near nominal or above.
+// (With stronger confounding, a = 0.8 x + e, the density-ratio weights are
+// heavy-tailed and the weighted model's intervals under-cover at any of
+// these sizes, whether or not the weights' estimation is stacked into the
+// sandwich: measured with statsmodels and numpy while building this test;
+// the diagnostics warn of such weights.)
+#[test]
+fn dose_response_intervals_cover() {
+    let runs = 200;
+    let doses = [-1.0, 0.0, 1.5];
+    let mut hits = [[0usize; 3]; 2];
+    for seed in 0..runs {
+        let mut r = rng(5000 + seed);
+        let n = 1000;
+        let (mut a, mut y, mut x) = (Vec::new(), Vec::new(), Vec::new());
+        for _ in 0..n {
+            let xv = normal(&mut r);
+            let av = 0.5 * xv + normal(&mut r);
+            a.push(av);
+            x.push(xv);
+            y.push(1.0 + 0.5 * av + xv + normal(&mut r));
+        }
+        let d = Dataset::from_columns("sim.csv", vec![("a".into(), a), ("y".into(), y), ("x".into(), x)])
+            .unwrap();
+        let spec = Spec {
+            exposure: "a".into(),
+            outcome: "y".into(),
+            covariates: vec!["x".into()],
+            at: Some(doses.to_vec()),
+            ..Spec::default()
+        };
+        let p = Problem::build(&d, &spec).unwrap();
+        let fits = all_fits(&p);
+        for (m, name) in ["regression", "ipw"].iter().enumerate() {
+            let (_, t) = causeway::estimate::rows(by_name(name).unwrap(), &p, &fits).unwrap();
+            for (k, &dose) in doses.iter().enumerate() {
+                let j = t.position(Target::Dose(dose)).unwrap();
+                let (_, ci) = causeway::estimate::contrast::target_interval(&t, j, 0.95);
+                let truth = 1.0 + 0.5 * dose;
+                if ci[0] <= truth && truth <= ci[1] {
+                    hits[m][k] += 1;
+                }
+            }
+        }
+    }
+    for (m, name) in ["regression", "ipw"].iter().enumerate() {
+        for (k, &hit) in hits[m].iter().enumerate() {
+            let rate = hit as f64 / runs as f64;
+            let upper = if m == 0 { 0.99 } else { 1.0 };
+            assert!(
+                (0.905..=upper).contains(&rate),
+                "{name} at {}: coverage {rate}",
+                doses[k]
+            );
+        }
+    }
+}

@@ -400,9 +400,12 @@ pub fn dose_diagnostics(dd: &DoseDensity) -> (DoseDiagnostics, Vec<String>) {
     }
     if r.max > 10.0 * mean {
         warnings.push(format!(
-            "extreme stabilized weights: the largest is {:.2} ({:.1}x the mean)",
+            "extreme stabilized weights: the largest is {:.2} ({:.1}x the mean), effective sample size {:.0} of \
+             {n} rows; with weights this uneven the weighted dose-response model's intervals can be too narrow: \
+             compare standardization and a bootstrap interval",
             r.max,
-            r.max / mean
+            r.max / mean,
+            ess
         ));
     }
     (
