@@ -96,9 +96,6 @@ pub struct Item {
     /// The analytic (sandwich) interval, kept when the bootstrap replaced it.
     #[serde(skip)]
     pub analytic_ci: [f64; 2],
-    /// The contrast the row reports.
-    #[serde(skip)]
-    pub spec: Option<ContrastSpec>,
 }
 
 /// Sensitivity details the text and figures need beyond the JSON block.
@@ -355,19 +352,11 @@ pub fn run(plan: &Plan, data: &Dataset, opts: &Options) -> Result<Analysis> {
         let name = m.about().name;
         warnings.extend(t.warnings.iter().map(|w| format!("{name}: {w}")));
         notes.extend(t.notes.iter().map(|n| format!("{name}: {n}")));
-        let specs = problem.contrasts();
-        let formed: Vec<&ContrastSpec> = specs
-            .iter()
-            .filter(|c| t.position(c.level).is_some() && t.position(c.reference).is_some())
-            .collect();
-        for (e, c) in rows.into_iter().zip(formed) {
-            estimates.push(Item {
-                analytic_ci: e.ci,
-                estimate: e,
-                bootstrap: None,
-                spec: Some(c.clone()),
-            });
-        }
+        estimates.extend(rows.into_iter().map(|e| Item {
+            analytic_ci: e.ci,
+            estimate: e,
+            bootstrap: None,
+        }));
         if let Some(c) = curve(&problem, name, &t) {
             curves.push(c);
         }
@@ -510,7 +499,7 @@ fn run_bootstrap(
             let rows = estimates
                 .iter()
                 .filter(|e| e.estimate.method == name)
-                .filter_map(|e| e.spec.clone())
+                .map(|e| e.estimate.spec.clone())
                 .collect();
             let doses = curves
                 .iter()
@@ -549,7 +538,7 @@ fn run_bootstrap(
         for item in estimates.iter_mut().filter(|e| e.estimate.method == name) {
             let s = draws.summary_at(j, opts.model.level)?;
             j += 1;
-            let label = match &item.estimate.contrast {
+            let label = match item.estimate.contrast() {
                 Some(c) => format!("{name} ({})", c.words()),
                 None => name.to_string(),
             };
@@ -663,7 +652,7 @@ fn sensitivity(
         .collect();
     if rows.len() > 1 {
         for (k, item) in rows.iter().enumerate() {
-            let Some(contrast) = item.estimate.contrast.clone() else {
+            let Some(contrast) = item.estimate.contrast().cloned() else {
                 continue;
             };
             by_contrast.push(ContrastSensitivity {
@@ -699,11 +688,7 @@ fn evalue_for(
             return evalue::risk_ratio(e.estimate, Some(ci));
         }
         // The risk ratio from the same targets, with its own interval.
-        let spec = item
-            .spec
-            .as_ref()
-            .ok_or_else(|| Error::Numerical("no contrast to read as a risk ratio".into()))?;
-        let rr = estimate::contrast::form(targets, spec, Scale::Ratio, p.spec.level)
+        let rr = estimate::contrast::form(targets, &e.spec, Scale::Ratio, p.spec.level)
             .ok_or_else(|| Error::Numerical("the method forms no risk ratio".into()))??;
         return evalue::risk_ratio(rr.estimate, Some((rr.ci[0], rr.ci[1])));
     }

@@ -389,7 +389,7 @@ impl Problem {
 
     /// Is the exposure binary?
     pub fn binary_exposure(&self) -> bool {
-        matches!(self.frame.kind(self.exposure), Kind::Binary { .. })
+        self.kind == ExposureKind::Binary
     }
 
     /// The levels of a categorical exposure, reference first (empty for
@@ -549,10 +549,7 @@ fn check_groups(frame: &Frame, spec: &Spec, exposure: usize) -> Result<()> {
         Kind::Categorical { levels } => levels.iter().map(|l| format!("'{l}'")).collect(),
         Kind::Numeric => return Ok(()),
     };
-    let mut count = vec![0usize; labels.len()];
-    for &a in frame.col(exposure) {
-        count[a as usize] += 1;
-    }
+    let count = group_sizes(frame, exposure);
     for (k, group) in count.iter().zip(&labels).rev() {
         if *k < 2 {
             let what = if labels.len() == 2 {
@@ -569,6 +566,20 @@ fn check_groups(frame: &Frame, spec: &Spec, exposure: usize) -> Result<()> {
         }
     }
     Ok(())
+}
+
+/// Rows per exposure code (binary or categorical); empty for a dose.
+fn group_sizes(frame: &Frame, exposure: usize) -> Vec<usize> {
+    let groups = match frame.kind(exposure) {
+        Kind::Binary { .. } => 2,
+        Kind::Categorical { levels } => levels.len(),
+        Kind::Numeric => return Vec::new(),
+    };
+    let mut count = vec![0usize; groups];
+    for &a in frame.col(exposure) {
+        count[a as usize] += 1;
+    }
+    count
 }
 
 /// Most distinct values of an exposure that is still flagged as perhaps
@@ -629,18 +640,10 @@ fn small_sample(
              bootstrap interval"
         ));
     };
-    let groups = match frame.kind(exposure) {
-        Kind::Binary { .. } => 2,
-        Kind::Categorical { levels } => levels.len(),
-        Kind::Numeric => 0,
-    };
-    if groups > 0 {
-        let mut count = vec![0usize; groups];
-        for &a in frame.col(exposure) {
-            count[a as usize] += 1;
-        }
+    let count = group_sizes(frame, exposure);
+    if !count.is_empty() {
         check(
-            if groups == 2 {
+            if count.len() == 2 {
                 "the smaller exposure group"
             } else {
                 "the smallest exposure group"

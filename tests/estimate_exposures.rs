@@ -75,7 +75,7 @@ fn categorical_exposure_matches_statsmodels() {
                 }
                 assert_eq!(rows.len(), 3);
                 for row in &rows {
-                    let c = row.contrast.as_ref().unwrap().values();
+                    let c = row.contrast().unwrap().values();
                     assert_eq!(c[1], "none");
                     let Some(want) = reference[key][c[0].as_str()].as_f64() else {
                         continue;

@@ -204,6 +204,14 @@ value_enum!(
     }
 );
 
+/// Comma-separated finite numbers; `None` when any part is not one.
+fn numbers(s: &str) -> Option<Vec<f64>> {
+    split_list(s)
+        .iter()
+        .map(|x| x.parse::<f64>().ok().filter(|v| v.is_finite()))
+        .collect()
+}
+
 fn list(s: &Option<String>) -> Vec<String> {
     s.as_deref().map(split_list).unwrap_or_default()
 }
@@ -232,30 +240,25 @@ impl EstimateFlags {
         }
         let contrast = match &self.contrast {
             None => None,
-            Some(c) => {
-                let v: Vec<f64> = split_list(c).iter().filter_map(|x| x.parse().ok()).collect();
-                match v.as_slice() {
-                    [a, b] if a.is_finite() && b.is_finite() && a != b => Some((*a, *b)),
-                    _ => {
-                        return Err(Error::input(format!(
-                            "--contrast '{c}': expected two different numbers, A,B"
-                        )));
-                    }
+            Some(c) => match numbers(c).as_deref() {
+                Some(&[a, b]) if a != b => Some((a, b)),
+                _ => {
+                    return Err(Error::input(format!(
+                        "--contrast '{c}': expected two different numbers, A,B"
+                    )));
                 }
-            }
+            },
         };
         let at = match &self.at {
             None => None,
-            Some(c) => {
-                let parts = split_list(c);
-                let v: Vec<f64> = parts.iter().filter_map(|x| x.parse().ok()).collect();
-                if v.is_empty() || v.len() != parts.len() || v.iter().any(|x| !x.is_finite()) {
+            Some(c) => match numbers(c) {
+                Some(v) if !v.is_empty() => Some(v),
+                _ => {
                     return Err(Error::input(format!(
                         "--at '{c}': expected one or more numbers, comma-separated"
                     )));
                 }
-                Some(v)
-            }
+            },
         };
         let methods = self.method.as_ref().map(|m| split_list(m));
         if let Some(ms) = &methods {

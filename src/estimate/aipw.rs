@@ -17,7 +17,6 @@ use crate::identify::Strategy;
 use crate::learn::{Fits, Needs, OutcomeFit};
 use crate::model::weighted_sum;
 use crate::problem::{Estimand, Problem};
-use nalgebra::DVector;
 
 /// Augmented IPW.
 pub struct Aipw;
@@ -201,16 +200,7 @@ fn propensity_influence(
         _ => {
             // d p_k / d gamma_j = p_k (1{k = j} - p_j) x.
             let lp = fits.levels()?;
-            let q = p.propensity.ncols();
-            let levels = lp.prob.len();
-            let mut kvec = DVector::zeros(q * (levels - 1));
-            for j in 1..levels {
-                let v: Vec<f64> = (0..n)
-                    .map(|i| dq[i] * lp.prob[k][i] * (f64::from(u8::from(k == j)) - lp.prob[j][i]))
-                    .collect();
-                kvec.rows_mut((j - 1) * q, q).copy_from(&weighted_sum(rows, &v));
-            }
-            lp.influence(p, &kvec)
+            lp.influence(p, &lp.gradient(p, k, dq))
         }
     })
 }

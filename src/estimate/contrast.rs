@@ -69,6 +69,13 @@ pub struct ContrastSpec {
     pub label: Option<ContrastLabel>,
 }
 
+impl ContrastSpec {
+    /// Has no label (a binary exposure or a one-unit shift).
+    pub fn unlabelled(&self) -> bool {
+        self.label.is_none()
+    }
+}
+
 /// A contrast formed from full-sample targets.
 #[derive(Debug, Clone)]
 pub struct Formed {

@@ -27,7 +27,7 @@
 //!   instead.
 
 use super::{About, Estimator, ExposureKind, Points, Serves, Target, Targets};
-use crate::data::{Design, Setting};
+use crate::data::{Design, Rows, Setting};
 use crate::identify::Strategy;
 use crate::learn::{Fits, Needs, Propensity};
 use crate::model::{Ols, linear_predictor, weighted_sum};
@@ -270,8 +270,6 @@ impl Ipw {
         let lp = fits.levels()?;
         let (a, y, n) = (p.a(), p.y(), p.n());
         let ht = self.horvitz_thompson;
-        let rows = p.propensity_rows();
-        let q = p.propensity.ncols();
         let levels = lp.prob.len();
         let mut t = Targets::default();
         for k in 0..levels {
@@ -282,18 +280,9 @@ impl Ipw {
                 .collect();
             let s = if ht { n as f64 } else { h.iter().sum() };
             let r = |i: usize| if ht { y[i] } else { y[i] - mu };
-            // d h_i / d gamma_j = -h_i (1{k = j} - p_ij) x_i.
-            let mut kvec = DVector::zeros(q * (levels - 1));
-            for j in 1..levels {
-                let v: Vec<f64> = (0..n)
-                    .map(|i| {
-                        let d = f64::from(u8::from(k == j)) - lp.prob[j][i];
-                        -h[i] * d * r(i)
-                    })
-                    .collect();
-                kvec.rows_mut((j - 1) * q, q).copy_from(&weighted_sum(&rows, &v));
-            }
-            let mut phi = lp.influence(p, &kvec);
+            // h_i = 1{A_i = k} / p_ik, so d h_i = -(h_i / p_ik) d p_ik.
+            let g: Vec<f64> = (0..n).map(|i| -h[i] / pk[i] * r(i)).collect();
+            let mut phi = lp.influence(p, &lp.gradient(p, k, &g));
             for (i, f) in phi.iter_mut().enumerate() {
                 let u = if ht { h[i] * y[i] - mu } else { h[i] * (y[i] - mu) };
                 *f = (u + *f) / s;
@@ -341,11 +330,13 @@ impl Msm {
         })
     }
 
-    /// The design row at target `t`'s dose (the average row with the
-    /// exposure set there, which every row equals).
+    /// The design row at target `t`'s dose (the model holds the
+    /// exposure's terms only, so every row is the same: the first).
     fn basis(&self, p: &Problem, t: Target) -> DVector<f64> {
-        let u = vec![1.0 / p.n() as f64; p.n()];
-        weighted_sum(&self.design.rows(&p.frame, t.setting()), &u)
+        let rows = self.design.rows(&p.frame, t.setting());
+        let mut out = vec![0.0; rows.ncols()];
+        rows.fill(0, 1, &mut out);
+        DVector::from_vec(out)
     }
 
     fn at(&self, p: &Problem, t: Target) -> f64 {

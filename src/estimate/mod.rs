@@ -119,54 +119,46 @@ pub fn by_name(name: &str) -> Result<&'static dyn Estimator> {
 /// Why `e` does not apply to `p` under `strategy`, if it does not.
 pub fn refusal(e: &dyn Estimator, p: &Problem, strategy: Strategy) -> Option<Error> {
     let a = e.about();
-    if !a.strategies.contains(&strategy) {
-        let fitting: Vec<&str> = ESTIMATORS
+    let fits_strategy = |x: &About| x.strategies.contains(&strategy);
+    let serves = |x: &About| x.serves.iter().any(|s| s.covers(&p.kind));
+    // The estimators that pass `keep`, named for the message.
+    let others = |keep: &dyn Fn(&About) -> bool| -> String {
+        let names: Vec<&str> = ESTIMATORS
             .iter()
-            .filter(|x| x.about().strategies.contains(&strategy))
-            .map(|x| x.about().name)
+            .map(|x| x.about())
+            .filter(|x| keep(x))
+            .map(|x| x.name)
             .collect();
-        return Some(Error::option(
-            Setting::Method,
-            format!(
-                "'{}' does not fit the {} strategy of this graph (it takes: {})",
-                a.name,
-                strategy.name(),
-                fitting.join(", ")
-            ),
-        ));
-    }
-    if !a.serves.iter().any(|s| s.covers(&p.kind)) {
-        let fitting: Vec<&str> = ESTIMATORS
-            .iter()
-            .filter(|x| {
-                x.about().strategies.contains(&strategy) && x.about().serves.iter().any(|s| s.covers(&p.kind))
-            })
-            .map(|x| x.about().name)
-            .collect();
-        return Some(Error::option(
-            Setting::Method,
-            format!(
-                "'{}' does not serve a {} exposure such as '{}' (for it: {})",
-                a.name,
-                p.kind.words(),
-                p.spec.exposure,
-                fitting.join(", ")
-            ),
-        ));
-    }
-    if !a.estimands.contains(&p.spec.estimand) {
+        names.join(", ")
+    };
+    let message = if !fits_strategy(a) {
+        format!(
+            "'{}' does not fit the {} strategy of this graph (it takes: {})",
+            a.name,
+            strategy.name(),
+            others(&fits_strategy)
+        )
+    } else if !serves(a) {
+        format!(
+            "'{}' does not serve a {} exposure such as '{}' (for it: {})",
+            a.name,
+            p.kind.words(),
+            p.spec.exposure,
+            others(&|x| fits_strategy(x) && serves(x))
+        )
+    } else if !a.estimands.contains(&p.spec.estimand) {
         let forms: Vec<String> = a.estimands.iter().map(|e| e.to_string()).collect();
-        return Some(Error::option(
-            Setting::Method,
-            format!(
-                "'{}' estimates the {} only; use regression or ipw for the {}",
-                a.name,
-                forms.join(" and "),
-                p.spec.estimand
-            ),
-        ));
-    }
-    None
+        format!(
+            "'{}' estimates the {} only; for the {}: {}",
+            a.name,
+            forms.join(" and "),
+            p.spec.estimand,
+            others(&|x| fits_strategy(x) && serves(x) && x.estimands.contains(&p.spec.estimand))
+        )
+    } else {
+        return None;
+    };
+    Some(Error::option(Setting::Method, message))
 }
 
 /// The default estimators for `p` under `strategy`: every one marked
@@ -201,7 +193,6 @@ pub fn rows(e: &dyn Estimator, p: &Problem, fits: &Fits) -> Result<(Vec<Estimate
             method: e.about().name.into(),
             estimand: p.spec.estimand,
             scale: p.spec.scale,
-            contrast: c.label.clone(),
             estimate: f.estimate,
             std_error: f.std_error,
             ci: f.ci,
@@ -214,6 +205,7 @@ pub fn rows(e: &dyn Estimator, p: &Problem, fits: &Fits) -> Result<(Vec<Estimate
             }),
             notes: t.notes.clone(),
             warnings: t.warnings.clone(),
+            spec: c,
         });
     }
     Ok((out, t))

@@ -1,6 +1,6 @@
 //! The estimate record the JSON `estimates` items are made from.
 
-use super::contrast::ContrastLabel;
+use super::contrast::{ContrastLabel, ContrastSpec};
 use crate::problem::{Estimand, Scale};
 use serde::ser::SerializeMap;
 use serde::{Serialize, Serializer};
@@ -18,6 +18,17 @@ pub struct Means {
     pub unexposed: f64,
     /// The keys, (level, reference), for a contrast of levels or doses.
     pub labels: Option<[String; 2]>,
+}
+
+fn serialize_label<S: Serializer>(spec: &ContrastSpec, s: S) -> std::result::Result<S::Ok, S::Error> {
+    spec.label.serialize(s)
+}
+
+impl Estimate {
+    /// The two levels or doses compared, when the contrast is labelled.
+    pub fn contrast(&self) -> Option<&ContrastLabel> {
+        self.spec.label.as_ref()
+    }
 }
 
 impl Serialize for Means {
@@ -46,9 +57,14 @@ pub struct Estimate {
     pub estimand: Estimand,
     /// The scale.
     pub scale: Scale,
-    /// The two levels or doses compared (categorical or dose contrasts).
-    #[serde(skip_serializing_if = "Option::is_none")]
-    pub contrast: Option<ContrastLabel>,
+    /// The contrast reported; the JSON shows its label as `contrast`
+    /// (the two levels or doses compared), absent when it has none.
+    #[serde(
+        rename = "contrast",
+        skip_serializing_if = "ContrastSpec::unlabelled",
+        serialize_with = "serialize_label"
+    )]
+    pub spec: ContrastSpec,
     /// Point estimate on `scale`.
     pub estimate: f64,
     /// Standard error on `scale` (delta method; for ratio and odds the

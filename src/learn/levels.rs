@@ -4,7 +4,7 @@
 //! and each row's influence on a linear functional of its coefficients.
 
 use super::Nuisance;
-use crate::model::{LogitOptions, Multinomial, linear_predictor};
+use crate::model::{LogitOptions, Multinomial, linear_predictor, weighted_sum};
 use crate::problem::Problem;
 use crate::{Error, Result};
 use nalgebra::{DMatrix, DVector};
@@ -47,6 +47,22 @@ impl Nuisance for LevelPropensity {
 }
 
 impl LevelPropensity {
+    /// `sum_i g_i d p_ik / d gamma`, stacked as the parameters (levels
+    /// 1..K-1), where `d p_ik / d gamma_j = p_ik (1{k = j} - p_ij) x_i`.
+    pub fn gradient(&self, p: &Problem, k: usize, g: &[f64]) -> DVector<f64> {
+        let rows = p.propensity_rows();
+        let q = p.propensity.ncols();
+        let levels = self.prob.len();
+        let mut out = DVector::zeros(q * (levels - 1));
+        for j in 1..levels {
+            let v: Vec<f64> = (0..p.n())
+                .map(|i| g[i] * self.prob[k][i] * (f64::from(u8::from(k == j)) - self.prob[j][i]))
+                .collect();
+            out.rows_mut((j - 1) * q, q).copy_from(&weighted_sum(&rows, &v));
+        }
+        out
+    }
+
     /// Row i's influence on `k' (gamma_hat - gamma)`, with `k` stacked as
     /// the parameters (level by level, levels 1..K-1): `s_i' I^-1 k` where
     /// the score's block for level j is `(1{A_i = j} - p_ij) x_i`.

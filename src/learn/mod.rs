@@ -71,16 +71,22 @@ pub enum ExposureModel {
 
 impl Nuisance for ExposureModel {
     fn fit(p: &Problem, w: Option<&[f64]>, full: Option<&Self>) -> Result<Self> {
-        Ok(match (&p.kind, full) {
-            (ExposureKind::Binary, Some(ExposureModel::Binary(f))) => {
-                ExposureModel::Binary(Propensity::fit(p, w, Some(f))?)
+        Ok(match &p.kind {
+            ExposureKind::Binary => {
+                let start = match full {
+                    Some(ExposureModel::Binary(f)) => Some(f),
+                    _ => None,
+                };
+                ExposureModel::Binary(Propensity::fit(p, w, start)?)
             }
-            (ExposureKind::Binary, _) => ExposureModel::Binary(Propensity::fit(p, w, None)?),
-            (ExposureKind::Levels(_), Some(ExposureModel::Levels(f))) => {
-                ExposureModel::Levels(LevelPropensity::fit(p, w, Some(f))?)
+            ExposureKind::Levels(_) => {
+                let start = match full {
+                    Some(ExposureModel::Levels(f)) => Some(f),
+                    _ => None,
+                };
+                ExposureModel::Levels(LevelPropensity::fit(p, w, start)?)
             }
-            (ExposureKind::Levels(_), _) => ExposureModel::Levels(LevelPropensity::fit(p, w, None)?),
-            (ExposureKind::Dose, _) => ExposureModel::Dose(DoseDensity::fit(p, w, None)?),
+            ExposureKind::Dose => ExposureModel::Dose(DoseDensity::fit(p, w, None)?),
         })
     }
 }

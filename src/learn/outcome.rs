@@ -60,7 +60,7 @@ impl Nuisance for OutcomeFit {
             _ => hits(&aliased(design, &p.frame, w)),
         };
         let binary = p.binary_outcome();
-        let (fit, exposure_aliased) = match (binary, w, full) {
+        let (mut fit, exposure_aliased) = match (binary, w, full) {
             (true, Some(w), Some(full)) => {
                 let r = full.refit(&rows, p.y(), w, opts)?;
                 // The refit factors no new information matrix, so aliasing
@@ -113,7 +113,6 @@ impl Nuisance for OutcomeFit {
                 "the exposure term is aliased in the outcome model".into(),
             ));
         }
-        let mut fit = fit;
         fit.at = p
             .targets()
             .into_iter()

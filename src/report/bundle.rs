@@ -78,7 +78,7 @@ fn curve_plot(a: &Analysis) -> curve_figure::CurvePlot {
     let marks = a
         .estimates
         .iter()
-        .find_map(|e| match &e.estimate.contrast {
+        .find_map(|e| match e.estimate.contrast() {
             Some(crate::estimate::ContrastLabel::Doses { level, reference }) => Some([*reference, *level]),
             _ => None,
         })

@@ -159,7 +159,7 @@ pub fn comparison_table(runs: &[Run], level: f64) -> Table {
                         r.graph.clone(),
                         strategy.into(),
                         set_text(&set),
-                        match &e.contrast {
+                        match e.contrast() {
                             Some(c) => format!("{} ({})", e.method, c.words()),
                             None => e.method.clone(),
                         },

@@ -125,7 +125,7 @@ fn strategy_cells(a: &Analysis) -> [Cell; 2] {
 /// after `scale`, `contrast_level` and `contrast_reference`, name the two
 /// values compared, and each row's E-value is its own contrast's.
 pub fn estimates(graph: &str, a: &Analysis) -> DataTable {
-    let contrasts = a.estimates.iter().any(|e| e.estimate.contrast.is_some());
+    let contrasts = a.estimates.iter().any(|e| e.estimate.contrast().is_some());
     let mut columns = ESTIMATE_COLUMNS.to_vec();
     if contrasts {
         columns.splice(8..8, ["contrast_level", "contrast_reference"]);
@@ -138,7 +138,7 @@ pub fn estimates(graph: &str, a: &Analysis) -> DataTable {
             .sensitivity
             .by_contrast
             .iter()
-            .find(|c| Some(&c.contrast) == e.contrast.as_ref() && c.method == e.method)
+            .find(|c| Some(&c.contrast) == e.contrast() && c.method == e.method)
             .and_then(|c| c.evalue.as_ref());
         let ev = own.or_else(|| {
             a.sensitivity
@@ -179,8 +179,7 @@ pub fn estimates(graph: &str, a: &Analysis) -> DataTable {
         ];
         if contrasts {
             let [l, r] = e
-                .contrast
-                .as_ref()
+                .contrast()
                 .map_or([String::new(), String::new()], |c| c.values());
             row.splice(8..8, [text(l), text(r)]);
         }

@@ -131,7 +131,7 @@ pub fn estimates_table(a: &Analysis) -> Table {
     let boot = a.estimates.iter().find_map(|e| e.bootstrap.as_ref());
     let analytic_head = format!("{pct} interval (analytic)");
     let boot_head = boot.map(|b| format!("{pct} interval (bootstrap {})", bootstrap_label(&b.interval)));
-    let contrasts = a.estimates.iter().any(|e| e.estimate.contrast.is_some());
+    let contrasts = a.estimates.iter().any(|e| e.estimate.contrast().is_some());
     let mut heads = vec!["method"];
     if contrasts {
         heads.push("contrast");
@@ -155,7 +155,7 @@ pub fn estimates_table(a: &Analysis) -> Table {
         let sh = |v: f64| num(shown(a, e.scale, v));
         let mut row = vec![method_label(&e.method).into()];
         if contrasts {
-            row.push(e.contrast.as_ref().map_or("-".into(), |c| c.words()));
+            row.push(e.contrast().map_or("-".into(), |c| c.words()));
         }
         row.extend([
             e.estimand.to_string(),
