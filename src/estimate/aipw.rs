@@ -185,16 +185,7 @@ fn propensity_influence(
             // q_1 = e, q_0 = 1 - e; de/d gamma = e (1 - e) x (0 when clipped).
             let ps = fits.propensity()?;
             let sign = if k == 1 { 1.0 } else { -1.0 };
-            let g: Vec<f64> = (0..n)
-                .map(|i| {
-                    let de = if ps.clipped(i) {
-                        0.0
-                    } else {
-                        ps.e[i] * (1.0 - ps.e[i])
-                    };
-                    sign * dq[i] * de
-                })
-                .collect();
+            let g: Vec<f64> = (0..n).map(|i| sign * dq[i] * ps.slope(i)).collect();
             ps.influence(p, &weighted_sum(rows, &g))
         }
         _ => {

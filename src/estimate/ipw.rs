@@ -197,13 +197,8 @@ impl Ipw {
             // Derivative of the estimating function in the coefficients.
             let k_rows: Vec<f64> = (0..n)
                 .map(|i| {
-                    let de = if ps.clipped(i) {
-                        0.0
-                    } else {
-                        ps.e[i] * (1.0 - ps.e[i])
-                    };
                     let r = if ht { y[i] } else { y[i] - mu };
-                    h(i).1 * de * r
+                    h(i).1 * ps.slope(i) * r
                 })
                 .collect();
             let k = weighted_sum(&p.propensity_rows(), &k_rows);

@@ -82,6 +82,16 @@ impl Propensity {
         self.raw.as_ref().map_or(self.e[i], |r| r[i])
     }
 
+    /// d e_i / d (linear predictor): e (1 - e), or 0 where the score was
+    /// clipped.
+    pub fn slope(&self, i: usize) -> f64 {
+        if self.clipped(i) {
+            0.0
+        } else {
+            self.e[i] * (1.0 - self.e[i])
+        }
+    }
+
     /// Was row i's score clipped (its derivative in the coefficients is 0)?
     pub fn clipped(&self, i: usize) -> bool {
         self.raw.as_ref().is_some_and(|r| r[i] != self.e[i])
