@@ -193,7 +193,9 @@ pub fn diagnostics(p: &Problem, ps: &Propensity) -> Diagnostics {
         max_share_control: share(&h0),
         stabilized,
     };
-    let balance = balance(p, &h1, &h0);
+    let r1: Vec<f64> = a.to_vec();
+    let r0: Vec<f64> = a.iter().map(|x| 1.0 - x).collect();
+    let balance = balance(&term_columns(p), (&r1, &r0), (&h1, &h0));
     let mut warnings = Vec::new();
     if propensity.treated_outside_control_range + propensity.control_outside_treated_range > 0 {
         warnings.push(format!(
@@ -240,24 +242,33 @@ fn poorly_balanced(balance: &[Balance]) -> Option<String> {
     (!poor.is_empty()).then(|| poor.join(", "))
 }
 
-fn balance(p: &Problem, h1: &[f64], h0: &[f64]) -> Vec<Balance> {
-    let a = p.a();
-    let r1: Vec<f64> = a.to_vec();
-    let r0: Vec<f64> = a.iter().map(|x| 1.0 - x).collect();
+/// Every adjustment term's name and column.
+fn term_columns(p: &Problem) -> Vec<(String, Vec<f64>)> {
     let rows = p.propensity_rows();
-    let mut out = Vec::new();
-    for (j, t) in p.propensity.terms().iter().enumerate() {
-        if t.is_intercept() {
-            continue;
-        }
-        let col = rows.column(j);
-        out.push(Balance {
-            covariate: t.name.clone(),
-            smd_raw: smd(&col, &r1, &r0),
-            smd_weighted: smd(&col, h1, h0),
-        });
-    }
-    out
+    p.propensity
+        .terms()
+        .iter()
+        .enumerate()
+        .filter(|(_, t)| !t.is_intercept())
+        .map(|(j, t)| (t.name.clone(), rows.column(j)))
+        .collect()
+}
+
+/// Each term's standardized difference between two groups, given by
+/// their row indicators (`raw`) and by their weights (`weighted`).
+fn balance(
+    columns: &[(String, Vec<f64>)],
+    raw: (&[f64], &[f64]),
+    weighted: (&[f64], &[f64]),
+) -> Vec<Balance> {
+    columns
+        .iter()
+        .map(|(name, col)| Balance {
+            covariate: name.clone(),
+            smd_raw: smd(col, raw.0, raw.1),
+            smd_weighted: smd(col, weighted.0, weighted.1),
+        })
+        .collect()
 }
 
 /// The diagnostics of one level of a categorical exposure.
@@ -293,15 +304,7 @@ pub fn level_diagnostics(p: &Problem, lp: &LevelPropensity) -> (Vec<LevelDiagnos
             .collect()
     };
     let reference = weight(0);
-    let rows = p.propensity_rows();
-    let columns: Vec<(String, Vec<f64>)> = p
-        .propensity
-        .terms()
-        .iter()
-        .enumerate()
-        .filter(|(_, t)| !t.is_intercept())
-        .map(|(j, t)| (t.name.clone(), rows.column(j)))
-        .collect();
+    let columns = term_columns(p);
     let ref_raw: Vec<f64> = (0..n).map(|i| f64::from(u8::from(at(i, 0)))).collect();
     let mut out = Vec::new();
     let mut warnings = Vec::new();
@@ -319,14 +322,7 @@ pub fn level_diagnostics(p: &Problem, lp: &LevelPropensity) -> (Vec<LevelDiagnos
         let balance = if k == 0 {
             Vec::new()
         } else {
-            columns
-                .iter()
-                .map(|(name, col)| Balance {
-                    covariate: name.clone(),
-                    smd_raw: smd(col, &raw, &ref_raw),
-                    smd_weighted: smd(col, &h, &reference),
-                })
-                .collect()
+            balance(&columns, (&raw, &ref_raw), (&h, &reference))
         };
         let near = (0..n).filter(|&i| at(i, k) && lp.prob[k][i] < 0.01).count();
         if near > 0 {
