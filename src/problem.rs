@@ -107,6 +107,11 @@ pub struct Spec {
 /// Doses on the default dose-response grid (common practice, no source).
 pub const CURVE_POINTS: usize = 9;
 
+/// Most doses a curve may be asked for: each keeps a per-row influence
+/// function (and, in a bootstrap, a column of replicates), so the count
+/// bounds memory at this many times the rows.
+pub const MAX_CURVE_POINTS: usize = 100;
+
 impl Default for Spec {
     fn default() -> Self {
         Spec {
@@ -728,6 +733,17 @@ fn check_kinds(frame: &Frame, spec: &Spec, outcome: usize, exposure: usize) -> R
         && (at.is_empty() || at.iter().any(|x| !x.is_finite()))
     {
         return Err(Error::option(Opt::At, "needs one or more finite doses"));
+    }
+    if let Some(at) = &spec.at
+        && at.len() > MAX_CURVE_POINTS
+    {
+        return Err(Error::option(
+            Opt::At,
+            format!(
+                "{} doses: at most {MAX_CURVE_POINTS} (each keeps a value per row)",
+                at.len()
+            ),
+        ));
     }
     Ok(())
 }

@@ -573,3 +573,31 @@ fn dose_response_intervals_cover() {
         }
     }
 }
+
+// The number of doses asked for is bounded before anything is fitted (each
+// keeps a value per row): exit 2 naming the option and the limit.
+#[test]
+fn too_many_doses_are_refused() {
+    let dir = tempfile::tempdir().unwrap();
+    let at: Vec<String> = (0..=causeway::problem::MAX_CURVE_POINTS)
+        .map(|k| k.to_string())
+        .collect();
+    let at = at.join(",");
+    let mut args = demo("estimate");
+    args.extend(
+        [
+            "--exposure",
+            "bmi",
+            "--outcome",
+            "pain_days",
+            "--quiet",
+            "--at",
+            &at,
+        ]
+        .map(String::from),
+    );
+    let args: Vec<&str> = args.iter().map(String::as_str).collect();
+    let r = crate::helpers::run_in(dir.path(), &args);
+    assert_eq!(r.code, 2, "{}", r.stderr);
+    assert!(r.stderr.contains("--at 101 doses: at most 100"), "{}", r.stderr);
+}

@@ -6,7 +6,7 @@
 
 use super::Nuisance;
 use crate::data::Setting;
-use crate::estimate::Target;
+use crate::estimate::{ExposureKind, Target};
 use crate::maths::expit_std as expit;
 use crate::model::{Chol, Logit, LogitOptions, Ols, Separation, linear_predictor, weighted_sum};
 use crate::problem::{Problem, aliased};
@@ -28,8 +28,8 @@ pub struct OutcomeFit {
     eta: Vec<f64>,
     /// A full-sample logistic fit, to start resamples from.
     logit: Option<Logit>,
-    /// Every row's mean outcome under each of the problem's targets, made
-    /// with the fit (every estimator that reads the model needs them).
+    /// Every row's mean outcome under each exposure level, made with the
+    /// fit (regression and AIPW both read them); empty for a dose.
     at: Vec<(Target, Vec<f64>)>,
 }
 
@@ -113,11 +113,15 @@ impl Nuisance for OutcomeFit {
                 "the exposure term is aliased in the outcome model".into(),
             ));
         }
-        fit.at = p
-            .targets()
-            .into_iter()
-            .map(|t| (t, fit.predict(p, t.setting())))
-            .collect();
+        // Kept for exposure levels, which regression and AIPW both read; a
+        // dose's curve points are predicted when asked.
+        if p.kind != ExposureKind::Dose {
+            fit.at = p
+                .targets()
+                .into_iter()
+                .map(|t| (t, fit.predict(p, t.setting())))
+                .collect();
+        }
         Ok(fit)
     }
 }
