@@ -11,7 +11,7 @@
 //!   2004;23:2937-2960).
 //! - Categorical exposure: the same with weights 1 / P(A = k | L) from a
 //!   multinomial propensity model, one mean per level (the generalized
-//!   propensity score; Imbens, Biometrika 2000;87:706-710), the sandwich
+//!   propensity score; Imbens, Biometrika 2000;87:706-710, from memory), the sandwich
 //!   stacking the multinomial score equations likewise.
 //! - Continuous exposure: a marginal structural model (Robins, Hernán &
 //!   Brumback, Epidemiology 2000;11:550-560; *What If*, section 12.4): the
