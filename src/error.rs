@@ -119,6 +119,12 @@ pub enum Setting {
     DefaultCoef,
     /// Reading an odds or hazard ratio of a common outcome.
     CommonOutcome,
+    /// The number of worker threads.
+    Threads,
+    /// The number of rows to simulate.
+    Rows,
+    /// The number of Monte Carlo draws.
+    Draws,
 }
 
 impl Setting {
@@ -156,6 +162,9 @@ impl Setting {
             Setting::Delimiter => "the column separator",
             Setting::DefaultCoef => "the default edge coefficient",
             Setting::CommonOutcome => "the common-outcome conversion",
+            Setting::Threads => "the number of worker threads",
+            Setting::Rows => "the number of rows to simulate",
+            Setting::Draws => "the number of Monte Carlo draws",
         }
     }
 }

@@ -31,6 +31,7 @@ pub mod problem;
 pub mod progress;
 pub mod random;
 pub mod report;
+pub mod resources;
 pub mod sensitivity;
 pub mod simulate;
 

@@ -3,6 +3,7 @@
 
 use causeway::graph::{self, Graph};
 use causeway::{Error, Result};
+use std::io::Write;
 use std::path::Path;
 
 /// Reads and parses a graph file, printing its warnings to stderr.
@@ -18,6 +19,17 @@ pub fn load_graph(path: &Path, quiet: bool) -> Result<Graph> {
 }
 
 pub use causeway::plan::{node as resolve, split_list};
+
+/// The worker threads to use for `asked` (`--threads`): more than the
+/// machine allows are cut, with a warning on stderr unless `quiet`.
+pub fn threads(asked: usize, quiet: bool) -> usize {
+    let machine = causeway::resources::Machine::now();
+    if let (Some(cap), false) = (machine.thread_cap(asked), quiet) {
+        eprintln!("causeway: warning: {}", cap.text(&super::Flags));
+    }
+    // 0 keeps its meaning (one per core) for the library to apply.
+    if asked == 0 { 0 } else { machine.threads(asked) }
+}
 
 /// The `--delimiter` flag's values.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, clap::ValueEnum)]
@@ -46,16 +58,22 @@ pub fn print_stdout(text: &str) -> Result<()> {
     print_bytes(text.as_bytes())
 }
 
-/// The one place that writes standard output. A reader that has gone away
-/// (`causeway ... | head -1`) is not an error: the rest of the output is
-/// dropped quietly and the command ends with its usual exit code.
+/// Writes `bytes` to standard output: see [`print_with`].
 pub fn print_bytes(bytes: &[u8]) -> Result<()> {
-    use std::io::Write;
-    let mut out = std::io::stdout().lock();
-    match out.write_all(bytes).and_then(|()| out.flush()) {
-        Ok(()) => Ok(()),
-        Err(e) if e.kind() == std::io::ErrorKind::BrokenPipe => Ok(()),
-        Err(e) => Err(Error::io("standard output", e)),
+    print_with(|w| w.write_all(bytes).map_err(|e| Error::io("standard output", e)))
+}
+
+/// The one place that writes standard output: `fill` writes to it
+/// (buffered), reporting write failures as [`Error::Io`]. A reader that has
+/// gone away (`causeway ... | head -1`) is not an error: the rest of the
+/// output is dropped quietly and the command ends with its usual exit code.
+pub fn print_with(fill: impl FnOnce(&mut dyn Write) -> Result<()>) -> Result<()> {
+    let mut out = std::io::BufWriter::new(std::io::stdout().lock());
+    let written = fill(&mut out).and_then(|()| out.flush().map_err(|e| Error::io("standard output", e)));
+    match written {
+        Err(Error::Io { source, .. }) if source.kind() == std::io::ErrorKind::BrokenPipe => Ok(()),
+        Err(Error::Io { source, .. }) => Err(Error::io("standard output", source)),
+        other => other,
     }
 }
 
@@ -72,13 +90,37 @@ pub fn to_json<T: serde::Serialize>(value: &T) -> Result<String> {
 /// Writes `text` to `path` through a temporary file in the same folder,
 /// renamed into place; refuses to write over any of `inputs`.
 pub fn write_atomic(path: &Path, text: &[u8], inputs: &[&Path]) -> Result<()> {
+    write_atomic_with(path, inputs, |w| {
+        w.write_all(text).map_err(|e| Error::io(path, e))
+    })
+}
+
+/// Writes `path` through a temporary file in the same folder that `fill`
+/// writes to, renamed into place once `fill` succeeds; refuses to write
+/// over any of `inputs`. When `fill` fails, or the process is interrupted
+/// (Ctrl-C, or a termination request), the temporary file is removed and
+/// `path` is left as it was.
+pub fn write_atomic_with(
+    path: &Path,
+    inputs: &[&Path],
+    fill: impl FnOnce(&mut dyn Write) -> Result<()>,
+) -> Result<()> {
     refuse_inputs(path, inputs)?;
     let dir = match path.parent() {
         Some(d) if !d.as_os_str().is_empty() => d,
         _ => Path::new("."),
     };
     let mut tmp = tempfile::NamedTempFile::new_in(dir).map_err(|e| Error::io(dir, e))?;
-    std::io::Write::write_all(&mut tmp, text).map_err(|e| Error::io(path, e))?;
+    let guard = interrupt::Removal::new(tmp.path());
+    let filled = fill(&mut tmp);
+    let filled = filled.and_then(|()| tmp.as_file_mut().flush().map_err(|e| Error::io(path, e)));
+    if let Err(e) = filled {
+        drop(guard);
+        return Err(match e {
+            Error::Io { source, .. } => Error::io(path, source),
+            other => other,
+        });
+    }
     // A temporary file is private (0600); give the output the usual mode.
     #[cfg(unix)]
     {
@@ -90,8 +132,78 @@ pub fn write_atomic(path: &Path, text: &[u8], inputs: &[&Path]) -> Result<()> {
             .as_file()
             .set_permissions(std::fs::Permissions::from_mode(mode & 0o777));
     }
-    tmp.persist(path).map_err(|e| Error::io(path, e.error))?;
-    Ok(())
+    let persisted = tmp.persist(path).map_err(|e| Error::io(path, e.error));
+    drop(guard);
+    persisted.map(|_| ())
+}
+
+/// Removal of a temporary file when the process is interrupted while it is
+/// being written: the signal handler removes the registered file (`unlink`
+/// is safe in a handler) and ends the process with 130, the shell's code for
+/// an interrupted command.
+mod interrupt {
+    use std::ffi::{CString, c_char};
+    use std::path::Path;
+    use std::sync::Once;
+    use std::sync::atomic::{AtomicPtr, Ordering};
+
+    /// The temporary file being written, or null.
+    static TEMP: AtomicPtr<c_char> = AtomicPtr::new(std::ptr::null_mut());
+    static INSTALL: Once = Once::new();
+
+    extern "C" fn on_signal(_: libc::c_int) {
+        let p = TEMP.swap(std::ptr::null_mut(), Ordering::SeqCst);
+        // SAFETY: `p` is null or a NUL-terminated path leaked by `Removal::new`;
+        // unlink and _exit are async-signal-safe.
+        unsafe {
+            if !p.is_null() {
+                libc::unlink(p);
+            }
+            libc::_exit(130);
+        }
+    }
+
+    /// While alive, an interruption removes the file at its path.
+    pub struct Removal(*mut c_char);
+
+    impl Removal {
+        pub fn new(path: &Path) -> Removal {
+            #[cfg(unix)]
+            INSTALL.call_once(|| {
+                let handler = on_signal as extern "C" fn(libc::c_int);
+                // SAFETY: installs a handler that only calls async-signal-safe functions.
+                unsafe {
+                    libc::signal(libc::SIGINT, handler as libc::sighandler_t);
+                    libc::signal(libc::SIGTERM, handler as libc::sighandler_t);
+                }
+            });
+            use std::os::unix::ffi::OsStrExt;
+            let raw =
+                CString::new(path.as_os_str().as_bytes()).map_or(std::ptr::null_mut(), CString::into_raw);
+            let old = TEMP.swap(raw, Ordering::SeqCst);
+            free(old);
+            Removal(raw)
+        }
+    }
+
+    impl Drop for Removal {
+        fn drop(&mut self) {
+            // Unregister only our own file, then free its path.
+            if TEMP
+                .compare_exchange(self.0, std::ptr::null_mut(), Ordering::SeqCst, Ordering::SeqCst)
+                .is_ok()
+            {
+                free(self.0);
+            }
+        }
+    }
+
+    fn free(p: *mut c_char) {
+        if !p.is_null() {
+            // SAFETY: `p` came from `CString::into_raw` and is freed once.
+            drop(unsafe { CString::from_raw(p) });
+        }
+    }
 }
 
 /// The refusal to write `path` when it is one of `inputs`.

@@ -106,7 +106,8 @@ pub struct EstimateFlags {
     /// Seed of the bootstrap's random streams.
     #[arg(long, allow_negative_numbers = true, default_value_t = 1, value_name = "N")]
     pub seed: u64,
-    /// Worker threads for the bootstrap (0: all cores). Results do not depend on it.
+    /// Worker threads for the bootstrap (0: all cores; at most 4 per core
+    /// are used). Results do not depend on it.
     #[arg(long, allow_negative_numbers = true, default_value_t = 0, value_name = "N")]
     pub threads: usize,
     /// Also test the graph's implications against the data and report how
@@ -260,6 +261,7 @@ impl EstimateFlags {
                 }
             },
         };
+        let threads = super::common::threads(self.threads, self.quiet);
         let methods = self.method.as_ref().map(|m| split_list(m));
         if let Some(ms) = &methods {
             if ms.is_empty() {
@@ -288,7 +290,7 @@ impl EstimateFlags {
             bootstrap: self.bootstrap,
             interval: self.interval.into(),
             seed: self.seed,
-            threads: self.threads,
+            threads,
             progress: super::bar::reporter(self.quiet),
             benchmarks: self.benchmarks()?,
             check: self.check.then(|| CheckOptions {

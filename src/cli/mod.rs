@@ -146,6 +146,9 @@ pub fn flag(setting: Setting) -> &'static str {
         Setting::Delimiter => "--delimiter",
         Setting::DefaultCoef => "--default-coef",
         Setting::CommonOutcome => "--common-outcome",
+        Setting::Threads => "--threads",
+        Setting::Rows => "--rows",
+        Setting::Draws => "--mc-draws",
     }
 }
 
@@ -156,7 +159,7 @@ mod tests {
     use clap::CommandFactory;
 
     /// Every setting, so that each is checked against the flags below.
-    const SETTINGS: [Setting; 31] = [
+    const SETTINGS: [Setting; 34] = [
         Setting::Method,
         Setting::Estimand,
         Setting::Scale,
@@ -188,6 +191,9 @@ mod tests {
         Setting::At,
         Setting::Contrast,
         Setting::Shape,
+        Setting::Threads,
+        Setting::Rows,
+        Setting::Draws,
     ];
 
     #[test]

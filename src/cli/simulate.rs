@@ -1,9 +1,14 @@
 //! `causeway simulate`: data drawn from the structural model written in a
 //! graph file, and the true effect of an exposure on an outcome.
 
-use super::common::{load_graph, print_bytes, refuse_inputs, resolve, split_list, write_atomic};
+use super::bar;
+use super::common::{
+    load_graph, print_with, refuse_inputs, resolve, split_list, write_atomic, write_atomic_with,
+};
 use causeway::error::Setting;
-use causeway::simulate::{self, Contrast, Method, Model, Options, Truth, TruthOptions};
+use causeway::progress::Reporter;
+use causeway::resources::{Demand, check_disk};
+use causeway::simulate::{Contrast, Method, Model, Options, ROW_BLOCK, Truth, TruthOptions};
 use causeway::{Error, Result};
 use std::path::PathBuf;
 
@@ -39,9 +44,10 @@ pub struct Args {
     /// The graph file, with edge coefficients and node attributes.
     #[arg(long, value_name = "FILE")]
     graph: PathBuf,
-    /// Number of rows to draw.
+    /// Number of rows to draw. They are written as they are drawn, so any
+    /// number fits in memory; with --output, the rows must fit on the disk.
     #[arg(long, value_name = "N")]
-    rows: usize,
+    rows: u64,
     /// Seed of the random number generator.
     #[arg(long, value_name = "N")]
     seed: u64,
@@ -123,20 +129,36 @@ pub fn run(a: Args) -> Result<i32> {
             );
         }
     }
-    let data = model.simulate(a.rows, a.seed)?;
+    // A first block drawn ahead finds an overflow before anything is
+    // written, and measures the bytes of a row for the disk-space check.
+    let first = a.rows.min(ROW_BLOCK as u64);
+    let sample = csv_bytes(&model, first, a.seed)?;
+    if let Some(path) = &a.output {
+        let header = csv_bytes(&model, 0, a.seed)?;
+        check_disk(
+            &Demand {
+                setting: Setting::Rows,
+                count: a.rows,
+                unit: "rows",
+                per_unit: (sample - header).div_ceil(first),
+                fixed: header,
+                least: 1,
+            },
+            path,
+        )?;
+    }
     let truth = match roles {
-        Some((x, y)) => Some(model.true_effect(
+        Some((x, y)) => Some(model.true_effect_reported(
             x,
             y,
             &TruthOptions {
                 mc_draws: a.mc_draws,
                 seed: a.seed,
             },
+            &bar::reporter(a.quiet),
         )?),
         None => None,
     };
-    let mut csv = Vec::new();
-    simulate::write_csv(&data, &mut csv).map_err(|e| Error::io("CSV output", e))?;
     if let (Some(path), Some(t)) = (&a.truth, &truth) {
         let mut json = serde_json::to_string_pretty(t)
             .map_err(|e| Error::Numerical(format!("could not write the truth as JSON: {e}")))?;
@@ -147,20 +169,45 @@ pub fn run(a: Args) -> Result<i32> {
         }
         write_atomic(path, json.as_bytes(), &inputs)?;
     }
+    let progress = bar::reporter(a.quiet);
     match &a.output {
         Some(path) => {
             let mut inputs = vec![a.graph.as_path()];
             if let Some(t) = &a.truth {
                 inputs.push(t.as_path());
             }
-            write_atomic(path, &csv, &inputs)?
+            let name = path.display().to_string();
+            write_atomic_with(path, &inputs, |w| {
+                model.write_rows(a.rows, a.seed, w, &name, &progress)
+            })?
         }
-        None => print_bytes(&csv)?,
+        None => print_with(|w| model.write_rows(a.rows, a.seed, w, "standard output", &progress))?,
     }
     if let (Some(t), false) = (&truth, a.quiet) {
         eprint!("{}", describe(t));
     }
     Ok(0)
+}
+
+/// The bytes of the CSV of the first `rows` rows (the header alone for 0).
+fn csv_bytes(model: &Model, rows: u64, seed: u64) -> Result<u64> {
+    let mut count = Count(0);
+    model.write_rows(rows, seed, &mut count, "CSV", &Reporter::none())?;
+    Ok(count.0)
+}
+
+/// A writer that only counts bytes.
+struct Count(u64);
+
+impl std::io::Write for Count {
+    fn write(&mut self, buf: &[u8]) -> std::io::Result<usize> {
+        self.0 += buf.len() as u64;
+        Ok(buf.len())
+    }
+
+    fn flush(&mut self) -> std::io::Result<()> {
+        Ok(())
+    }
 }
 
 /// Compact number for people (JSON keeps full precision).

@@ -41,6 +41,7 @@
 use crate::dist::{normal_cdf, normal_critical, normal_quantile};
 use crate::progress::Reporter;
 use crate::random::stream_rng;
+use crate::resources::{Demand, Machine, size};
 use crate::{Error, Result, Setting};
 use rand_chacha::ChaCha8Rng;
 use rand_chacha::rand_core::Rng;
@@ -63,7 +64,8 @@ pub struct BootOpts {
     pub replicates: usize,
     /// Seed of the random streams.
     pub seed: u64,
-    /// Worker threads; 0 uses all cores.
+    /// Worker threads; 0 uses all cores; at most
+    /// [`crate::resources::THREADS_PER_CORE`] per core are used.
     pub threads: usize,
     /// Confidence level of the intervals, in (0, 1).
     pub level: f64,
@@ -272,6 +274,28 @@ fn jackknife_groups(n: usize, seed: u64) -> (usize, Option<Vec<usize>>) {
     (g, Some(group))
 }
 
+/// The memory a run of `replicates` replicates of `m` statistics over `n`
+/// rows needs on `threads` threads: per replicate, its result as returned
+/// and as stored (with the allocator's overhead); per thread, the
+/// resample's weights and the statistic's working vectors (taken as four
+/// more of the same length); and the jackknife's results.
+fn memory_demand(n: usize, m: usize, replicates: usize, threads: usize) -> Demand {
+    let m = m as u64;
+    let per_unit = size::<Result<Vec<f64>>>() + 16 + 2 * 8 * m;
+    let per_thread = 5 * 8 * n as u64;
+    let jackknife = (n.min(JACKKNIFE_MAX_GROUPS) as u64) * per_unit + 16 * n as u64;
+    Demand {
+        setting: Setting::Bootstrap,
+        count: replicates as u64,
+        unit: "replicates",
+        per_unit,
+        fixed: (threads as u64)
+            .saturating_mul(per_thread)
+            .saturating_add(jackknife),
+        least: 2,
+    }
+}
+
 fn check_opts(n: usize, opts: &BootOpts) -> Result<()> {
     if n < 2 {
         return Err(Error::input(format!(
@@ -319,8 +343,11 @@ where
             estimate[j]
         )));
     }
+    let machine = Machine::now();
+    let threads = machine.threads(opts.threads);
+    machine.check(&memory_demand(n, m, opts.replicates, threads))?;
     let pool = rayon::ThreadPoolBuilder::new()
-        .num_threads(opts.threads)
+        .num_threads(threads)
         .build()
         .map_err(|e| Error::Numerical(format!("could not start worker threads: {e}")))?;
     let progress = &opts.progress;
@@ -669,5 +696,44 @@ mod tests {
         assert!(run(3, &o, f).is_err());
         assert!(run(1, &BootOpts::default(), f).is_err());
         assert_eq!(IntervalKind::Bca.ci_method(), "bootstrap-bca");
+    }
+
+    /// A replicate count whose results cannot be held is refused, naming
+    /// the setting, before anything is allocated or any statistic is
+    /// computed on a replicate; the count of replicates that fit is given.
+    #[test]
+    fn replicates_beyond_memory_are_refused_before_running() {
+        let calls = std::sync::atomic::AtomicUsize::new(0);
+        let f = |w: &[f64]| {
+            calls.fetch_add(1, std::sync::atomic::Ordering::SeqCst);
+            Ok(vec![w.iter().sum::<f64>(); 3])
+        };
+        for replicates in [usize::MAX, 1 << 50] {
+            let o = BootOpts {
+                replicates,
+                threads: 1_000_000,
+                ..BootOpts::default()
+            };
+            let e = run(50, &o, f).unwrap_err();
+            assert!(
+                matches!(
+                    e,
+                    Error::Option {
+                        setting: Setting::Bootstrap,
+                        ..
+                    }
+                ),
+                "{e}"
+            );
+            let text = e.to_string();
+            assert!(
+                text.contains(&replicates.to_string()) && text.contains("fit"),
+                "{text}"
+            );
+        }
+        // Only the full-data evaluation ran.
+        assert_eq!(calls.load(std::sync::atomic::Ordering::SeqCst), 2);
+        let d = memory_demand(1000, 4, 100, 8);
+        assert_eq!(d.fixed, 8 * 5 * 8 * 1000 + 500 * d.per_unit + 16 * 1000);
     }
 }

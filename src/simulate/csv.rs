@@ -16,24 +16,56 @@ pub fn format_number(x: f64) -> String {
     if x == 0.0 { "0".to_string() } else { format!("{x}") }
 }
 
+/// The I/O error behind a CSV writer's error, keeping its kind (a closed
+/// pipe stays one).
+fn io_error(e: ::csv::Error) -> std::io::Error {
+    match e.into_kind() {
+        ::csv::ErrorKind::Io(e) => e,
+        other => std::io::Error::other(format!("{other:?}")),
+    }
+}
+
+/// A CSV writer of simulated rows: the header, then one record at a time.
+pub(super) struct Rows<W: Write> {
+    out: ::csv::Writer<W>,
+    record: Vec<String>,
+}
+
+impl<W: Write> Rows<W> {
+    /// Writes the header of `names`.
+    pub(super) fn new<'a>(w: W, names: impl Iterator<Item = &'a str>) -> std::io::Result<Self> {
+        let mut out = ::csv::WriterBuilder::new()
+            .terminator(::csv::Terminator::Any(b'\n'))
+            .from_writer(w);
+        out.write_record(names).map_err(io_error)?;
+        Ok(Rows {
+            out,
+            record: Vec::new(),
+        })
+    }
+
+    /// Writes one record.
+    pub(super) fn write(&mut self, fields: impl Iterator<Item = String>) -> std::io::Result<()> {
+        self.record.clear();
+        self.record.extend(fields);
+        self.out.write_record(&self.record).map_err(io_error)
+    }
+
+    /// Flushes what is buffered.
+    pub(super) fn finish(mut self) -> std::io::Result<()> {
+        self.out.flush()
+    }
+}
+
 /// Writes the observed columns of `data` as CSV.
 pub fn write_csv<W: Write>(data: &SimData, w: W) -> std::io::Result<()> {
-    let mut out = ::csv::WriterBuilder::new()
-        .terminator(::csv::Terminator::Any(b'\n'))
-        .from_writer(w);
     let cols: Vec<&Column> = data.observed.iter().map(|&v| &data.columns[v]).collect();
-    out.write_record(data.observed.iter().map(|&v| data.names[v].as_str()))?;
-    let mut record: Vec<String> = Vec::with_capacity(cols.len());
+    let mut out = Rows::new(w, data.observed.iter().map(|&v| data.names[v].as_str()))?;
     for i in 0..data.rows() {
-        record.clear();
-        for c in &cols {
-            record.push(match c {
-                Column::Numeric(v) => format_number(v[i]),
-                Column::Categorical { levels, codes } => levels[codes[i]].clone(),
-            });
-        }
-        out.write_record(&record)?;
+        out.write(cols.iter().map(|c| match c {
+            Column::Numeric(v) => format_number(v[i]),
+            Column::Categorical { levels, codes } => levels[codes[i]].clone(),
+        }))?;
     }
-    out.flush()?;
-    Ok(())
+    out.finish()
 }

@@ -38,8 +38,13 @@ pub use csv::{format_number, write_csv};
 pub use truth::{CHUNK, Contrast, MAX_PATHS, Method, PathTerm, Truth, TruthOptions, true_effect};
 
 use crate::graph::{Coef, Graph, Node};
+use crate::progress::Reporter;
+use crate::resources::{Demand, Machine};
 use crate::{Advice, Error, Remedy, Result, Setting};
 use rng::Stream;
+
+/// Rows drawn, checked and written at a time by [`Model::write_rows`].
+pub const ROW_BLOCK: usize = 4096;
 
 /// Choices that the graph file does not make.
 #[derive(Debug, Clone, Default)]
@@ -498,41 +503,112 @@ impl Model {
         }
     }
 
-    /// Draws `rows` rows from stream 0 of the generator keyed by `seed`.
-    pub fn simulate(&self, rows: usize, seed: u64) -> Result<SimData> {
+    /// Draws `rows` rows from stream 0 of the generator keyed by `seed`, in
+    /// blocks of [`ROW_BLOCK`] rows: each block, every node's values row by
+    /// row, goes to `sink` with its number of rows once all its values are
+    /// finite.
+    fn draw_blocks(
+        &self,
+        rows: u64,
+        seed: u64,
+        mut sink: impl FnMut(&[f64], usize) -> Result<()>,
+    ) -> Result<()> {
         let n = self.graph.len();
         let mut s = Stream::new(seed, 0);
         let mut noise = vec![0.0; n];
-        let mut vals = vec![0.0; n];
-        let mut cols: Vec<Vec<f64>> = vec![Vec::with_capacity(rows); n];
-        for _ in 0..rows {
-            self.draw_noise(&mut s, &mut noise);
-            self.evaluate(&noise, None, &mut vals);
-            for (c, &x) in cols.iter_mut().zip(&vals) {
-                c.push(x);
+        let mut block = Vec::with_capacity(ROW_BLOCK.saturating_mul(n));
+        let mut left = rows;
+        while left > 0 {
+            let k = left.min(ROW_BLOCK as u64) as usize;
+            block.clear();
+            for _ in 0..k {
+                self.draw_noise(&mut s, &mut noise);
+                let start = block.len();
+                block.resize(start + n, 0.0);
+                self.evaluate(&noise, None, &mut block[start..]);
             }
-        }
-        let mut columns = Vec::with_capacity(n);
-        for (v, col) in cols.into_iter().enumerate() {
-            if col.iter().any(|x| !x.is_finite()) {
+            if let Some(i) = block.iter().position(|x| !x.is_finite()) {
                 return Err(Error::Numerical(format!(
                     "simulated values of '{}' overflowed (coefficients too large?)",
-                    self.graph.name(v)
+                    self.graph.name(i % n)
                 )));
             }
-            columns.push(match &self.eqs[v].kind {
+            sink(&block, k)?;
+            left -= k as u64;
+        }
+        Ok(())
+    }
+
+    /// Draws `rows` rows from stream 0 of the generator keyed by `seed`,
+    /// held in memory: refused (naming the setting) when they would not fit.
+    pub fn simulate(&self, rows: usize, seed: u64) -> Result<SimData> {
+        let n = self.graph.len();
+        Machine::now().check(&Demand {
+            setting: Setting::Rows,
+            count: rows as u64,
+            unit: "rows",
+            per_unit: 2 * 8 * n as u64,
+            fixed: 0,
+            least: 1,
+        })?;
+        let mut cols: Vec<Vec<f64>> = vec![Vec::with_capacity(rows); n];
+        self.draw_blocks(rows as u64, seed, |block, _| {
+            for row in block.chunks_exact(n.max(1)) {
+                for (c, &x) in cols.iter_mut().zip(row) {
+                    c.push(x);
+                }
+            }
+            Ok(())
+        })?;
+        let columns = cols
+            .into_iter()
+            .enumerate()
+            .map(|(v, col)| match &self.eqs[v].kind {
                 Kind::Categorical { levels, .. } => Column::Categorical {
                     levels: levels.clone(),
                     codes: col.iter().map(|&c| c as usize).collect(),
                 },
                 _ => Column::Numeric(col),
-            });
-        }
+            })
+            .collect();
         Ok(SimData {
             names: (0..n).map(|v| self.graph.name(v).to_string()).collect(),
             columns,
             observed: self.graph.observed(),
         })
+    }
+
+    /// Draws `rows` rows as [`Model::simulate`] does and writes the observed
+    /// columns as CSV to `out` as they are drawn, in bounded memory: the
+    /// same bytes as [`write_csv`] of the simulated data. A write that fails
+    /// is an [`Error::Io`] on `name`; `progress` hears of each block.
+    pub fn write_rows<W: std::io::Write>(
+        &self,
+        rows: u64,
+        seed: u64,
+        out: W,
+        name: &str,
+        progress: &Reporter,
+    ) -> Result<()> {
+        let n = self.graph.len();
+        let observed = self.graph.observed();
+        let io = |e: std::io::Error| Error::io(name, e);
+        let mut w = csv::Rows::new(out, observed.iter().map(|&v| self.graph.name(v))).map_err(io)?;
+        progress.start("simulating rows", rows);
+        let drawn = self.draw_blocks(rows, seed, |block, _| {
+            for row in block.chunks_exact(n.max(1)) {
+                w.write(observed.iter().map(|&v| match &self.eqs[v].kind {
+                    Kind::Categorical { levels, .. } => levels[row[v] as usize].clone(),
+                    _ => format_number(row[v]),
+                }))
+                .map_err(io)?;
+            }
+            progress.advance((block.len() / n.max(1)) as u64);
+            Ok(())
+        });
+        progress.finish();
+        drawn?;
+        w.finish().map_err(io)
     }
 }
 

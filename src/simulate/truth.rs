@@ -23,7 +23,8 @@
 use super::rng::Stream;
 use super::{Action, Kind, Model, Term};
 use crate::graph::{Graph, Node};
-use crate::{Error, Result};
+use crate::progress::Reporter;
+use crate::{Error, Result, Setting};
 use rayon::prelude::*;
 use serde::Serialize;
 
@@ -32,6 +33,9 @@ pub const MAX_PATHS: usize = 1000;
 
 /// Monte Carlo draws per chunk (one random stream each).
 pub const CHUNK: usize = 20_000;
+
+/// Chunks held at a time.
+const BATCH: usize = 256;
 
 /// How the true effect was computed.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize)]
@@ -119,6 +123,17 @@ pub fn true_effect(g: &Graph, x: Node, y: Node, opts: &TruthOptions) -> Result<T
 impl Model {
     /// The true effect of `x` on `y` (see the module overview).
     pub fn true_effect(&self, x: Node, y: Node, opts: &TruthOptions) -> Result<Truth> {
+        self.true_effect_reported(x, y, opts, &Reporter::none())
+    }
+
+    /// [`Model::true_effect`], reporting the Monte Carlo draws to `progress`.
+    pub fn true_effect_reported(
+        &self,
+        x: Node,
+        y: Node,
+        opts: &TruthOptions,
+        progress: &Reporter,
+    ) -> Result<Truth> {
         let g = &self.graph;
         if x == y {
             return Err(Error::input(format!(
@@ -179,7 +194,7 @@ impl Model {
                 ..base
             }),
             Some(why) => {
-                let (effect, se) = self.monte_carlo(x, y, contrast, opts)?;
+                let (effect, se) = self.monte_carlo(x, y, contrast, opts, progress)?;
                 Ok(Truth {
                     effect,
                     method: Method::MonteCarlo,
@@ -274,9 +289,19 @@ impl Model {
         out
     }
 
-    fn monte_carlo(&self, x: Node, y: Node, contrast: Contrast, opts: &TruthOptions) -> Result<(f64, f64)> {
+    fn monte_carlo(
+        &self,
+        x: Node,
+        y: Node,
+        contrast: Contrast,
+        opts: &TruthOptions,
+        progress: &Reporter,
+    ) -> Result<(f64, f64)> {
         if opts.mc_draws < 2 {
-            return Err(Error::input("the Monte Carlo truth needs at least 2 draws"));
+            return Err(Error::option(
+                Setting::Draws,
+                format!("{}: must be at least 2", opts.mc_draws),
+            ));
         }
         let (a, b) = match contrast {
             Contrast::OneVsZero => (Some((x, Action::Set(1.0))), Some((x, Action::Set(0.0)))),
@@ -284,35 +309,44 @@ impl Model {
         };
         let chunks = opts.mc_draws.div_ceil(CHUNK);
         let n = self.graph.len();
-        // (count, mean, sum of squared deviations) per chunk, by Welford's update.
-        let parts: Vec<(f64, f64, f64)> = (0..chunks)
-            .into_par_iter()
-            .map(|c| {
-                let draws = CHUNK.min(opts.mc_draws - c * CHUNK);
-                let mut s = Stream::new(opts.seed, c as u64 + 1);
-                let (mut noise, mut va, mut vb) = (vec![0.0; n], vec![0.0; n], vec![0.0; n]);
-                let (mut mean, mut m2) = (0.0, 0.0);
-                for i in 0..draws {
-                    self.draw_noise(&mut s, &mut noise);
-                    self.evaluate(&noise, a, &mut va);
-                    self.evaluate(&noise, b, &mut vb);
-                    let d = va[y] - vb[y];
-                    let delta = d - mean;
-                    mean += delta / (i + 1) as f64;
-                    m2 += delta * (d - mean);
-                }
-                (draws as f64, mean, m2)
-            })
-            .collect();
-        // Pairwise combination of Chan, Golub & LeVeque (1979), in chunk order.
+        // (count, mean, sum of squared deviations) of chunk c, by Welford's update.
+        let chunk = |c: usize| {
+            let draws = CHUNK.min(opts.mc_draws - c * CHUNK);
+            let mut s = Stream::new(opts.seed, c as u64 + 1);
+            let (mut noise, mut va, mut vb) = (vec![0.0; n], vec![0.0; n], vec![0.0; n]);
+            let (mut mean, mut m2) = (0.0, 0.0);
+            for i in 0..draws {
+                self.draw_noise(&mut s, &mut noise);
+                self.evaluate(&noise, a, &mut va);
+                self.evaluate(&noise, b, &mut vb);
+                let d = va[y] - vb[y];
+                let delta = d - mean;
+                mean += delta / (i + 1) as f64;
+                m2 += delta * (d - mean);
+            }
+            progress.advance(draws as u64);
+            (draws as f64, mean, m2)
+        };
+        // Chunks run in parallel a batch at a time, so memory stays bounded
+        // however many draws are asked for; the combination below is the
+        // same, in chunk order.
+        progress.start("Monte Carlo draws", opts.mc_draws as u64);
         let (mut cnt, mut mean, mut m2) = (0.0, 0.0, 0.0);
-        for (nb, mb, m2b) in parts {
-            let tot = cnt + nb;
-            let delta = mb - mean;
-            mean += delta * nb / tot;
-            m2 += m2b + delta * delta * cnt * nb / tot;
-            cnt = tot;
+        for first in (0..chunks).step_by(BATCH) {
+            let parts: Vec<(f64, f64, f64)> = (first..chunks.min(first + BATCH))
+                .into_par_iter()
+                .map(chunk)
+                .collect();
+            // Pairwise combination of Chan, Golub & LeVeque (1979), in chunk order.
+            for (nb, mb, m2b) in parts {
+                let tot = cnt + nb;
+                let delta = mb - mean;
+                mean += delta * nb / tot;
+                m2 += m2b + delta * delta * cnt * nb / tot;
+                cnt = tot;
+            }
         }
+        progress.finish();
         if !mean.is_finite() || !m2.is_finite() {
             return Err(Error::Numerical(format!(
                 "the Monte Carlo truth for '{}' overflowed (coefficients too large?)",
