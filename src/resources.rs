@@ -24,6 +24,11 @@ pub const MEMORY_ENV: &str = "CAUSEWAY_MEMORY_LIMIT";
 /// At most this many worker threads per core.
 pub const THREADS_PER_CORE: usize = 4;
 
+/// Address space a worker thread reserves whatever its work: its stack
+/// (2 MiB) and an allocator arena (64 MiB), which count against an
+/// address-space limit.
+pub const THREAD_RESERVE: u64 = 66 << 20;
+
 /// The memory assumed when the system does not say (4 GiB).
 const FALLBACK_MEMORY: u64 = 4 << 30;
 

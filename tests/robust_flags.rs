@@ -403,3 +403,244 @@ fn negative_summary_numbers_name_their_flag() {
         expect(&cw(dir.path(), &a), 2, &[flag]);
     }
 }
+
+/// Runs `causeway` in `dir` with `CAUSEWAY_MEMORY_LIMIT` set to `memory` bytes.
+fn with_memory(dir: &Path, memory: u64, args: &[&str]) -> Run {
+    let r: Run = std::process::Command::new(env!("CARGO_BIN_EXE_causeway"))
+        .args(args)
+        .current_dir(dir)
+        .env("CAUSEWAY_MEMORY_LIMIT", memory.to_string())
+        .output()
+        .unwrap()
+        .into();
+    assert!(
+        !r.stderr.contains("panicked") && !r.stderr.contains("internal error"),
+        "{}",
+        r.stderr
+    );
+    r
+}
+
+/// A replicate count whose results do not fit in memory is refused before
+/// the bootstrap starts (it used to abort the process on a failed
+/// allocation), naming the flag, the memory needed and available, and how
+/// many replicates fit; the same count under more memory runs.
+#[test]
+fn bootstrap_beyond_memory_is_refused_with_the_count_that_fits() {
+    let dir = setup();
+    let args = [
+        "estimate",
+        "--graph",
+        "g.graph",
+        "--data",
+        "d.csv",
+        "--exposure",
+        "x",
+        "--outcome",
+        "y",
+        "--bootstrap",
+        "100000000000",
+        "--quiet",
+    ];
+    let r = with_memory(dir.path(), 2 << 30, &args);
+    expect(
+        &r,
+        2,
+        &[
+            "--bootstrap 100000000000: needs about",
+            "TiB of memory",
+            "2.0 GiB is available",
+            "replicates fit",
+        ],
+    );
+    assert_eq!(r.stderr.lines().count(), 1, "{}", r.stderr);
+    // The count the message gives is the largest that fits: one more is
+    // refused too.
+    let r = with_memory(dir.path(), 700 << 20, &args);
+    let fit: u64 = r
+        .stderr
+        .split("at most ")
+        .nth(1)
+        .and_then(|s| s.split(' ').next())
+        .and_then(|n| n.parse().ok())
+        .unwrap_or_else(|| panic!("no count in {}", r.stderr));
+    assert!(fit >= 2, "{}", r.stderr);
+    let over = (fit + 1).to_string();
+    let mut a = args;
+    a[10] = &over;
+    expect(&with_memory(dir.path(), 700 << 20, &a), 2, &["--bootstrap"]);
+    let r = with_memory(
+        dir.path(),
+        u64::MAX,
+        &[
+            "estimate",
+            "--graph",
+            "g.graph",
+            "--data",
+            "d.csv",
+            "--exposure",
+            "x",
+            "--outcome",
+            "y",
+            "--bootstrap",
+            "2000000000000000000",
+            "--quiet",
+        ],
+    );
+    expect(&r, 2, &["needs more memory than any machine can address"]);
+}
+
+/// More threads than 4 per core are cut, with a warning naming the flag,
+/// and the results are those of one thread.
+#[test]
+fn threads_beyond_the_machine_are_cut_with_a_warning() {
+    let dir = setup();
+    let run = |t: &str| {
+        estimate_in(
+            dir.path(),
+            &["--bootstrap", "30", "--threads", t, "--format", "json"],
+        )
+    };
+    let many = run("1000000");
+    expect(
+        &many,
+        0,
+        &[
+            "causeway: warning: --threads 1000000: more than 4 per core",
+            "; using ",
+        ],
+    );
+    let one = run("1");
+    assert!(!one.stderr.contains("--threads"), "{}", one.stderr);
+    let strip = |s: &str| -> Value {
+        let mut v: Value = serde_json::from_str(s).unwrap();
+        v.as_object_mut().unwrap().remove("command");
+        v
+    };
+    assert_eq!(strip(&many.stdout), strip(&one.stdout));
+    let max = estimate_in(dir.path(), &["--threads", "18446744073709551615", "--quiet"]);
+    assert_eq!(max.code, 0, "{}", max.stderr);
+    assert!(max.stderr.is_empty(), "--quiet still warned: {}", max.stderr);
+}
+
+/// Rows are written as they are drawn: standard output and a file get the
+/// same bytes, a reader that stops early ends the run quietly, and rows
+/// that cannot fit on the disk are refused before anything is written.
+#[test]
+fn simulated_rows_stream_in_bounded_memory() {
+    let dir = tempfile::tempdir().unwrap();
+    let g = write(
+        dir.path(),
+        "m.graph",
+        "z : binary\nz -> x (0.5)\nx -> y (2)\nz -> y (1)\n",
+    );
+    let base = ["simulate", "--graph", &g, "--rows", "9000", "--seed", "4"];
+    let out = cw(dir.path(), &base);
+    assert_eq!(out.code, 0, "{}", out.stderr);
+    assert_eq!(out.stdout.lines().count(), 9001);
+    let mut to_file = base.to_vec();
+    to_file.extend(["--output", "s.csv"]);
+    assert_eq!(cw(dir.path(), &to_file).code, 0);
+    assert_eq!(
+        std::fs::read_to_string(dir.path().join("s.csv")).unwrap(),
+        out.stdout
+    );
+    // A reader that goes away after the header.
+    let mut child = std::process::Command::new(env!("CARGO_BIN_EXE_causeway"))
+        .args(["simulate", "--graph", &g, "--rows", "100000000000", "--seed", "4"])
+        .stdout(std::process::Stdio::piped())
+        .stderr(std::process::Stdio::piped())
+        .spawn()
+        .unwrap();
+    let mut head = [0u8; 64];
+    std::io::Read::read_exact(child.stdout.as_mut().unwrap(), &mut head).unwrap();
+    drop(child.stdout.take());
+    let status = wait_at_most(&mut child, 20);
+    assert_eq!(status.code(), Some(0));
+    // More rows than the disk holds.
+    let r = cw(
+        dir.path(),
+        &[
+            "simulate",
+            "--graph",
+            &g,
+            "--rows",
+            "1000000000000000",
+            "--seed",
+            "4",
+            "--output",
+            "big.csv",
+        ],
+    );
+    expect(
+        &r,
+        2,
+        &[
+            "--rows 1000000000000000: needs about",
+            "of disk space",
+            "rows fit",
+        ],
+    );
+    assert!(!dir.path().join("big.csv").exists());
+}
+
+/// Waits for `child`, killing it and failing after `secs` seconds.
+fn wait_at_most(child: &mut std::process::Child, secs: u64) -> std::process::ExitStatus {
+    let start = std::time::Instant::now();
+    loop {
+        if let Some(s) = child.try_wait().unwrap() {
+            return s;
+        }
+        if start.elapsed().as_secs() >= secs {
+            let _ = child.kill();
+            panic!("still running after {secs} s");
+        }
+        std::thread::sleep(std::time::Duration::from_millis(10));
+    }
+}
+
+/// Ctrl-C during a long simulation to a file ends it with 130 and leaves
+/// neither the output nor its temporary file behind; an existing output
+/// is left as it was.
+#[cfg(unix)]
+#[test]
+fn an_interrupted_simulation_leaves_no_file() {
+    let dir = tempfile::tempdir().unwrap();
+    write(dir.path(), "m.graph", "x -> y (2)\n");
+    write(dir.path(), "s.csv", "old\n");
+    let mut child = std::process::Command::new(env!("CARGO_BIN_EXE_causeway"))
+        // About 1.5 GB of rows: seconds of work, stopped long before the end.
+        .args([
+            "simulate", "--graph", "m.graph", "--rows", "50000000", "--seed", "1", "--output", "s.csv",
+        ])
+        .current_dir(dir.path())
+        .stderr(std::process::Stdio::null())
+        .spawn()
+        .unwrap();
+    // Wait until the temporary file is being written.
+    let start = std::time::Instant::now();
+    while std::fs::read_dir(dir.path()).unwrap().count() < 3 {
+        assert!(start.elapsed().as_secs() < 20, "no temporary file appeared");
+        assert!(
+            child.try_wait().unwrap().is_none(),
+            "ended before it was interrupted"
+        );
+        std::thread::sleep(std::time::Duration::from_millis(10));
+    }
+    let killed = std::process::Command::new("kill")
+        .args(["-INT", &child.id().to_string()])
+        .status()
+        .unwrap();
+    assert!(killed.success());
+    assert_eq!(wait_at_most(&mut child, 20).code(), Some(130));
+    let mut left: Vec<String> = std::fs::read_dir(dir.path())
+        .unwrap()
+        .map(|e| e.unwrap().file_name().to_string_lossy().into_owned())
+        .collect();
+    left.sort();
+    assert_eq!(left, ["m.graph", "s.csv"]);
+    assert_eq!(
+        std::fs::read_to_string(dir.path().join("s.csv")).unwrap(),
+        "old\n"
+    );
+}

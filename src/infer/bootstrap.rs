@@ -41,7 +41,7 @@
 use crate::dist::{normal_cdf, normal_critical, normal_quantile};
 use crate::progress::Reporter;
 use crate::random::stream_rng;
-use crate::resources::{Demand, Machine, size};
+use crate::resources::{Demand, Machine, THREAD_RESERVE, size};
 use crate::{Error, Result, Setting};
 use rand_chacha::ChaCha8Rng;
 use rand_chacha::rand_core::Rng;
@@ -278,11 +278,12 @@ fn jackknife_groups(n: usize, seed: u64) -> (usize, Option<Vec<usize>>) {
 /// rows needs on `threads` threads: per replicate, its result as returned
 /// and as stored (with the allocator's overhead); per thread, the
 /// resample's weights and the statistic's working vectors (taken as four
-/// more of the same length); and the jackknife's results.
+/// more of the same length) over the thread's own reserve; and the
+/// jackknife's results.
 fn memory_demand(n: usize, m: usize, replicates: usize, threads: usize) -> Demand {
     let m = m as u64;
     let per_unit = size::<Result<Vec<f64>>>() + 16 + 2 * 8 * m;
-    let per_thread = 5 * 8 * n as u64;
+    let per_thread = 5 * 8 * n as u64 + THREAD_RESERVE;
     let jackknife = (n.min(JACKKNIFE_MAX_GROUPS) as u64) * per_unit + 16 * n as u64;
     Demand {
         setting: Setting::Bootstrap,
@@ -734,6 +735,9 @@ mod tests {
         // Only the full-data evaluation ran.
         assert_eq!(calls.load(std::sync::atomic::Ordering::SeqCst), 2);
         let d = memory_demand(1000, 4, 100, 8);
-        assert_eq!(d.fixed, 8 * 5 * 8 * 1000 + 500 * d.per_unit + 16 * 1000);
+        assert_eq!(
+            d.fixed,
+            8 * (5 * 8 * 1000 + THREAD_RESERVE) + 500 * d.per_unit + 16 * 1000
+        );
     }
 }
