@@ -711,6 +711,34 @@ mod tests {
         assert_eq!(post_process(eq, 7.0), 2.0);
     }
 
+    /// Rows written as they are drawn are the bytes of the rows held in
+    /// memory, across block boundaries; rows that cannot be held are
+    /// refused naming the setting, before anything is allocated.
+    #[test]
+    fn streamed_rows_equal_held_rows() {
+        let text = "r : levels(a 0.5, b 0.5)\nz : binary\nr -> y (b 1)\nz -> x (0.4) -> y (2)\nu : latent\nu -> x (1)\n";
+        let g = parse(text, "g.txt").unwrap().graph;
+        let m = Model::new(&g, &Options::default()).unwrap();
+        let rows = 2 * ROW_BLOCK + 17;
+        let mut held = Vec::new();
+        write_csv(&m.simulate(rows, 5).unwrap(), &mut held).unwrap();
+        let mut streamed = Vec::new();
+        m.write_rows(rows as u64, 5, &mut streamed, "out", &Reporter::none())
+            .unwrap();
+        assert_eq!(held, streamed);
+        let e = m.simulate(usize::MAX, 5).unwrap_err();
+        assert!(
+            matches!(
+                e,
+                Error::Option {
+                    setting: Setting::Rows,
+                    ..
+                }
+            ),
+            "{e}"
+        );
+    }
+
     #[test]
     fn interventions_share_random_numbers() {
         // Under do(x = 1) and do(x = 0) from the same noise, y differs by
