@@ -20,6 +20,7 @@ mod estimate_exposures;
 mod estimate_frontdoor;
 mod estimate_nhefs;
 mod estimate_sim;
+mod fuzz_pipeline;
 mod graph_parse;
 mod graph_props;
 mod identify_dsep;
