@@ -689,7 +689,7 @@ fn evalue_for(
         }
         // The risk ratio from the same targets, with its own interval.
         let rr = estimate::contrast::form(targets, &e.spec, Scale::Ratio, p.spec.level)
-            .ok_or_else(|| Error::Numerical("the method forms no risk ratio".into()))??;
+            .ok_or_else(|| Error::Internal("the method forms no risk ratio".into()))??;
         return evalue::risk_ratio(rr.estimate, Some((rr.ci[0], rr.ci[1])));
     }
     let sd = match inputs {

@@ -1,5 +1,6 @@
 //! The crate's error type. Each variant decides the exit code the binary
-//! returns: bad input or usage 2, not identified 3, anything else 1.
+//! returns: a failure caused by the input (data, graph or settings) 2, not
+//! identified 3, an internal error (a bug) 1.
 
 use std::path::PathBuf;
 
@@ -20,9 +21,15 @@ pub enum Error {
     /// [`Error::Input`].
     #[error("{0}")]
     Separation(String),
-    /// A numerical failure that makes a result meaningless.
+    /// The data leave a computation without a meaningful result (a model
+    /// that does not converge, an empty exposure arm, an effect that is not
+    /// finite): caused by the input, like [`Error::Input`].
     #[error("{0}")]
     Numerical(String),
+    /// An internal error: a broken invariant of the program itself, never
+    /// something the input can cause. The only variant with exit code 1.
+    #[error("internal error (please report it): {0}")]
+    Internal(String),
     /// A bad value of an analysis setting. The library names the setting in
     /// neutral words; the command line prints its flag instead.
     #[error("{}", self.text(&Words))]
@@ -252,9 +259,10 @@ impl Error {
             | Error::Input(_)
             | Error::Option { .. }
             | Error::Separation(_)
+            | Error::Numerical(_)
             | Error::Io { .. } => 2,
             Error::NotIdentified(_) => 3,
-            Error::Numerical(_) => 1,
+            Error::Internal(_) => 1,
             Error::Advised { error, .. } => error.exit_code(),
         }
     }

@@ -136,7 +136,7 @@ pub fn run(a: Args) -> Result<i32> {
         }
         None => {
             let mut s = serde_json::to_string_pretty(&report)
-                .map_err(|e| Error::Numerical(format!("cannot write the JSON: {e}")))?;
+                .map_err(|e| Error::Internal(format!("cannot write the JSON: {e}")))?;
             s.push('\n');
             s
         }

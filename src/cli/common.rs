@@ -79,7 +79,7 @@ pub fn print_with(fill: impl FnOnce(&mut dyn Write) -> Result<()>) -> Result<()>
 
 /// Pretty JSON with a final newline.
 pub fn to_json<T: serde::Serialize>(value: &T) -> Result<String> {
-    let fail = |e: serde_json::Error| Error::Numerical(format!("cannot write the JSON: {e}"));
+    let fail = |e: serde_json::Error| Error::Internal(format!("cannot write the JSON: {e}"));
     let mut v = serde_json::to_value(value).map_err(fail)?;
     causeway::report::json::tidy_settings(&mut v);
     let mut s = serde_json::to_string_pretty(&v).map_err(fail)?;

@@ -180,7 +180,7 @@ impl Comparison {
         for r in &self.runs {
             let mut v = match &r.result {
                 RunResult::Done(a) => serde_json::to_value(a.as_ref())
-                    .map_err(|e| Error::Numerical(format!("cannot write the JSON: {e}")))?,
+                    .map_err(|e| Error::Internal(format!("cannot write the JSON: {e}")))?,
                 RunResult::Stopped {
                     strategy,
                     reason,
@@ -386,5 +386,15 @@ pub fn run(a: Args) -> Result<i32> {
         a.out.as_ref(),
         &paths,
     )?;
-    Ok(if c.analyses().next().is_none() { 3 } else { 0 })
+    if c.analyses().next().is_none() {
+        // The report says why under each graph; the exit code needs its line too.
+        eprintln!(
+            "causeway: not identified: the effect of {} on {} is not identified under any of the {} graphs compared (the report gives each graph's reason)",
+            a.flags.exposure,
+            a.flags.outcome,
+            inputs.len()
+        );
+        return Ok(3);
+    }
+    Ok(0)
 }

@@ -100,7 +100,7 @@ fn truth() -> Result<causeway::simulate::Truth> {
     let g = causeway::graph::parse(STUDY_GRAPH, "demo-data/study.graph")?.graph;
     let node = |n: &str| {
         g.node(n)
-            .ok_or_else(|| Error::Numerical(format!("the demo graph lacks {n}")))
+            .ok_or_else(|| Error::Internal(format!("the demo graph lacks {n}")))
     };
     true_effect(
         &g,

@@ -79,7 +79,7 @@ pub fn json(stamp: &Stamp, a: &Analysis, rows: usize) -> Result<Value> {
         "seed": stamp.seed,
     });
     let body = serde_json::to_value(a)
-        .map_err(|e| causeway::Error::Numerical(format!("cannot write the JSON: {e}")))?;
+        .map_err(|e| causeway::Error::Internal(format!("cannot write the JSON: {e}")))?;
     if let (Value::Object(m), Value::Object(b)) = (&mut v, body) {
         let b: Map<String, Value> = b;
         m.extend(b);

@@ -272,7 +272,7 @@ pub fn run(a: Args) -> Result<i32> {
                 adjusted: reg.and_then(|r| r.adjusted),
             };
             let text = serde_json::to_string_pretty(&out)
-                .map_err(|e| Error::Numerical(format!("could not write JSON: {e}")))?;
+                .map_err(|e| Error::Internal(format!("could not write JSON: {e}")))?;
             print_stdout(&format!("{text}\n"))?;
         }
         _ => print_stdout(&text(ev.as_ref(), reg.as_ref()))?,

@@ -161,7 +161,7 @@ pub fn run(a: Args) -> Result<i32> {
     };
     if let (Some(path), Some(t)) = (&a.truth, &truth) {
         let mut json = serde_json::to_string_pretty(t)
-            .map_err(|e| Error::Numerical(format!("could not write the truth as JSON: {e}")))?;
+            .map_err(|e| Error::Internal(format!("could not write the truth as JSON: {e}")))?;
         json.push('\n');
         let mut inputs = vec![a.graph.as_path()];
         if let Some(o) = &a.output {

@@ -334,7 +334,7 @@ where
     let estimate = stat(&vec![1.0; n])?;
     let m = estimate.len();
     if m == 0 {
-        return Err(Error::Numerical(
+        return Err(Error::Internal(
             "the bootstrap statistic returned no values".into(),
         ));
     }
@@ -350,7 +350,7 @@ where
     let pool = rayon::ThreadPoolBuilder::new()
         .num_threads(threads)
         .build()
-        .map_err(|e| Error::Numerical(format!("could not start worker threads: {e}")))?;
+        .map_err(|e| Error::Internal(format!("could not start worker threads: {e}")))?;
     let progress = &opts.progress;
     progress.start("bootstrap replicates", opts.replicates as u64);
     let seed = opts.seed;
@@ -403,7 +403,7 @@ where
                     }
                 }
                 Ok(v) => {
-                    return Err(Error::Numerical(format!(
+                    return Err(Error::Internal(format!(
                         "the bootstrap statistic returned {} values on {what} {i}, {m} on the full data",
                         v.len()
                     )));
@@ -455,7 +455,7 @@ impl Draws {
     /// The summary of statistic `j` at another confidence level.
     pub fn summary_at(&self, j: usize, level: f64) -> Result<Summary> {
         if j >= self.estimate.len() {
-            return Err(Error::Numerical(format!(
+            return Err(Error::Internal(format!(
                 "no bootstrap statistic {j} (there are {})",
                 self.estimate.len()
             )));
