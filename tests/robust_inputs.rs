@@ -405,6 +405,27 @@ fn special_files_get_their_own_message() {
             assert!(!r.stderr.contains("no such file"), "{cmd} {path}: {}", r.stderr);
         }
     }
+    // A device that never ends is refused on its first bytes, not read.
+    for flag in ["--data", "--graph"] {
+        let mut args = vec![
+            "estimate",
+            "--graph",
+            "g.txt",
+            "--data",
+            "d.csv",
+            "--exposure",
+            "x",
+            "--outcome",
+            "y",
+        ];
+        let at = args.iter().position(|a| *a == flag).unwrap();
+        args[at + 1] = "/dev/zero";
+        expect(
+            &bounded(d, &args),
+            2,
+            &[&format!("{flag} /dev/zero: is not delimited text"), "binary"],
+        );
+    }
     let graph_cases: [(&str, &[&str]); 4] = [
         ("folder", &["--graph folder: is a folder, not a graph file"]),
         ("image.png", &["image.png:1:1:", "not text"]),

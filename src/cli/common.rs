@@ -54,7 +54,9 @@ pub fn open_input(path: &Path, flag: &str, kind: &str, binary: bool) -> Result<I
     // The first bytes, enough to tell text from compressed or binary data.
     let mut head = Vec::with_capacity(8192);
     (&mut f).take(8192).read_to_end(&mut head).map_err(refuse)?;
-    let what = if binary {
+    // A device or pipe is read whole below: binary data (`/dev/zero`) is
+    // refused first whatever `binary` says, as it may never end.
+    let what = if binary || !meta.is_file() {
         causeway::data::not_text(&head)
     } else {
         causeway::data::compressed(&head)
