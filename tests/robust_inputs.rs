@@ -231,6 +231,28 @@ fn an_exposure_with_too_many_levels_is_refused() {
     assert!(!r.stderr.contains("--latent"), "{}", r.stderr);
 }
 
+#[test]
+fn check_does_not_fit_a_multinomial_test_too_large_to_end() {
+    // Two covariates of 60 levels over 3000 rows (allowed as columns): the
+    // test of one against the other would fit 59 x 60 coefficients.
+    let dir = tempfile::tempdir().unwrap();
+    let d = dir.path();
+    write(
+        d,
+        "d.csv",
+        &data(3000, Some(("a,b", &|i| format!("A{},B{}", i % 60, (i * 7) % 60)))),
+    );
+    graph(d, &["a", "b"]);
+    let r = bounded(
+        d,
+        &["check", "--graph", "g.txt", "--data", "d.csv", "--format", "json"],
+    );
+    assert_eq!(r.code, 0, "{}", r.stderr);
+    let v: serde_json::Value = serde_json::from_str(&r.stdout).unwrap();
+    let reasons = v["not_tested"].to_string();
+    assert!(reasons.contains("would have 3540 coefficients"), "{reasons}");
+}
+
 // ------------------------------------------------------ stray cells
 
 /// `d.csv` with covariate z of numbers, but for the given (row, text) cells.

@@ -197,7 +197,7 @@ impl Column {
             format!("{} cells", self.others)
         };
         let e = Error::input(format!(
-            "{source}:{}:{}: column '{name}' holds numbers ({} cells) except in {count} that are \
+            "{source}:{}:{}: column '{name}' holds numbers ({} cells) except in {count}, \
              neither a number nor a known missing-value token: {}; correct those cells or mark \
              them missing (empty, NA, N/A, NaN, NULL, #N/A, ., -, ?, .a to .z)",
             first.line,
