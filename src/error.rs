@@ -185,6 +185,8 @@ pub enum Remedy {
     TurnOn(Setting),
     /// Give the setting a value of one's own.
     Give(Setting),
+    /// Take these values out of the setting (a list).
+    Omit(Setting, Vec<String>),
 }
 
 /// Advice carried by an error or a note: remedies, any one of which helps,
@@ -247,6 +249,7 @@ impl Phrasing for Words {
             Remedy::Choose(s, values) => format!("set {} to {}", s.words(), values.join(" or ")),
             Remedy::TurnOn(s) => format!("turn on {}", s.words()),
             Remedy::Give(s) => format!("give {}", s.words()),
+            Remedy::Omit(s, values) => format!("take {} out of {}", values.join(", "), s.words()),
         }
     }
 }

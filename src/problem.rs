@@ -232,19 +232,7 @@ impl Problem {
                 used.join(", ")
             )));
         }
-        if sample.dropped > 0 {
-            let by: Vec<String> = sample
-                .dropped_by_column
-                .iter()
-                .map(|(k, v)| format!("{k} {v}"))
-                .collect();
-            warnings.push(format!(
-                "{} of {} rows dropped for missing values (by column: {})",
-                sample.dropped,
-                sample.rows,
-                by.join(", ")
-            ));
-        }
+        warnings.extend(sample.dropped_warning());
         let mut frame = Frame::new(sample.used);
         let outcome = frame.push_from(data, &sample, &spec.outcome, Role::Number)?;
         let choice = ExposureChoice {

@@ -33,6 +33,7 @@ mod robust_data;
 mod robust_first_hour;
 mod robust_flags;
 mod robust_graph;
+mod robust_inputs;
 mod robust_options;
 mod robust_props;
 mod sensitivity;

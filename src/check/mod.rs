@@ -27,7 +27,7 @@ pub use bearing::{Adjustment, Bearing, judge};
 pub use implications::{Implication, implications};
 pub use pair::{CiTest, Outcome, PairResult, ci_test};
 
-use crate::data::Dataset;
+use crate::data::{Dataset, Frame, Role};
 use crate::error::Setting;
 use crate::graph::{Graph, Names, set_text};
 use crate::{Error, Result};
@@ -172,6 +172,40 @@ fn observed_graph(g: &Graph, data: &Dataset, latent: &[String]) -> Result<Graph>
     Ok(g)
 }
 
+/// Codes every variable the implications use once, over its own complete
+/// rows, before any test: a column the tests could not use (numbers with
+/// stray cells, a categorical column with too many levels) is refused here,
+/// the first in graph order, whatever the order the tests would run in.
+/// Returns the note on the missing-value tokens met, if any.
+fn code_up_front(
+    g: &Graph,
+    data: &Dataset,
+    imps: &[Implication],
+    categorical: &[String],
+) -> Result<Vec<String>> {
+    let mut used = vec![false; g.len()];
+    for i in imps {
+        used[i.a] = true;
+        used[i.b] = true;
+        for &v in &i.given {
+            used[v] = true;
+        }
+    }
+    let mut tokens = BTreeMap::new();
+    for v in (0..g.len()).filter(|&v| used[v]) {
+        let name = g.name(v);
+        let sample = data.complete_cases(&[name])?;
+        tokens.extend(sample.tokens_by_column.clone());
+        if sample.used > 0 {
+            let role = Role::Covariate {
+                categorical: categorical.iter().any(|c| c == name),
+            };
+            Frame::new(sample.used).push_from(data, &sample, name, role)?;
+        }
+    }
+    Ok(crate::data::tokens_note(&tokens).into_iter().collect())
+}
+
 /// Lists the graph's implications among observed variables and tests each
 /// on `data`. Nodes that are not columns of `data` are unobserved, as are
 /// those in `opts.latent`.
@@ -197,6 +231,7 @@ pub fn run(g: &Graph, data: &Dataset, opts: &CheckOptions) -> Result<CheckReport
     }
     let g = observed_graph(g, data, &opts.latent)?;
     let (imps, untestable) = implications(&g);
+    let mut warnings = code_up_front(&g, data, &imps, &opts.categorical)?;
     let named = |i: &Implication| {
         let mut given = g.names_of(&i.given);
         given.sort();
@@ -213,7 +248,6 @@ pub fn run(g: &Graph, data: &Dataset, opts: &CheckOptions) -> Result<CheckReport
     let mut tested = Vec::new();
     let mut not_tested = Vec::new();
     let mut missing = BTreeMap::new();
-    let mut warnings = Vec::new();
     for (i, r) in imps.iter().zip(results) {
         let (a, b, given) = named(i);
         missing.extend(r.missing_by_column);

@@ -14,6 +14,12 @@ use crate::data::{Frame, Kind, Setting};
 use crate::model::{LogitOptions, Multinomial};
 use nalgebra::DMatrix;
 
+/// The most coefficients a test's larger model may have: the fit's work
+/// grows with the square of their number for every row, so a pair of
+/// categorical variables of many levels would run for minutes; such a test
+/// is not made, and says why.
+pub const MAX_COEFFICIENTS: usize = 400;
+
 /// The test's name in output.
 pub const NAME: &str = "likelihood ratio (multinomial logistic)";
 
@@ -24,9 +30,22 @@ pub fn multinomial_lr(frame: &Frame, response: usize, other: usize, given: &[usi
         Kind::Categorical { levels } => levels.len(),
         _ => 2,
     };
-    let y: Vec<usize> = frame.col(response).iter().map(|&c| c as usize).collect();
     let d0 = conditioning_design(frame, given);
     let d1 = extended_design(frame, given, other);
+    let coefficients = (levels - 1) * d1.ncols();
+    if coefficients > MAX_COEFFICIENTS {
+        return Ok(Outcome::NotTested(format!(
+            "the multinomial model of '{}' would have {coefficients} coefficients ({} levels less one, \
+             times {} terms), more than the {MAX_COEFFICIENTS} a test fits; group the levels of '{}' or \
+             '{}' into fewer to test it",
+            frame.name(response),
+            levels,
+            d1.ncols(),
+            frame.name(response),
+            frame.name(other)
+        )));
+    }
+    let y: Vec<usize> = frame.col(response).iter().map(|&c| c as usize).collect();
     let opts = LogitOptions::default();
     let m0 = Multinomial::fit(&d0.rows(frame, Setting::Observed), &y, levels, None, None, opts)?;
     let mut warm = DMatrix::zeros(d1.ncols(), levels - 1);

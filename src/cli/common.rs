@@ -8,7 +8,11 @@ use std::path::Path;
 
 /// Reads and parses a graph file, printing its warnings to stderr.
 pub fn load_graph(path: &Path, quiet: bool) -> Result<Graph> {
-    let bytes = std::fs::read(path).map_err(|e| Error::io(path, e))?;
+    // Binary bytes are left to the parser, which names their line and column.
+    let bytes = match open_input(path, "--graph", "graph file", false)? {
+        Input::Bytes(b) => b,
+        Input::File => std::fs::read(path).map_err(|e| Error::io(path, e))?,
+    };
     let parsed = graph::parse_bytes(&bytes, &path.display().to_string())?;
     if !quiet {
         for w in &parsed.warnings {
@@ -29,6 +33,55 @@ pub fn threads(asked: usize, quiet: bool) -> usize {
     }
     // 0 keeps its meaning (one per core) for the library to apply.
     if asked == 0 { 0 } else { machine.threads(asked) }
+}
+
+/// An input file that passed [`open_input`].
+pub enum Input {
+    /// A regular file, read later (as often as needed).
+    File,
+    /// The bytes of a file that can be read only once (a pipe, a device
+    /// such as `/dev/stdin`), read whole now.
+    Bytes(Vec<u8>),
+}
+
+/// Checks the input file `path` given to `flag` before it is read: each
+/// refusal names the flag and the path and says what is wrong (no such
+/// file, a folder, not readable, compressed, or with `binary` binary rather
+/// than text). `kind` names what the file should be ("data file").
+pub fn open_input(path: &Path, flag: &str, kind: &str, binary: bool) -> Result<Input> {
+    use std::io::{ErrorKind, Read};
+    let shown = path.display();
+    let refuse = |e: std::io::Error| {
+        Error::input(match e.kind() {
+            ErrorKind::NotFound => format!("{flag} {shown}: no such file"),
+            ErrorKind::PermissionDenied => format!("{flag} {shown}: cannot be read: permission denied"),
+            _ => format!("{flag} {shown}: cannot be read: {e}"),
+        })
+    };
+    let meta = std::fs::metadata(path).map_err(refuse)?;
+    if meta.is_dir() {
+        return Err(Error::input(format!("{flag} {shown}: is a folder, not a {kind}")));
+    }
+    let mut f = std::fs::File::open(path).map_err(refuse)?;
+    // The first bytes, enough to tell text from compressed or binary data.
+    let mut head = Vec::with_capacity(8192);
+    (&mut f).take(8192).read_to_end(&mut head).map_err(refuse)?;
+    // A device or pipe is read whole below: binary data (`/dev/zero`) is
+    // refused first whatever `binary` says, as it may never end.
+    let what = if binary || !meta.is_file() {
+        causeway::data::not_text(&head)
+    } else {
+        causeway::data::compressed(&head)
+            .map(|name| format!("looks compressed ({name}); decompress it first"))
+    };
+    if let Some(what) = what {
+        return Err(Error::input(format!("{flag} {shown}: {what}")));
+    }
+    if meta.is_file() {
+        return Ok(Input::File);
+    }
+    f.read_to_end(&mut head).map_err(refuse)?;
+    Ok(Input::Bytes(head))
 }
 
 /// The `--delimiter` flag's values.

@@ -401,14 +401,17 @@ pub struct DataSource {
     pub path: PathBuf,
     /// The name used in messages.
     pub shown: String,
-    /// Standard input, read once and kept.
+    /// Standard input, or a file that can be read only once (a pipe, a
+    /// device), read once and kept.
     stdin: Option<Vec<u8>>,
     /// The field separator; `None`: detected from the header line.
     delimiter: Option<Delimiter>,
 }
 
 impl DataSource {
-    /// Opens `path`; `-` reads all of standard input now. The separator is
+    /// Opens `path`; `-` reads all of standard input now, as does a path
+    /// that is not a regular file (a pipe); the path is checked by
+    /// [`super::common::open_input`]. The separator is
     /// `delimiter` (from `--delimiter`), else tab for a `.tsv` name, else
     /// detected from the header line.
     pub fn open(path: &Path, delimiter: Option<DelimiterArg>) -> Result<DataSource> {
@@ -427,18 +430,14 @@ impl DataSource {
                 delimiter,
             });
         }
-        if path.is_dir() {
-            return Err(Error::input(format!(
-                "--data {shown}: is a folder, not a data file"
-            )));
-        }
-        if !path.is_file() {
-            return Err(Error::input(format!("--data {shown}: no such file")));
-        }
+        let stdin = match super::common::open_input(path, "--data", "data file", true)? {
+            super::common::Input::File => None,
+            super::common::Input::Bytes(b) => Some(b),
+        };
         Ok(DataSource {
             path: path.to_path_buf(),
             shown,
-            stdin: None,
+            stdin,
             delimiter,
         })
     }

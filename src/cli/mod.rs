@@ -107,6 +107,7 @@ impl Phrasing for Flags {
             Remedy::Choose(s, values) => format!("use {} {}", flag(*s), values.join(" or ")),
             Remedy::TurnOn(s) => format!("add {}", flag(*s)),
             Remedy::Give(s) => format!("give {}", flag(*s)),
+            Remedy::Omit(s, values) => format!("leave {} out of {}", values.join(", "), flag(*s)),
         }
     }
 }

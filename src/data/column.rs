@@ -1,8 +1,14 @@
 //! One stored CSV column: numbers (NaN = missing) and, for a column that
-//! holds text, a level code for every row.
+//! holds text, a level code for every row. The column also keeps what a
+//! message needs: the first cells that are not numbers and how many there
+//! are (to tell a column of numbers with a few stray cells from a text
+//! column), and how many cells each missing-value token made missing.
 
-use crate::{Error, Result};
+use crate::{Advice, Error, Remedy, Result, Setting};
 use std::collections::HashMap;
+
+/// Cells that are not numbers kept to name them in a message.
+pub(crate) const STRAYS_SHOWN: usize = 5;
 
 /// Code of a missing cell in a text column.
 pub(crate) const MISSING: u32 = u32::MAX;
@@ -48,11 +54,40 @@ pub struct Column {
     pub first_text: Option<Cell>,
     /// The first cell holding an infinite value.
     pub first_infinite: Option<Cell>,
+    /// Cells holding a number.
+    pub numbers: usize,
+    /// Cells holding something else than a number or a missing token.
+    pub others: usize,
+    /// The first few of those cells (at most [`STRAYS_SHOWN`]).
+    pub strays: Vec<Cell>,
+    /// The missing-value tokens met, as written, and how many cells each
+    /// made missing, in order of first appearance (see
+    /// [`super::read::missing_token`]).
+    pub missing_tokens: Vec<(String, usize)>,
 }
 
 impl Column {
+    /// Appends a cell holding the missing-value token `raw`, counted.
+    pub(crate) fn push_token(&mut self, raw: &[u8]) {
+        let shown = if raw.is_empty() {
+            "empty".to_string()
+        } else {
+            escaped(raw)
+        };
+        match self.missing_tokens.iter_mut().find(|(t, _)| *t == shown) {
+            Some((_, k)) => *k += 1,
+            None => self.missing_tokens.push((shown, 1)),
+        }
+        self.push_missing();
+    }
+
+    /// Cells read as missing (every token counted).
+    pub fn missing_cells(&self) -> usize {
+        self.missing_tokens.iter().map(|t| t.1).sum()
+    }
+
     /// Appends a missing cell.
-    pub(crate) fn push_missing(&mut self) {
+    fn push_missing(&mut self) {
         self.values.push(f64::NAN);
         if let Some(t) = &mut self.text {
             t.codes.push(MISSING);
@@ -63,14 +98,19 @@ impl Column {
     pub(crate) fn push(&mut self, raw: &[u8], line: u64, column: usize) {
         let parsed = std::str::from_utf8(raw).ok().and_then(|s| s.parse::<f64>().ok());
         match parsed {
-            Some(v) if v.is_nan() => return self.push_missing(),
+            Some(v) if v.is_nan() => return self.push_token(raw),
             Some(v) => {
                 if v.is_infinite() && self.first_infinite.is_none() {
                     self.first_infinite = Some(cell(raw, line, column));
                 }
+                self.numbers += 1;
                 self.values.push(v);
             }
             None => {
+                self.others += 1;
+                if self.strays.len() < STRAYS_SHOWN {
+                    self.strays.push(cell(raw, line, column));
+                }
                 if self.first_text.is_none() {
                     self.first_text = Some(cell(raw, line, column));
                     self.start_text();
@@ -131,9 +171,56 @@ impl Column {
             .map(|t| (t.codes.as_slice(), t.levels.as_slice()))
     }
 
+    /// Does the column hold numbers but for a few cells: fewer cells that
+    /// are not numbers (nor missing tokens) than cells that are? Such a
+    /// column is refused where a number or a covariate is read, unless it
+    /// is named categorical ([`Column::stray_error`]).
+    pub fn is_mostly_numbers(&self) -> bool {
+        self.others > 0 && self.others < self.numbers
+    }
+
+    /// The refusal of a column of numbers with a few stray cells: the
+    /// first of them with their lines and values, how many in all, and,
+    /// when `categorical` may help, the advice to name it categorical.
+    pub fn stray_error(&self, source: &str, name: &str, categorical: bool) -> Error {
+        let first = &self.strays[0];
+        let shown: Vec<String> = self
+            .strays
+            .iter()
+            .map(|c| format!("line {} '{}'", c.line, c.text))
+            .collect();
+        let count = if self.others > self.strays.len() {
+            format!("{} cells (the first {} shown)", self.others, self.strays.len())
+        } else if self.others == 1 {
+            "1 cell".to_string()
+        } else {
+            format!("{} cells", self.others)
+        };
+        let e = Error::input(format!(
+            "{source}:{}:{}: column '{name}' holds numbers ({} cells) except in {count}, \
+             neither a number nor a known missing-value token: {}; correct those cells or mark \
+             them missing (empty, NA, N/A, NaN, NULL, #N/A, ., -, ?, .a to .z)",
+            first.line,
+            first.column,
+            self.numbers,
+            shown.join(", ")
+        ));
+        if categorical {
+            e.advised(Advice::one(
+                Remedy::Choose(Setting::Categorical, vec![name.to_string()]),
+                "to take its values as levels",
+            ))
+        } else {
+            e
+        }
+    }
+
     /// The values for a numeric role, or an input error naming the first
-    /// text or infinite cell.
+    /// text or infinite cell (every stray cell of a column of numbers).
     pub fn numeric(&self, source: &str, name: &str, role: &str) -> Result<&[f64]> {
+        if self.is_mostly_numbers() {
+            return Err(self.stray_error(source, name, false));
+        }
         if let Some(c) = &self.first_text {
             return Err(Error::input(format!(
                 "{source}:{}:{}: column '{name}' holds text '{}' but is used as {role}; \
@@ -170,6 +257,48 @@ fn cell(raw: &[u8], line: u64, column: usize) -> Cell {
     Cell {
         line,
         column,
-        text: String::from_utf8_lossy(raw).into_owned(),
+        text: escaped(raw),
+    }
+}
+
+/// `raw` as text fit for a message: UTF-8 text as it is, but control
+/// characters written as `\n`, `\t`, `\r` or `\xNN` (C1 controls as
+/// `\u{NN}`), and bytes that are not UTF-8 as `\xNN`.
+pub fn escaped(raw: &[u8]) -> String {
+    let mut out = String::with_capacity(raw.len());
+    for chunk in raw.utf8_chunks() {
+        for ch in chunk.valid().chars() {
+            match ch {
+                '\n' => out.push_str("\\n"),
+                '\t' => out.push_str("\\t"),
+                '\r' => out.push_str("\\r"),
+                c if (c as u32) < 0x20 || c as u32 == 0x7f => out.push_str(&format!("\\x{:02X}", c as u32)),
+                c if c.is_control() => out.push_str(&format!("\\u{{{:X}}}", c as u32)),
+                c => out.push(c),
+            }
+        }
+        for b in chunk.invalid() {
+            out.push_str(&format!("\\x{b:02X}"));
+        }
+    }
+    out
+}
+
+/// What makes `raw` unfit as a cell, if anything: bytes that are not
+/// UTF-8, or a control character other than a tab or a line end (which a
+/// quoted cell may hold).
+pub(crate) fn unfit(raw: &[u8]) -> Option<&'static str> {
+    if raw.iter().all(|&b| (0x20..0x7f).contains(&b)) {
+        return None;
+    }
+    match std::str::from_utf8(raw) {
+        Err(_) => Some("bytes that are not UTF-8 text (save the file as UTF-8)"),
+        Ok(s)
+            if s.chars()
+                .any(|c| c.is_control() && !matches!(c, '\t' | '\n' | '\r')) =>
+        {
+            Some("a control character")
+        }
+        Ok(_) => None,
     }
 }

@@ -15,7 +15,76 @@
 //! level was taken and why, for every report to repeat.
 
 use super::{Dataset, Sample};
-use crate::{Error, Result, Setting};
+use crate::{Advice, Error, Remedy, Result, Setting};
+
+/// The most levels a categorical column may have. Each level but the
+/// reference is a model term (a dummy); past this many, the models (and the
+/// multinomial ones, whose size grows with the square of the levels) no
+/// longer fit in reasonable time and memory, and few rows stand behind each
+/// level. A column with more is refused before any design is built, as is
+/// an identifier-like one ([`ID_LIKE_FROM`]).
+pub const MAX_LEVELS: usize = 100;
+
+/// The most levels a categorical exposure may have: each level is a target
+/// with its own contrast against the reference, and the exposure's
+/// multinomial model has as many coefficients as its levels less one times
+/// the covariate terms (with 100 levels and the nine NHEFS covariates, a
+/// run of `estimate` took 40 s; with 30, under a second).
+pub const MAX_EXPOSURE_LEVELS: usize = 20;
+
+/// A categorical column of at least this many levels with more than half as
+/// many levels as rows (fewer than two rows per level on average: mostly
+/// single rows, like an identifier) is refused: a dummy fitted to a single
+/// row only reproduces that row. Below this many levels, a small sample is
+/// left to the later checks (separation, aliased terms).
+pub const ID_LIKE_FROM: usize = 10;
+
+/// The refusal of categorical column `name` with `k` levels over `n`
+/// rows, if it has too many ([`MAX_LEVELS`], [`MAX_EXPOSURE_LEVELS`],
+/// [`ID_LIKE_FROM`]). `number`:
+/// a column of numbers taken as categorical because it was named so;
+/// `exposure`: the exposure (which cannot be made unobserved).
+fn check_levels(src: &str, name: &str, k: usize, n: usize, number: bool, exposure: bool) -> Result<()> {
+    let id_like = k >= ID_LIKE_FROM && 2 * k > n;
+    let most = if exposure { MAX_EXPOSURE_LEVELS } else { MAX_LEVELS };
+    if k <= most && !id_like {
+        return Ok(());
+    }
+    let why = if id_like {
+        "more than half as many levels as rows, like an identifier".to_string()
+    } else {
+        format!(
+            "more than the {most} a categorical {} may have",
+            if exposure { "exposure" } else { "column" }
+        )
+    };
+    let role = if exposure { "exposure" } else { "column" };
+    let e = Error::input(format!(
+        "{src}: column '{name}' has {k} levels over {n} complete rows ({why}); a categorical {role} \
+         enters the models as one term per level, which these rows cannot support: group its levels \
+         into fewer{}",
+        if exposure {
+            ""
+        } else {
+            " or drop it from the graph"
+        }
+    ));
+    let mut remedies = Vec::new();
+    if number {
+        remedies.push(Remedy::Omit(Setting::Categorical, vec![name.to_string()]));
+    }
+    if !exposure {
+        remedies.push(Remedy::Choose(Setting::Latent, vec![name.to_string()]));
+    }
+    Err(if remedies.is_empty() {
+        e
+    } else {
+        e.advised(Advice {
+            remedies,
+            purpose: "instead",
+        })
+    })
+}
 
 /// What a column is, over the analysis sample.
 #[derive(Debug, Clone, PartialEq)]
@@ -126,9 +195,13 @@ impl Frame {
     pub fn push_from(&mut self, data: &Dataset, sample: &Sample, name: &str, role: Role) -> Result<usize> {
         let col = data.require(name)?;
         let src = data.source();
+        let declared = matches!(role, Role::Covariate { categorical: true });
+        if matches!(role, Role::Covariate { .. }) && !declared && col.is_mostly_numbers() {
+            return Err(col.stray_error(src, name, true));
+        }
         let categorical = match role {
             Role::Number => false,
-            Role::Covariate { categorical } => categorical || col.is_text(),
+            Role::Covariate { .. } => declared || col.is_text(),
         };
         if !categorical {
             let v = col.numeric(src, name, "a number")?;
@@ -149,6 +222,7 @@ impl Frame {
                 "{src}: column '{name}' has no values in the sample"
             )));
         }
+        check_levels(src, name, levels.len(), self.n, !col.is_text(), false)?;
         Ok(self.push(name, Kind::Categorical { levels }, values))
     }
 
@@ -173,6 +247,9 @@ impl Frame {
         // The distinct values present in the sample, in sorted order, and
         // each row's index into them.
         let (codes, levels): (Vec<f64>, Vec<String>) = if col.is_text() {
+            if col.is_mostly_numbers() && !how.categorical {
+                return Err(col.stray_error(src, name, true));
+            }
             col.check_finite(src, name)?;
             let (codes, levels) = col.codes().expect("a text column has codes");
             code_levels(sample.keep.iter().map(|&i| codes[i]), levels)
@@ -241,6 +318,7 @@ impl Frame {
                         )
                     })?,
                 };
+                check_levels(src, name, k, self.n, !col.is_text(), true)?;
                 // The reference becomes code 0; the others keep their order.
                 let order: Vec<usize> = std::iter::once(at).chain((0..k).filter(|&j| j != at)).collect();
                 let mut recode = vec![0.0; k];

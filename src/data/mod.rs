@@ -13,10 +13,18 @@
 //!   fixed budget, so that repeated passes read them instead. The spline basis follows
 //!   Harrell, *Regression Modeling Strategies*, 2nd ed. (2015), sec. 2.4.5.
 //!
-//! Missing values are the tokens empty, `NA`, `NaN` and `.`; a row missing
-//! any column an analysis uses is dropped. Infinite values are never used:
-//! a column used by an analysis that holds one is an input error naming the
-//! line and column (mark the cell missing or recode it).
+//! Missing values are the tokens empty, `.`, `-`, `?`, Stata's `.a` to
+//! `.z`, and `NA`, `N/A`, `NaN`, `NULL`, `#N/A` in any ASCII case; the report counts the cells each token made missing, and a
+//! row missing any column an analysis uses is dropped. Infinite values are
+//! never used: a column used by an analysis that holds one is an input
+//! error naming the line and column (mark the cell missing or recode it).
+//! A cell of a column read holding a control character or bytes that are
+//! not UTF-8 is an input error naming its line and column, shown escaped.
+//!
+//! Coding a column ([`Frame`]) refuses two things up front, before any
+//! design is built: a column of numbers with a few stray cells, unless it
+//! is named categorical ([`Column::stray_error`]), and a categorical column
+//! with too many levels ([`MAX_LEVELS`], or an identifier-like one).
 
 mod column;
 mod design;
@@ -28,13 +36,15 @@ mod sample;
 mod spline;
 mod store;
 
-pub use column::{Cell, Column};
+pub use column::{Cell, Column, escaped};
 pub use design::{Design, DesignRows, Factor, Setting, Shape, Term, Transform, covariate_terms};
-pub use frame::{ExposureChoice, ExposureCoding, Frame, Kind, Role};
+pub use frame::{
+    ExposureChoice, ExposureCoding, Frame, ID_LIKE_FROM, Kind, MAX_EXPOSURE_LEVELS, MAX_LEVELS, Role,
+};
 pub(crate) use kernel::{expit_into, gram_lower_add};
 pub use pass::{BLOCK, Block, DenseRows, Rows, map_rows, reduce, reduce_into, with_buffer};
-pub use read::{Delimiter, ReadOptions};
-pub use sample::Sample;
+pub use read::{Delimiter, ReadOptions, compressed, not_text};
+pub use sample::{Sample, tokens_note};
 pub use spline::{rcs_basis, rcs_knots};
 pub use store::Store;
 

@@ -188,25 +188,27 @@ type Replayed<R> = std::io::Chain<std::io::Cursor<Vec<u8>>, R>;
 
 /// `reader` with its separator: `given`, or detected from the bytes
 /// before the header line's end (which are then read again).
+/// Refused when [`not_text`] finds them not to be delimited text.
 fn with_delimiter<R: Read>(
     mut reader: R,
     given: Option<Delimiter>,
     source: &str,
 ) -> Result<(Delimiter, Replayed<R>)> {
     let mut prefix = Vec::new();
-    if given.is_none() {
-        let mut buf = [0u8; 8192];
-        loop {
-            let n = reader.read(&mut buf).map_err(|e| Error::io(source, e))?;
-            prefix.extend_from_slice(&buf[..n]);
-            let has_line = prefix
-                .iter()
-                .skip_while(|&&b| b == b'\n' || b == b'\r')
-                .any(|&b| b == b'\n' || b == b'\r');
-            if n == 0 || has_line || prefix.len() >= SNIFF_LIMIT {
-                break;
-            }
+    let mut buf = [0u8; 8192];
+    loop {
+        let n = reader.read(&mut buf).map_err(|e| Error::io(source, e))?;
+        prefix.extend_from_slice(&buf[..n]);
+        let has_line = prefix
+            .iter()
+            .skip_while(|&&b| b == b'\n' || b == b'\r')
+            .any(|&b| b == b'\n' || b == b'\r');
+        if n == 0 || (has_line && prefix.len() >= 512) || prefix.len() >= SNIFF_LIMIT {
+            break;
         }
+    }
+    if let Some(what) = not_text(&prefix[..prefix.len().min(8192)]) {
+        return Err(Error::input(format!("{source}: {what}")));
     }
     let d = given.unwrap_or_else(|| Delimiter::sniff(&prefix));
     Ok((d, std::io::Cursor::new(prefix).chain(reader)))
@@ -221,9 +223,75 @@ fn csv_reader<R: Read>(reader: R, d: Delimiter) -> csv::Reader<R> {
         .from_reader(reader)
 }
 
-/// Is this cell a missing-value token (empty, NA, NaN, `.`)?
-pub(crate) fn is_missing_token(raw: &[u8]) -> bool {
-    matches!(raw, b"" | b"NA" | b"na" | b"NaN" | b"nan" | b".")
+/// The missing-value words exporters write, matched ignoring ASCII case.
+/// Words that name real levels (`none` for a dose group, `missing` for a
+/// tooth) are not among them: in a column of numbers they are reported as
+/// stray cells instead.
+const MISSING_WORDS: [&[u8]; 5] = [b"na", b"n/a", b"nan", b"null", b"#n/a"];
+
+/// Is this (trimmed) cell a missing-value token? The empty cell; `.`, `-`
+/// and `?`; Stata's extended missing codes `.a` to `.z` (lower case, as
+/// Stata writes them); and the words `NA`, `N/A`, `NaN`, `NULL` and `#N/A`
+/// in any ASCII case.
+pub(crate) fn missing_token(raw: &[u8]) -> bool {
+    match raw {
+        b"" | b"." | b"-" | b"?" => true,
+        [b'.', c] => c.is_ascii_lowercase(),
+        _ => raw.len() <= 7 && MISSING_WORDS.iter().any(|w| w.eq_ignore_ascii_case(raw)),
+    }
+}
+
+/// The compression format a file's first bytes announce (by its magic
+/// number), if any: gzip, zstd, bzip2, xz, zip or 7z.
+pub fn compressed(prefix: &[u8]) -> Option<&'static str> {
+    const MAGIC: [(&[u8], &str); 6] = [
+        (b"\x1f\x8b", "gzip"),
+        (b"\x28\xb5\x2f\xfd", "zstd"),
+        (b"BZh", "bzip2"),
+        (b"\xfd7zXZ\x00", "xz"),
+        (b"PK\x03\x04", "zip"),
+        (b"7z\xbc\xaf\x27\x1c", "7z"),
+    ];
+    MAGIC
+        .into_iter()
+        .find(|(magic, name)| {
+            prefix.starts_with(magic) && (*name != "bzip2" || prefix.get(3).is_some_and(u8::is_ascii_digit))
+        })
+        .map(|m| m.1)
+}
+
+/// What the first bytes of a file say when it is not delimited text: a
+/// compressed file ([`compressed`]), or binary data (a NUL byte, or many
+/// bytes that are neither UTF-8 text nor line ends and tabs).
+pub fn not_text(prefix: &[u8]) -> Option<String> {
+    if let Some(name) = compressed(prefix) {
+        return Some(format!(
+            "looks compressed ({name}); decompress it first: compressed input is not read"
+        ));
+    }
+    if let Some(at) = prefix.iter().position(|&b| b == 0) {
+        return Some(format!(
+            "is not delimited text: it holds binary data (a NUL byte at offset {at})"
+        ));
+    }
+    let bad = prefix
+        .utf8_chunks()
+        .map(|c| {
+            c.invalid().len()
+                + c.valid()
+                    .chars()
+                    .filter(|&ch| ch.is_control() && !matches!(ch, '\n' | '\r' | '\t'))
+                    .count()
+        })
+        .sum::<usize>();
+    // A text file in another encoding has a few such bytes; binary data
+    // has many.
+    (bad * 10 > prefix.len() && bad >= 4).then(|| {
+        format!(
+            "is not delimited text: {bad} of its first {} bytes are neither UTF-8 text nor line ends",
+            prefix.len()
+        )
+    })
 }
 
 fn trim(raw: &[u8]) -> &[u8] {
@@ -273,8 +341,15 @@ impl Dataset {
             for (j, col) in columns.iter_mut().enumerate() {
                 if let Some(c) = col {
                     let raw = trim(&rec[j]);
-                    if is_missing_token(raw) {
-                        c.push_missing();
+                    if missing_token(raw) {
+                        c.push_token(raw);
+                    } else if let Some(why) = super::column::unfit(raw) {
+                        return Err(Error::input(format!(
+                            "{source}:{line}:{}: the cell of column '{}' holds {why}: '{}'",
+                            j + 1,
+                            names[j],
+                            super::column::escaped(raw)
+                        )));
                     } else {
                         c.push(raw, line, j + 1);
                     }

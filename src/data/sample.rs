@@ -19,6 +19,11 @@ pub struct Sample {
     /// For each used column with missing values, the rows missing it (a row
     /// missing two columns counts once under each).
     pub dropped_by_column: BTreeMap<String, usize>,
+    /// For each used column with missing cells, the missing-value tokens
+    /// met (as written; `empty` for an empty cell) and how many cells each
+    /// made missing, in order of first appearance.
+    #[serde(skip)]
+    pub tokens_by_column: BTreeMap<String, Vec<(String, usize)>>,
     /// Row indices kept, in file order.
     #[serde(skip)]
     pub keep: Vec<usize>,
@@ -33,7 +38,11 @@ impl Dataset {
             .collect::<Result<Vec<_>>>()?;
         let mut complete = vec![true; self.nrows];
         let mut by_column = BTreeMap::new();
+        let mut tokens = BTreeMap::new();
         for (name, c) in names.iter().zip(&cols) {
+            if !c.missing_tokens.is_empty() {
+                tokens.insert(name.to_string(), c.missing_tokens.clone());
+            }
             let mut k = 0usize;
             for (i, ok) in complete.iter_mut().enumerate() {
                 if c.is_missing(i) {
@@ -51,7 +60,58 @@ impl Dataset {
             used: keep.len(),
             dropped: self.nrows - keep.len(),
             dropped_by_column: by_column,
+            tokens_by_column: tokens,
             keep,
         })
     }
+}
+
+impl Sample {
+    /// The warning that rows were dropped, with the rows each column cost
+    /// and the tokens read as missing in each (`None` when none was).
+    pub fn dropped_warning(&self) -> Option<String> {
+        if self.dropped == 0 {
+            return None;
+        }
+        let by: Vec<String> = self
+            .dropped_by_column
+            .iter()
+            .map(|(k, v)| format!("{k} {v}"))
+            .collect();
+        let tokens = tokens_note(&self.tokens_by_column)
+            .map(|t| format!("; {t}"))
+            .unwrap_or_default();
+        Some(format!(
+            "{} of {} rows dropped for missing values (by column: {}){tokens}",
+            self.dropped,
+            self.rows,
+            by.join(", "),
+        ))
+    }
+}
+
+/// "cells read as missing: a: empty 3, 'NA' 2; b: '?' 1", or `None`
+/// when every missing cell is empty.
+pub fn tokens_note(tokens: &BTreeMap<String, Vec<(String, usize)>>) -> Option<String> {
+    let only_empty = tokens.values().all(|t| t.iter().all(|(s, _)| s == "empty"));
+    if only_empty {
+        return None;
+    }
+    let by: Vec<String> = tokens
+        .iter()
+        .map(|(name, t)| {
+            let each: Vec<String> = t
+                .iter()
+                .map(|(s, k)| {
+                    if s == "empty" {
+                        format!("empty {k}")
+                    } else {
+                        format!("'{s}' {k}")
+                    }
+                })
+                .collect();
+            format!("{name}: {}", each.join(", "))
+        })
+        .collect();
+    Some(format!("cells read as missing: {}", by.join("; ")))
 }
