@@ -33,5 +33,6 @@ mod robust_first_hour;
 mod robust_flags;
 mod robust_graph;
 mod robust_props;
+mod robust_units;
 mod sensitivity;
 mod simulate;

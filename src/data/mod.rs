@@ -29,7 +29,10 @@ mod spline;
 mod store;
 
 pub use column::{Cell, Column};
-pub use design::{Design, DesignRows, Factor, Setting, Shape, Term, Transform, covariate_terms};
+pub use design::{
+    Design, DesignRows, Factor, Setting, Shape, Term, Transform, covariate_terms, largest_magnitude,
+    unit_scale,
+};
 pub use frame::{ExposureChoice, ExposureCoding, Frame, Kind, Role};
 pub(crate) use kernel::{expit_into, gram_lower_add};
 pub use pass::{BLOCK, Block, DenseRows, Rows, map_rows, reduce, reduce_into, with_buffer};
