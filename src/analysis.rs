@@ -358,6 +358,12 @@ pub fn run(plan: &Plan, data: &Dataset, opts: &Options) -> Result<Analysis> {
             bootstrap: None,
         }));
         if let Some(c) = curve(&problem, name, &t) {
+            let values: Vec<f64> = c
+                .points
+                .iter()
+                .flat_map(|q| [q.x, q.estimate, q.std_error, q.ci[0], q.ci[1]])
+                .collect();
+            estimate::finite_result(&values, &format!("a point of the {name} dose-response curve"))?;
             curves.push(c);
         }
         targets.push(t);
@@ -694,7 +700,7 @@ fn evalue_for(
     }
     let sd = match inputs {
         Some(s) => s.outcome_sd,
-        None => sd(p.y()),
+        None => estimate::sample_sd(p.y()),
     };
     evalue::continuous(e.estimate, e.std_error, sd, opts.model.level)
 }
@@ -751,12 +757,6 @@ fn interval_label(k: IntervalKind) -> &'static str {
         IntervalKind::Percentile => "percentile",
         IntervalKind::Normal => "normal",
     }
-}
-
-fn sd(y: &[f64]) -> f64 {
-    let n = y.len() as f64;
-    let m = y.iter().sum::<f64>() / n;
-    (y.iter().map(|v| (v - m) * (v - m)).sum::<f64>() / (n - 1.0)).sqrt()
 }
 
 fn robustness_for(

@@ -260,6 +260,7 @@ impl Problem {
         check_kinds(&frame, spec, outcome, exposure)?;
         check_groups(&frame, spec, exposure)?;
         warnings.extend(few_valued_exposure(&frame, spec, exposure));
+        warnings.extend(doses_outside(&frame, spec, exposure)?);
         let interact: Vec<usize> = spec
             .interact
             .iter()
@@ -605,6 +606,115 @@ fn few_valued_exposure(frame: &Frame, spec: &Spec, exposure: usize) -> Option<St
         values.len(),
         shown.join(", ")
     ))
+}
+
+/// A number for a message: as written for ordinary magnitudes, in
+/// exponent form (1e300, 2.5e-200) for the very large and very small.
+pub fn short_number(v: f64) -> String {
+    let a = v.abs();
+    if a == 0.0 || !a.is_finite() || (1e-5..1e15).contains(&a) {
+        format!("{v}")
+    } else {
+        format!("{v:e}")
+    }
+}
+
+/// How far outside the observed range of a dose a dose asked for may lie,
+/// in widths of that range, before it is refused rather than warned
+/// about: beyond that, an estimate there comes from the models' shapes
+/// alone, not from the data (a choice, no source).
+pub const FAR_OUTSIDE: f64 = 1.0;
+
+/// Least magnitude of a one-unit shift, relative to the largest magnitude
+/// of the exposure, that still changes the exposure's values by more
+/// than rounding (2^-26: at least half the digits of a double survive the
+/// difference of the two predictions).
+const SHIFT_RESOLUTION: f64 = 1.0 / (1u64 << 26) as f64;
+
+/// The doses asked of a continuous exposure (the curve's and the
+/// contrast's) against its observed range: one beyond the range by more
+/// than [`FAR_OUTSIDE`] times its width is refused, naming the setting
+/// and the range; one outside but nearer gives a warning (extrapolation).
+/// The default contrast, a one-unit increase, is refused when one unit is
+/// below the precision of the exposure's values, and warned about when it
+/// is wider than their whole range.
+fn doses_outside(frame: &Frame, spec: &Spec, exposure: usize) -> Result<Vec<String>> {
+    if frame.kind(exposure) != &Kind::Numeric {
+        return Ok(Vec::new());
+    }
+    let x = frame.col(exposure);
+    let (lo, hi) = x.iter().fold((f64::INFINITY, f64::NEG_INFINITY), |(l, h), &v| {
+        (l.min(v), h.max(v))
+    });
+    let width = hi - lo;
+    let range = format!(
+        "the observed range of '{}' is {} to {}",
+        spec.exposure,
+        short_number(lo),
+        short_number(hi)
+    );
+    let beyond = |v: f64| (lo - v).max(v - hi).max(0.0);
+    let mut warnings = Vec::new();
+    let asked: [(Opt, &str, Vec<f64>); 2] = [
+        (
+            Opt::At,
+            "dose-response curve",
+            spec.at.clone().unwrap_or_default(),
+        ),
+        (
+            Opt::Contrast,
+            "contrast",
+            spec.contrast.map_or_else(Vec::new, |(a, b)| vec![a, b]),
+        ),
+    ];
+    for (setting, what, doses) in asked {
+        let outside: Vec<f64> = doses.iter().copied().filter(|&v| beyond(v) > 0.0).collect();
+        if outside.is_empty() {
+            continue;
+        }
+        let list = outside
+            .iter()
+            .map(|&v| short_number(v))
+            .collect::<Vec<_>>()
+            .join(", ");
+        if outside.iter().any(|&v| beyond(v) > FAR_OUTSIDE * width) {
+            return Err(Error::option(
+                setting,
+                format!(
+                    "{list}: far outside the data ({range}, width {}; a dose may lie at most one width \
+                     beyond it): an estimate there would come from the models' shapes alone; choose doses \
+                     within or near the observed range",
+                    short_number(width)
+                ),
+            ));
+        }
+        warnings.push(format!(
+            "the {what} asks for doses outside the observed range ({list}; {range}): the estimates there \
+             are extrapolations that rest on the models' shapes"
+        ));
+    }
+    if spec.contrast.is_none() {
+        let largest = x.iter().fold(0.0f64, |m, v| m.max(v.abs()));
+        if 1.0 < SHIFT_RESOLUTION * largest {
+            return Err(Error::option(
+                Opt::Contrast,
+                format!(
+                    "is needed here: the default, a one-unit increase, is below the precision of the values \
+                     of '{}' (largest magnitude {}); give two doses to compare",
+                    spec.exposure,
+                    short_number(largest)
+                ),
+            ));
+        }
+        if 1.0 > width {
+            warnings.push(format!(
+                "the default contrast, a one-unit increase, is wider than the whole observed range ({range}): \
+                 it is an extrapolation that rests on the models' shapes; compare two doses within the range \
+                 instead"
+            ));
+        }
+    }
+    Ok(warnings)
 }
 
 /// Warnings for a sample small for its models (see [`ROWS_PER_TERM`]).

@@ -36,5 +36,6 @@ mod robust_graph;
 mod robust_inputs;
 mod robust_options;
 mod robust_props;
+mod robust_units;
 mod sensitivity;
 mod simulate;

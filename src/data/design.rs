@@ -8,6 +8,16 @@
 //! Term columns are centred at their sample means (a reparametrization that
 //! keeps every prediction and slope; it only moves the intercept, see
 //! [`Design::uncenter`]) so that cross-products stay well conditioned.
+//!
+//! Units: before any term is formed, each numeric column (and a dose set
+//! by a [`Setting`]) is divided by the power of two nearest above its
+//! largest absolute value, so every column a model sees lies within
+//! [-1, 1] whatever the units of the data (a value of 1e150 or 1e-150 is
+//! then as easy as 1; a spline's cubes do not overflow). Dividing by a
+//! power of two is exact in floating point and commutes with rounding, so
+//! every fit, prediction and test statistic is the same, bit for bit, as
+//! on the raw values whenever those do not overflow; only a coefficient
+//! read on its own changes units, by [`Design::term_scale`].
 
 use super::{BLOCK, Frame, Kind, Rows, Store, rcs_basis, rcs_knots, reduce};
 use nalgebra::{DMatrix, DVector};
@@ -98,6 +108,36 @@ pub struct Design {
     terms: Vec<Term>,
     centers: Vec<f64>,
     exposure: Option<usize>,
+    /// Per frame column, the power of two its values are multiplied by
+    /// before terms are formed (1 for columns of codes; see the module
+    /// note).
+    unit: Vec<f64>,
+}
+
+/// The power of two that brings values of largest magnitude `largest`
+/// into [-1, 1] (between 1/2 and 1 in magnitude): 2^-e with `e` the
+/// smallest integer such that `largest <= 2^e`, kept within the range of
+/// normal numbers; 1 for zero or a non-finite value.
+pub fn unit_scale(largest: f64) -> f64 {
+    if !(largest.is_finite() && largest > 0.0) {
+        return 1.0;
+    }
+    let e = largest.log2().ceil().clamp(-1000.0, 1000.0) as i32;
+    // log2 may round near a power of two: settle e exactly.
+    let e = if 2f64.powi(e) < largest { e + 1 } else { e };
+    let e = if 2f64.powi(e - 1) >= largest { e - 1 } else { e };
+    2f64.powi(-e)
+}
+
+/// The largest finite absolute value of `x` (0 when there is none).
+pub fn largest_magnitude(x: &[f64]) -> f64 {
+    x.par_chunks(1 << 16)
+        .map(|c| {
+            c.iter()
+                .filter(|v| v.is_finite())
+                .fold(0.0f64, |m, v| m.max(v.abs()))
+        })
+        .reduce(|| 0.0, f64::max)
 }
 
 /// The terms of one covariate column under `shape`.
@@ -197,13 +237,45 @@ impl Design {
 
     /// A design from explicit terms, centred over `frame`.
     pub fn from_terms(frame: &Frame, terms: Vec<Term>, exposure: Option<usize>) -> Design {
+        let mut unit = vec![1.0; frame.ncols()];
+        for t in &terms {
+            for f in &t.factors {
+                let numeric = frame.kind(f.col) == &Kind::Numeric;
+                if numeric && !matches!(f.transform, Transform::Level(_)) && unit[f.col] == 1.0 {
+                    unit[f.col] = unit_scale(largest_magnitude(frame.col(f.col)));
+                }
+            }
+        }
         let mut d = Design {
             centers: vec![0.0; terms.len()],
             terms,
             exposure,
+            unit,
         };
         d.recenter(frame);
         d
+    }
+
+    /// The factor `g` by which term `j`'s column (before centring) is the
+    /// raw term's: its coefficient on the raw values is `g` times the one
+    /// fitted here (and so its standard error); 1 for terms of codes.
+    pub fn term_scale(&self, j: usize) -> f64 {
+        self.terms[j]
+            .factors
+            .iter()
+            .map(|f| {
+                let u = self.unit_of(f.col);
+                match f.transform {
+                    Transform::Linear | Transform::Spline { .. } => u,
+                    Transform::Square => u * u,
+                    Transform::Level(_) => 1.0,
+                }
+            })
+            .product()
+    }
+
+    fn unit_of(&self, col: usize) -> f64 {
+        self.unit.get(col).copied().unwrap_or(1.0)
     }
 
     fn recenter(&mut self, frame: &Frame) {
@@ -289,6 +361,7 @@ impl Design {
                 .map(|j| self.centers[j])
                 .collect(),
             exposure: self.exposure,
+            unit: self.unit.clone(),
         }
     }
 
@@ -343,11 +416,12 @@ impl Design {
     }
 
     /// Coefficients and covariance of the uncentred parametrization (raw
-    /// term values) from those of the centred one: only the intercept
-    /// changes, b0 = b0c - sum_j c_j b_j.
+    /// term values) from those of the centred, scaled one: b_j = g_j b_jc
+    /// with g_j the [`Design::term_scale`], and the intercept b0 = b0c -
+    /// sum_j c_j b_jc.
     pub fn uncenter(&self, beta: &DVector<f64>, cov: &DMatrix<f64>) -> (DVector<f64>, DMatrix<f64>) {
         let p = self.terms.len();
-        let mut t = DMatrix::<f64>::identity(p, p);
+        let mut t = DMatrix::<f64>::from_diagonal(&DVector::from_fn(p, |j, _| self.term_scale(j)));
         if let Some(i0) = self.terms.iter().position(Term::is_intercept) {
             for j in 0..p {
                 if j != i0 {
@@ -423,10 +497,16 @@ impl<'a> DesignRows<'a> {
             (true, Setting::Shift(d)) => (1.0, d),
             _ => (1.0, 0.0),
         };
+        // In the column's unit (exact: a power of two), see the module note.
+        let u = self.design.unit_of(f.col);
+        let (a, b) = (a * u, b * u);
         match &f.transform {
             Transform::Linear => apply(src, out, multiply, |x| a * x + b),
             Transform::Square => apply(src, out, multiply, |x| (a * x + b) * (a * x + b)),
-            Transform::Spline { knots, j } => apply(src, out, multiply, |x| rcs_basis(a * x + b, knots, *j)),
+            Transform::Spline { knots, j } => {
+                let knots: Vec<f64> = knots.iter().map(|k| k * u).collect();
+                apply(src, out, multiply, |x| rcs_basis(a * x + b, &knots, *j));
+            }
             Transform::Level(c) => apply(src, out, multiply, |x| f64::from(u8::from(a * x + b == *c))),
         }
     }

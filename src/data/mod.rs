@@ -37,7 +37,10 @@ mod spline;
 mod store;
 
 pub use column::{Cell, Column, escaped};
-pub use design::{Design, DesignRows, Factor, Setting, Shape, Term, Transform, covariate_terms};
+pub use design::{
+    Design, DesignRows, Factor, Setting, Shape, Term, Transform, covariate_terms, largest_magnitude,
+    unit_scale,
+};
 pub use frame::{
     ExposureChoice, ExposureCoding, Frame, ID_LIKE_FROM, Kind, MAX_EXPOSURE_LEVELS, MAX_LEVELS, Role,
 };

@@ -120,7 +120,7 @@ pub fn point(p: &Points, c: &ContrastSpec, scale: Scale) -> f64 {
 
 /// A single target's normal interval (a point of a curve).
 pub fn target_interval(t: &Targets, k: usize, level: f64) -> (f64, [f64; 2]) {
-    let se = t.influence[k].iter().map(|x| x * x).sum::<f64>().sqrt();
+    let se = root_sum_squares(t.influence[k].iter().copied());
     let z = z_value(level);
     let v = t.values[k];
     (se, [v - z * se, v + z * se])
@@ -159,6 +159,23 @@ fn check_risk(mu1: f64, mu0: f64, odds: bool) -> Result<()> {
 }
 
 /// Estimate, standard error and interval.
+/// sqrt(sum x²), the standard error from influence values: the plain sum
+/// when its squares neither overflow nor underflow, else the same sum over
+/// values divided by the largest magnitude (so that influence values of an
+/// outcome measured in units of 1e160 or 1e-160 still give a finite,
+/// nonzero standard error).
+pub fn root_sum_squares(x: impl Iterator<Item = f64> + Clone) -> f64 {
+    let plain = x.clone().map(|v| v * v).sum::<f64>().sqrt();
+    if plain.is_finite() && plain > 1e-150 {
+        return plain;
+    }
+    let m = x.clone().fold(0.0f64, |m, v| m.max(v.abs()));
+    if !(m > 0.0 && m.is_finite()) {
+        return plain;
+    }
+    m * x.map(|v| (v / m) * (v / m)).sum::<f64>().sqrt()
+}
+
 pub(crate) fn interval(scale: Scale, arms: &Arms<'_>, level: f64) -> Result<(f64, f64, [f64; 2])> {
     let est = effect(scale, arms.mu1, arms.mu0)?;
     let (d1, d0) = match scale {
@@ -169,13 +186,7 @@ pub(crate) fn interval(scale: Scale, arms: &Arms<'_>, level: f64) -> Result<(f64
             1.0 / (arms.mu0 * (1.0 - arms.mu0)),
         ),
     };
-    let var: f64 = arms
-        .phi1
-        .iter()
-        .zip(arms.phi0)
-        .map(|(a, b)| (d1 * a - d0 * b).powi(2))
-        .sum();
-    let se = var.sqrt();
+    let se = root_sum_squares(arms.phi1.iter().zip(arms.phi0).map(|(a, b)| d1 * a - d0 * b));
     if !se.is_finite() {
         return Err(Error::Numerical("the standard error is not finite".into()));
     }

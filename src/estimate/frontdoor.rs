@@ -205,13 +205,16 @@ fn linear(p: &Problem, freq: Option<&[f64]>, with_se: bool) -> Result<LinearFit>
         let name = p.frame.name(m);
         let jm = dy
             .position(name)
-            .ok_or_else(|| Error::Numerical(format!("mediator term {name} lost")))?;
-        let (alpha, beta) = (bm[ax], by[jm]);
+            .ok_or_else(|| Error::Internal(format!("mediator term {name} lost")))?;
+        // Coefficients on the raw values (the designs work in scaled units).
+        let (ga, gm) = (dm.term_scale(ax), dy.term_scale(jm));
+        let (alpha, beta) = (bm[ax] * ga, by[jm] * gm);
         effect += alpha * beta;
         if let Some(phi) = phi.as_mut() {
-            let unit = |len: usize, j: usize| DVector::from_fn(len, |i, _| f64::from(u8::from(i == j)));
-            let ia = linear_predictor(&rm, &cm.solve(&unit(dm.ncols(), ax)));
-            let ib = linear_predictor(&ry, &cy.solve(&unit(dy.ncols(), jm)));
+            let unit =
+                |len: usize, j: usize, g: f64| DVector::from_fn(len, |i, _| if i == j { g } else { 0.0 });
+            let ia = linear_predictor(&rm, &cm.solve(&unit(dm.ncols(), ax, ga)));
+            let ib = linear_predictor(&ry, &cy.solve(&unit(dy.ncols(), jm, gm)));
             let rm_res = resid(&dm, &bm, mv);
             for i in 0..p.n() {
                 phi[i] += beta * ia[i] * rm_res[i] + alpha * ib[i] * ry_res[i];

@@ -40,7 +40,7 @@ pub use frontdoor::FrontDoor;
 pub use ipw::Ipw;
 pub use regression::Regression;
 pub use result::{Estimate, Means, z_value};
-pub use sensitivity::{SensitivityInputs, TermStat, level_coefficients, sensitivity_inputs};
+pub use sensitivity::{SensitivityInputs, TermStat, level_coefficients, sample_sd, sensitivity_inputs};
 pub use targets::{ExposureKind, Points, Serves, Target, Targets};
 
 pub use crate::problem::{Estimand, Problem, Scale, Spec};
@@ -189,6 +189,13 @@ pub fn rows(e: &dyn Estimator, p: &Problem, fits: &Fits) -> Result<(Vec<Estimate
             continue;
         };
         let f = formed?;
+        finite_result(
+            &[f.estimate, f.std_error, f.ci[0], f.ci[1]],
+            &match &c.label {
+                Some(l) => format!("the {} estimate ({})", e.about().name, l.words()),
+                None => format!("the {} estimate", e.about().name),
+            },
+        )?;
         out.push(Estimate {
             method: e.about().name.into(),
             estimand: p.spec.estimand,
@@ -209,6 +216,25 @@ pub fn rows(e: &dyn Estimator, p: &Problem, fits: &Fits) -> Result<(Vec<Estimate
         });
     }
     Ok((out, t))
+}
+
+/// The one guard between the numbers an estimator forms and a result
+/// that is printed: every value of `what` (an estimate, its standard
+/// error and interval, a curve point, a sensitivity number) must be a
+/// finite number, else an error that says so instead of "NaN" or "inf" in
+/// any format. Within the range of the data every fit is scale-free (see
+/// [`crate::data::Design`]), so a value that is not finite comes from the
+/// data themselves (values near the largest a double holds) or from
+/// settings far from them.
+pub fn finite_result(values: &[f64], what: &str) -> Result<()> {
+    if values.iter().all(|v| v.is_finite()) {
+        return Ok(());
+    }
+    Err(Error::input(format!(
+        "{what} is not a finite number (its computation exceeds the range of double-precision values): \
+         check the units of the outcome and of the exposure, and that the doses or levels compared lie \
+         within the data"
+    )))
 }
 
 /// A replicate's contrast values, in the order of [`rows`] for the same
@@ -257,7 +283,7 @@ impl Method {
         let (rows, _) = rows(self.0, p, &self.fits(p))?;
         rows.into_iter()
             .next()
-            .ok_or_else(|| Error::Numerical(format!("{} forms no contrast here", self.0.about().name)))
+            .ok_or_else(|| Error::Internal(format!("{} forms no contrast here", self.0.about().name)))
     }
 
     /// The first contrast under frequency weights `freq`, its models
@@ -272,7 +298,7 @@ impl Method {
             .contrasts()
             .into_iter()
             .next()
-            .ok_or_else(|| Error::Numerical("no contrast".into()))?;
+            .ok_or_else(|| Error::Internal("no contrast".into()))?;
         let v = contrast::point(&points, &c, p.spec.scale);
         if v.is_finite() {
             Ok(v)

@@ -56,7 +56,7 @@ pub fn sensitivity_inputs(p: &Problem) -> Result<Option<SensitivityInputs>> {
     let ja = p
         .adjusted
         .exposure_term()
-        .ok_or_else(|| Error::Numerical("no exposure term".into()))?;
+        .ok_or_else(|| Error::Internal("no exposure term".into()))?;
     let (to, te) = (out.t(), exp.t());
     let terms = p
         .propensity
@@ -74,13 +74,12 @@ pub fn sensitivity_inputs(p: &Problem) -> Result<Option<SensitivityInputs>> {
             t_exposure: te[j],
         })
         .collect();
-    let y = p.y();
-    let n = y.len() as f64;
-    let m = y.iter().sum::<f64>() / n;
-    let sd = (y.iter().map(|v| (v - m) * (v - m)).sum::<f64>() / (n - 1.0)).sqrt();
+    let sd = sample_sd(p.y());
+    // On the raw values (the design works in scaled units).
+    let g = p.adjusted.term_scale(ja);
     Ok(Some(SensitivityInputs {
-        estimate: out.coef[ja],
-        std_error: out.se()[ja],
+        estimate: out.coef[ja] * g,
+        std_error: out.se()[ja] * g,
         t: to[ja],
         df: out.df,
         df_exposure: exp.df,
@@ -101,6 +100,17 @@ pub fn level_coefficients(p: &Problem) -> Result<Vec<(f64, f64, f64)>> {
     Ok(p.adjusted
         .exposure_terms()
         .into_iter()
-        .map(|j| (out.coef[j], se[j], out.df))
+        .map(|j| {
+            let g = p.adjusted.term_scale(j);
+            (out.coef[j] * g, se[j] * g, out.df)
+        })
         .collect())
+}
+
+/// The sample standard deviation (n - 1 divisor), its squares rescaled
+/// when they would overflow or underflow (an outcome in units of 1e160).
+pub fn sample_sd(y: &[f64]) -> f64 {
+    let n = y.len() as f64;
+    let m = y.iter().sum::<f64>() / n;
+    super::contrast::root_sum_squares(y.iter().map(|v| v - m)) / (n - 1.0).sqrt()
 }

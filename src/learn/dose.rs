@@ -9,6 +9,7 @@
 //! exposure.
 
 use super::Nuisance;
+use crate::data::{largest_magnitude, unit_scale};
 use crate::model::{Ols, linear_predictor};
 use crate::problem::Problem;
 use crate::{Error, Result};
@@ -17,7 +18,8 @@ use nalgebra::DVector;
 /// A fitted exposure density and the stabilised weights.
 #[derive(Debug, Clone)]
 pub struct DoseDensity {
-    /// Coefficients of the exposure's linear model.
+    /// Coefficients of the exposure's linear model (in the exposure's
+    /// units per unit of the propensity design's scaled terms).
     pub coef: DVector<f64>,
     /// Its residual standard deviation.
     pub sigma: f64,
@@ -39,7 +41,13 @@ fn density(z: f64, sd: f64) -> f64 {
 impl Nuisance for DoseDensity {
     fn fit(p: &Problem, w: Option<&[f64]>, _full: Option<&DoseDensity>) -> Result<DoseDensity> {
         let rows = p.propensity_rows();
-        let a = p.a();
+        // In the exposure's unit (a power of two, exact), so that squares
+        // of doses of any magnitude stay finite; the weights and standard
+        // scores do not depend on it, the reported mean and spreads are
+        // given back in the data's units.
+        let unit = unit_scale(largest_magnitude(p.a()));
+        let scaled: Vec<f64> = p.a().iter().map(|x| x * unit).collect();
+        let a = &scaled[..];
         let ols = Ols::fit(&rows, a, w)?;
         if ols.df <= 0.0 {
             return Err(Error::Numerical(
@@ -65,10 +73,10 @@ impl Nuisance for DoseDensity {
             .map(|(&x, &zi)| density((x - mean) / sd, sd) / density(zi, sigma))
             .collect();
         Ok(DoseDensity {
-            coef: ols.coef,
-            sigma,
-            mean,
-            sd,
+            coef: ols.coef / unit,
+            sigma: sigma / unit,
+            mean: mean / unit,
+            sd: sd / unit,
             z,
             weights,
         })

@@ -126,7 +126,7 @@ impl Fits {
     pub fn propensity(&self) -> Result<&Propensity> {
         match self.exposure()? {
             ExposureModel::Binary(m) => Ok(m),
-            _ => Err(Error::Numerical("no binary propensity model".into())),
+            _ => Err(Error::Internal("no binary propensity model".into())),
         }
     }
 
@@ -134,7 +134,7 @@ impl Fits {
     pub fn levels(&self) -> Result<&LevelPropensity> {
         match self.exposure()? {
             ExposureModel::Levels(m) => Ok(m),
-            _ => Err(Error::Numerical("no multinomial propensity model".into())),
+            _ => Err(Error::Internal("no multinomial propensity model".into())),
         }
     }
 
@@ -142,7 +142,7 @@ impl Fits {
     pub fn dose(&self) -> Result<&DoseDensity> {
         match self.exposure()? {
             ExposureModel::Dose(m) => Ok(m),
-            _ => Err(Error::Numerical("no exposure density model".into())),
+            _ => Err(Error::Internal("no exposure density model".into())),
         }
     }
 }
@@ -155,12 +155,13 @@ fn available<'a, T>(slot: &'a Option<Result<T>>, what: &str) -> Result<&'a T> {
         Some(Err(e)) => Err(match e {
             Error::Separation(m) => Error::Separation(m.clone()),
             Error::Numerical(m) => Error::Numerical(m.clone()),
+            Error::Internal(m) => Error::Internal(m.clone()),
             Error::Option { setting, message } => Error::Option {
                 setting: *setting,
                 message: message.clone(),
             },
             other => Error::Input(other.to_string()),
         }),
-        None => Err(Error::Numerical(format!("the {what} model was not fitted"))),
+        None => Err(Error::Internal(format!("the {what} model was not fitted"))),
     }
 }

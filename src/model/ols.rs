@@ -44,7 +44,12 @@ impl Ols {
             (wi, wi * y[i], wi, 0.0)
         });
         if !c.xtu.iter().all(|v| v.is_finite()) {
-            return Err(Error::Numerical("least squares: non-finite values".into()));
+            // Every design column lies within [-1, 1] (see `data::Design`),
+            // so only a response near the largest double overflows here.
+            return Err(Error::input(
+                "least squares: the sums of the modelled values exceed the range of double-precision \
+                 numbers (values near 1.8e308): rescale the column (for example to other units)",
+            ));
         }
         let chol = Chol::new(&c.xtx, ALIAS_TOL);
         if chol.rank() == 0 {

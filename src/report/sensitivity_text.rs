@@ -23,6 +23,9 @@ pub fn sig(v: f64, digits: usize) -> String {
         return "0".to_string();
     }
     let mag = v.abs().log10().floor() as i32;
+    if !(-6..15).contains(&mag) {
+        return format!("{v:.prec$e}", prec = digits.saturating_sub(1));
+    }
     let decimals = (digits as i32 - 1 - mag).clamp(0, 12) as usize;
     format!("{v:.decimals$}")
 }
@@ -198,7 +201,7 @@ pub fn robustness_section(c: &Coefficient, rv: &RobustnessValue) -> String {
         s,
         "Partial R\u{b2} scale (robustness value; linear-regression coefficient)"
     );
-    let df = if c.df.fract() == 0.0 {
+    let df = if c.df.fract() == 0.0 && c.df < 1e15 {
         format!("{:.0}", c.df)
     } else {
         sig(c.df, 4)
@@ -218,10 +221,15 @@ pub fn robustness_section(c: &Coefficient, rv: &RobustnessValue) -> String {
         (
             "the coefficient".to_string(),
             format!(
-                "{}, standard error {}, t = {:.2}, {df} residual df",
+                "{}, standard error {}, {}, {} residual df",
                 sig(c.estimate, 3),
                 sig(c.se, 3),
-                c.t()
+                if c.t().is_finite() {
+                    format!("t = {:.2}", c.t())
+                } else {
+                    "|t| above 1.8e308".to_string()
+                },
+                df
             ),
         ),
         (

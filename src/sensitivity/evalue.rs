@@ -24,6 +24,7 @@
 
 use crate::dist::normal_critical;
 use crate::error::Setting;
+use crate::problem::short_number;
 use crate::{Error, Result};
 use serde::Serialize;
 
@@ -62,14 +63,55 @@ pub struct EValue {
 
 /// The E-value of a risk ratio `rr` > 0: `RR + sqrt(RR (RR - 1))` after
 /// inverting a risk ratio below 1. The E-value of 1 is 1.
+///
+/// Written so that no intermediate overflows or cancels: `RR + sqrt(RR)
+/// sqrt(RR - 1)` for RR >= 1 and `(1 + sqrt(1 - RR)) / RR` below 1 (RR - 1
+/// and 1 - RR are exact near 1), so every E-value that is a finite
+/// double-precision number is found to rounding; one beyond that range (a
+/// ratio above about 9e307 or below about 1.1e-308) is refused with a
+/// message rather than printed as infinite.
 pub fn evalue_of(rr: f64) -> Result<f64> {
-    if !(rr > 0.0 && rr.is_finite()) {
-        return Err(Error::input(format!(
+    check_ratio(rr)?;
+    let e = if rr >= 1.0 {
+        rr + rr.sqrt() * (rr - 1.0).sqrt()
+    } else {
+        (1.0 + (1.0 - rr).sqrt()) / rr
+    };
+    representable(e, &format!("a risk ratio of {}", short_number(rr)))
+}
+
+fn check_ratio(rr: f64) -> Result<()> {
+    if rr > 0.0 && rr.is_finite() {
+        Ok(())
+    } else {
+        Err(Error::input(format!(
             "an E-value needs a positive, finite risk ratio (got {rr})"
-        )));
+        )))
     }
-    let r = if rr < 1.0 { 1.0 / rr } else { rr };
-    Ok(r + (r * (r - 1.0)).sqrt())
+}
+
+/// The E-value of the risk ratio `exp(x)`, from its logarithm `x` (so that a
+/// ratio beyond the range of doubles, as from a large standardized
+/// difference, still has one when the E-value itself is in range):
+/// `e^|x| + sqrt(e^|x| expm1(|x|))`.
+fn evalue_of_log(x: f64, what: &str) -> Result<f64> {
+    let a = x.abs();
+    let r = a.exp();
+    representable(r + r.sqrt() * a.exp_m1().sqrt(), what)
+}
+
+/// `e` when it is a finite number; else a message that the E-value of
+/// `what` lies beyond the range of double-precision numbers.
+fn representable(e: f64, what: &str) -> Result<f64> {
+    if e.is_finite() {
+        Ok(e)
+    } else {
+        Err(Error::input(format!(
+            "the E-value of {what} is beyond the largest number a double-precision value holds (about \
+             1.8e308): no confounder of any plausible strength explains such an association away; check \
+             that the number was entered as intended"
+        )))
+    }
 }
 
 /// The E-value of the confidence limit nearest the null for a risk ratio
@@ -130,7 +172,7 @@ pub fn odds_ratio(or: f64, ci: Option<(f64, f64)>, common_outcome: bool) -> Resu
     if let Some((lo, hi)) = ci {
         check_ratio_ci(or, lo, hi)?;
     } else {
-        evalue_of(or)?;
+        check_ratio(or)?;
     }
     if common_outcome {
         let ci = ci.map(|(lo, hi)| (lo.sqrt(), hi.sqrt()));
@@ -141,12 +183,17 @@ pub fn odds_ratio(or: f64, ci: Option<(f64, f64)>, common_outcome: bool) -> Resu
 }
 
 /// The approximate risk ratio for a hazard ratio of a common outcome:
-/// `(1 - 0.5^sqrt(HR)) / (1 - 0.5^sqrt(1/HR))`.
+/// `(1 - 0.5^sqrt(HR)) / (1 - 0.5^sqrt(1/HR))`, computed as
+/// `expm1(-ln 2 sqrt(HR)) / expm1(-ln 2 / sqrt(HR))` so that neither
+/// difference from 1 cancels (a hazard ratio of 1e300 gives about 1.4e150,
+/// not infinity).
 pub fn hazard_to_risk_ratio(hr: f64) -> f64 {
     if hr == 1.0 {
         return 1.0;
     }
-    (1.0 - 0.5f64.powf(hr.sqrt())) / (1.0 - 0.5f64.powf((1.0 / hr).sqrt()))
+    let s = hr.sqrt();
+    let ln2 = std::f64::consts::LN_2;
+    (-ln2 * s).exp_m1() / (-ln2 / s).exp_m1()
 }
 
 /// E-value for a hazard ratio. With `common_outcome` (outcome common by
@@ -156,7 +203,7 @@ pub fn hazard_ratio(hr: f64, ci: Option<(f64, f64)>, common_outcome: bool) -> Re
     if let Some((lo, hi)) = ci {
         check_ratio_ci(hr, lo, hi)?;
     } else {
-        evalue_of(hr)?;
+        check_ratio(hr)?;
     }
     if common_outcome {
         let ci = ci.map(|(lo, hi)| (hazard_to_risk_ratio(lo), hazard_to_risk_ratio(hi)));
@@ -179,9 +226,25 @@ pub fn standardized_difference(d: f64, se: f64, level: f64) -> Result<EValue> {
         ));
     }
     let z = normal_critical(level)?;
-    let rr = (0.91 * d).exp();
-    let ci = ((0.91 * (d - z * se)).exp(), (0.91 * (d + z * se)).exp());
-    from_rr(SCALE_SMD, rr, Some(ci))
+    // On the log scale: exp(0.91 d) overflows long before its E-value does.
+    let (x, lo, hi) = (0.91 * d, 0.91 * (d - z * se), 0.91 * (d + z * se));
+    let what = |v: f64| format!("a standardized difference of {}", short_number(v / 0.91));
+    let point = evalue_of_log(x, &what(x))?;
+    let ci_limit = if lo <= 0.0 && hi >= 0.0 {
+        1.0
+    } else {
+        let near = if x > 0.0 { lo } else { hi };
+        evalue_of_log(near, &what(near))?
+    };
+    Ok(EValue {
+        scale: SCALE_SMD.to_string(),
+        point,
+        ci_limit: Some(ci_limit),
+        rr: x.exp(),
+        // The interval on the risk-ratio scale, when its limits are
+        // numbers (a huge standard error sends them to 0 and infinity).
+        rr_ci: Some((lo.exp(), hi.exp())).filter(|(a, b)| *a > 0.0 && b.is_finite()),
+    })
 }
 
 /// E-value for a difference in means of a continuous outcome (for example a

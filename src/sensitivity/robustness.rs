@@ -41,6 +41,7 @@
 
 use crate::dist::t_critical;
 use crate::error::Setting;
+use crate::problem::short_number;
 use crate::{Error, Result};
 use serde::Serialize;
 
@@ -93,9 +94,24 @@ impl Coefficient {
 
 /// The partial R² of a regressor whose t statistic is `t`, in a regression
 /// with `df` residual degrees of freedom: t² / (t² + df).
+///
+/// When t² or t² + df overflows it is written as `1 / (1 + (sqrt(df) /
+/// t)²)` (a t of 1e200, or an infinite one from an estimate over a tiny
+/// standard error, gives 1 to rounding); and when t² underflows as
+/// `f² / (1 + f²)` with f = t / sqrt(df).
 pub fn partial_r2(t: f64, df: f64) -> f64 {
     let t2 = t * t;
-    t2 / (t2 + df)
+    if t2.is_finite() && (t2 + df).is_finite() && (t2 > 0.0 || t == 0.0) {
+        return t2 / (t2 + df);
+    }
+    let (t, s) = (t.abs(), df.sqrt());
+    if t > s {
+        let u = s / t;
+        1.0 / (1.0 + u * u)
+    } else {
+        let f = t / s;
+        f * f / (1.0 + f * f)
+    }
 }
 
 /// Robustness values of a coefficient.
@@ -114,9 +130,15 @@ pub struct RobustnessValue {
     pub partial_r2_exposure: f64,
 }
 
+/// RV = (sqrt(f⁴ + 4 f²) - f²) / 2, written as 2 f / (f + sqrt(f² + 4))
+/// (the same number, multiplied above and below by the conjugate) so that
+/// nothing overflows or cancels: a tiny f gives f, a huge (or infinite)
+/// one 1 - 1/f², that is 1.
 fn rv_of_f(f: f64) -> f64 {
-    let f2 = f * f;
-    ((f2 * f2 + 4.0 * f2).sqrt() - f2) / 2.0
+    if f > 1e8 {
+        return 1.0 - (1.0 / f) * (1.0 / f);
+    }
+    2.0 * f / (f + f.hypot(2.0))
 }
 
 /// f* = |t*_{α/2, df-1}| / sqrt(df - 1).
@@ -156,16 +178,28 @@ pub fn robustness_value(c: &Coefficient, q: f64, alpha: f64) -> Result<Robustnes
     let rv_alpha = if fq <= fs {
         0.0
     } else if fq > 1.0 / fs {
-        (fq * fq - fs * fs) / (1.0 + fq * fq)
+        // (fq² - fs²) / (1 + fq²) over fq², so that a huge fq does not overflow.
+        let (r, u) = (fs / fq, 1.0 / fq);
+        (1.0 - r * r) / (1.0 + u * u)
     } else {
         rv_of_f(fq - fs)
     };
+    let partial_r2_exposure = c.partial_r2();
+    if !(rv.is_finite() && rv_alpha.is_finite() && partial_r2_exposure.is_finite()) {
+        return Err(Error::input(format!(
+            "no robustness value for the estimate {}, standard error {} and {} degrees of freedom: \
+             its computation leaves the range of double-precision values",
+            short_number(c.estimate),
+            short_number(c.se),
+            short_number(c.df)
+        )));
+    }
     Ok(RobustnessValue {
         q,
         alpha,
         rv,
         rv_alpha,
-        partial_r2_exposure: c.partial_r2(),
+        partial_r2_exposure,
     })
 }
 
@@ -205,16 +239,29 @@ pub fn adjust(c: &Coefficient, r2_exposure: f64, r2_outcome: f64, alpha: f64) ->
     check_r2(r2_outcome, Setting::R2Outcome)?;
     check_alpha(alpha)?;
     let (rdz, ryz, df) = (r2_exposure, r2_outcome, c.df);
-    let bias = c.se * (df * ryz * rdz / (1.0 - rdz)).sqrt();
-    let se = c.se * ((1.0 - ryz) / (1.0 - rdz) * df / (df - 1.0)).sqrt();
+    // Square roots taken apart, so that se · sqrt(df) is formed only when
+    // the bias itself is in range.
+    let bias = c.se * df.sqrt() * (ryz * rdz / (1.0 - rdz)).sqrt();
+    let se = c.se * ((1.0 - ryz) / (1.0 - rdz)).sqrt() * (df / (df - 1.0)).sqrt();
     let sign = if c.estimate < 0.0 { -1.0 } else { 1.0 };
     let estimate = c.estimate - sign * bias;
     let t = t_critical(1.0 - alpha, df - 1.0)?;
+    let ci = [estimate - t * se, estimate + t * se];
+    if !(estimate.is_finite() && ci.iter().all(|v| v.is_finite())) {
+        return Err(Error::input(format!(
+            "the bias-adjusted estimate or interval for partial R² {rdz} (exposure) and {ryz} (outcome) \
+             is beyond the largest number a double-precision value holds (about 1.8e308): the estimate \
+             {}, its standard error {} and {} degrees of freedom are too extreme for this adjustment",
+            short_number(c.estimate),
+            short_number(c.se),
+            short_number(df)
+        )));
+    }
     Ok(Adjusted {
         r2_exposure,
         r2_outcome,
         estimate,
-        ci: [estimate - t * se, estimate + t * se],
+        ci,
         std_error: se,
         bias,
     })
