@@ -208,7 +208,7 @@ impl Plan {
             _ => None,
         };
         let id = identify(g, x, y, given.as_deref());
-        let mut warnings = Vec::new();
+        let mut warnings: Vec<String> = id.no_directed_path_warning(str::to_string).into_iter().collect();
         let mut strategy = id.strategy;
         let (adjustment_set, frontdoor_set, reason) = match (&id.given_set, adjust) {
             (Some(gs), _) if gs.valid => {
