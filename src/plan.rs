@@ -157,6 +157,15 @@ impl Roles {
 /// The node called `name`, or an error naming `setting`.
 pub fn node(g: &Graph, name: &str, setting: Setting) -> Result<Node> {
     g.node(name).ok_or_else(|| {
+        if let Some(why) = crate::graph::unwritable(name) {
+            return Error::option(
+                setting,
+                format!(
+                    "'{}' cannot be a node of the graph: {why}; rename the column in the data",
+                    name.escape_debug()
+                ),
+            );
+        }
         Error::option(
             setting,
             format!(

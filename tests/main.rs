@@ -32,6 +32,7 @@ mod robust_data;
 mod robust_first_hour;
 mod robust_flags;
 mod robust_graph;
+mod robust_names;
 mod robust_props;
 mod sensitivity;
 mod simulate;

@@ -51,7 +51,7 @@ impl Exporter for Csv {
         let mut out = String::new();
         if let Some(s) = &doc.stamp {
             for l in s.lines() {
-                out.push_str(&format!("# {l}\n"));
+                out.push_str(&format!("# {}\n", l.replace(['\n', '\r'], " ")));
             }
         }
         let mut first = true;
