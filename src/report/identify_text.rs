@@ -281,7 +281,7 @@ mod tests {
         id.backdoor.optimal_set_reason = Some("a reason".into());
         let text = identify_text(&id, &g);
         assert!(
-            text.contains("Minimal adjustment sets (1 shown of 250)"),
+            text.contains("Minimal adjustment sets (2 shown of 250)"),
             "{text}"
         );
         assert!(
