@@ -78,6 +78,9 @@ pub struct Identified {
     pub adjustment_set: Option<Vec<String>>,
     /// The front-door set used (frontdoor).
     pub frontdoor_set: Option<Vec<String>>,
+    /// The graph has a directed path from the exposure to the outcome (when
+    /// it has none, the graph implies that the effect is zero).
+    pub directed_path: bool,
     /// Why this set, in words.
     #[serde(skip)]
     pub reason: String,
@@ -428,6 +431,7 @@ pub fn run(plan: &Plan, data: &Dataset, opts: &Options) -> Result<Analysis> {
             strategy: plan.strategy,
             adjustment_set: plan.adjustment_set.clone(),
             frontdoor_set: plan.frontdoor_set.clone(),
+            directed_path: plan.identification.exposure_is_ancestor,
             reason: plan.reason.clone(),
         },
         sample: problem.sample.clone(),

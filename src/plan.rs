@@ -157,6 +157,15 @@ impl Roles {
 /// The node called `name`, or an error naming `setting`.
 pub fn node(g: &Graph, name: &str, setting: Setting) -> Result<Node> {
     g.node(name).ok_or_else(|| {
+        if let Some(why) = crate::graph::unwritable(name) {
+            return Error::option(
+                setting,
+                format!(
+                    "'{}' cannot be a node of the graph: {why}; rename the column in the data",
+                    name.escape_debug()
+                ),
+            );
+        }
         Error::option(
             setting,
             format!(
@@ -208,7 +217,7 @@ impl Plan {
             _ => None,
         };
         let id = identify(g, x, y, given.as_deref());
-        let mut warnings = Vec::new();
+        let mut warnings: Vec<String> = id.no_directed_path_warning(str::to_string).into_iter().collect();
         let mut strategy = id.strategy;
         let (adjustment_set, frontdoor_set, reason) = match (&id.given_set, adjust) {
             (Some(gs), _) if gs.valid => {

@@ -43,7 +43,8 @@ fn json_keys_match_the_contract() {
             "latent",
             "strategy",
             "backdoor",
-            "frontdoor"
+            "frontdoor",
+            "directed_path"
         ])
     );
     assert_eq!(
@@ -53,10 +54,17 @@ fn json_keys_match_the_contract() {
             "minimal_sets",
             "optimal_set",
             "open_paths",
-            "open_path_edges"
+            "open_path_edges",
+            "minimal_sets_total",
+            "minimal_sets_complete",
+            "open_paths_total",
+            "open_paths_complete"
         ])
     );
-    assert_eq!(keys(&v["frontdoor"]), sorted(&["identified", "sets"]));
+    assert_eq!(
+        keys(&v["frontdoor"]),
+        sorted(&["identified", "sets", "sets_total", "sets_complete"])
+    );
     assert_eq!(v["strategy"], "backdoor");
     assert_eq!(v["backdoor"]["minimal_sets"], serde_json::json!([["C"]]));
     assert_eq!(v["backdoor"]["optimal_set"], serde_json::json!(["C"]));
@@ -83,7 +91,14 @@ fn json_keys_match_the_contract() {
     let v: Value = serde_json::from_str(&r.stdout).expect("JSON output");
     assert_eq!(
         keys(&v["given_set"]),
-        sorted(&["set", "valid", "open_paths", "open_path_edges"])
+        sorted(&[
+            "set",
+            "valid",
+            "open_paths",
+            "open_path_edges",
+            "open_paths_total",
+            "open_paths_complete"
+        ])
     );
     assert_eq!(v["given_set"]["valid"], true);
 }

@@ -35,6 +35,7 @@ mod robust_flags;
 mod robust_graph;
 mod robust_inputs;
 mod robust_options;
+mod robust_names;
 mod robust_props;
 mod robust_units;
 mod sensitivity;

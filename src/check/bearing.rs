@@ -31,6 +31,9 @@ pub struct Adjustment {
     pub outcome: String,
     /// How the effect is identified under the declared graph.
     pub strategy: Strategy,
+    /// The graph has a directed path from the exposure to the outcome (when
+    /// it has none, it implies that the effect is zero).
+    pub directed_path: bool,
     /// The adjustment set used (backdoor), sorted by name.
     pub adjustment_set: Option<Vec<String>>,
     /// The front-door set used (frontdoor), sorted by name.
@@ -202,10 +205,12 @@ pub fn judge(report: &mut CheckReport, plan: &Plan, choice: &AdjustChoice) {
         i.bearing = b.map(|b| b.reason);
     }
     let bears = |i: &&super::TestedImplication| i.bears_on_adjustment == Some(true);
+    report.warnings.extend(plan.warnings.iter().cloned());
     report.adjustment = Some(Adjustment {
         exposure: g.name(plan.roles.exposure).to_string(),
         outcome: g.name(plan.roles.outcome).to_string(),
         strategy: plan.strategy,
+        directed_path: plan.identification.exposure_is_ancestor,
         adjustment_set: plan.adjustment_set.clone(),
         frontdoor_set: plan.frontdoor_set.clone(),
         bearing: report.implications.iter().filter(bears).count(),

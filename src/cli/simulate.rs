@@ -248,7 +248,10 @@ fn describe(t: &Truth) -> String {
                 );
             }
             if (t.paths.len() as u64) < t.paths_total {
-                s += &format!("    ... {} paths in all\n", t.paths_total);
+                // The count saturates: at its ceiling it is a lower bound.
+                let total = usize::try_from(t.paths_total).unwrap_or(usize::MAX);
+                let count = causeway::report::doc::shown_of(t.paths.len(), total, total < usize::MAX);
+                s += &format!("    ... directed paths: {count}\n");
             }
         }
         Method::MonteCarlo => {

@@ -18,7 +18,7 @@ mod print;
 
 pub use diff::{GraphDiff, diff};
 pub use parse::{ParseError, Parsed, Warning, parse, parse_bytes};
-pub use print::{Names, quote, set_text};
+pub use print::{Names, quote, set_text, unwritable};
 
 use std::collections::{BTreeMap, HashMap};
 

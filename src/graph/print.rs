@@ -14,6 +14,19 @@ pub fn quote(name: &str) -> String {
     }
 }
 
+/// Why `name` cannot be written in a graph file, or None when it can (with
+/// [`quote`]): a statement is one line, so a name holding a line break
+/// cannot be written, and a quoted name must not be blank.
+pub fn unwritable(name: &str) -> Option<&'static str> {
+    if name.contains(['\n', '\r']) {
+        Some("it holds a line break, and a graph file writes one statement per line")
+    } else if name.trim().is_empty() {
+        Some("it is blank, and a node name must have a visible character")
+    } else {
+        None
+    }
+}
+
 /// How [`set_text`] writes each name.
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]
 pub enum Names {

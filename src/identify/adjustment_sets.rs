@@ -14,6 +14,7 @@
 //! moral graph that avoid latent nodes and descendants of X, listed by
 //! [`separators`](super::separators) with polynomial delay.
 
+use super::Listing;
 use super::separators::Undirected;
 use crate::graph::{Graph, Node};
 
@@ -23,8 +24,20 @@ use crate::graph::{Graph, Node};
 /// sorted by size, then names. `[[]]` when adjusting for nothing is valid,
 /// `[]` when no set is. The flag is true when there are more than `cap`.
 pub fn minimal_backdoor_sets(g: &Graph, x: Node, y: Node, cap: usize) -> (Vec<Vec<Node>>, bool) {
+    minimal_backdoor_listing(g, x, y, cap, cap.saturating_add(1)).into_pair()
+}
+
+/// As [`minimal_backdoor_sets`], with the sets past the cap counted up to
+/// `count_to`.
+pub fn minimal_backdoor_listing(
+    g: &Graph,
+    x: Node,
+    y: Node,
+    cap: usize,
+    count_to: usize,
+) -> Listing<Vec<Node>> {
     if x == y {
-        return (Vec::new(), false);
+        return Listing::empty();
     }
     let gx = g.without_edges_out_of(&[x]);
     let keep = gx.ancestors(&[x, y]);
@@ -34,12 +47,12 @@ pub fn minimal_backdoor_sets(g: &Graph, x: Node, y: Node, cap: usize) -> (Vec<Ve
         .map(|v| keep[v] && !de_x[v] && !g.is_latent(v) && v != y)
         .collect();
     let moral = moralize(&gx, &keep);
-    let (mut sets, truncated) = moral.minimal_separators(x, y, &allowed, cap);
-    for s in &mut sets {
+    let mut listing = moral.minimal_separators(x, y, &allowed, cap, count_to);
+    for s in &mut listing.items {
         super::sort_by_name(g, s);
     }
-    super::sort_sets(g, &mut sets);
-    (sets, truncated)
+    super::sort_sets(g, &mut listing.items);
+    listing
 }
 
 /// The moral graph of the subgraph induced by `keep` (an ancestral set):

@@ -5,7 +5,7 @@
 //! d-separation of X and Y given Z in the graph with the edges out of X
 //! removed.
 
-use super::{OPEN_PATH_CAP, paths::open_backdoor_paths};
+use super::{COUNT_LIMIT, OPEN_PATH_CAP, paths::open_backdoor_path_listing};
 use crate::graph::{Graph, Node};
 
 /// The backdoor criterion applied to one set, with the reasons when it fails.
@@ -19,8 +19,11 @@ pub struct BackdoorCheck {
     /// Backdoor paths left open by the set, at most
     /// [`OPEN_PATH_CAP`](super::OPEN_PATH_CAP), each from exposure to outcome.
     pub open_paths: Vec<Vec<Node>>,
-    /// True when there are more open paths than listed.
-    pub open_paths_truncated: bool,
+    /// How many open paths were counted (up to
+    /// [`COUNT_LIMIT`](super::COUNT_LIMIT)).
+    pub open_paths_total: usize,
+    /// The count of open paths is exact (else a lower bound).
+    pub open_paths_complete: bool,
     /// True when the set contains the outcome (never admissible).
     pub contains_outcome: bool,
 }
@@ -48,16 +51,17 @@ pub fn check_backdoor(g: &Graph, x: Node, y: Node, z: &[Node]) -> BackdoorCheck 
     super::sort_by_name(g, &mut descendants);
     descendants.dedup();
     let contains_outcome = z.contains(&y);
-    let (open_paths, open_paths_truncated) = if contains_outcome || z.contains(&x) {
-        (Vec::new(), false)
+    let open = if contains_outcome || z.contains(&x) {
+        super::Listing::empty()
     } else {
-        open_backdoor_paths(g, x, y, z, OPEN_PATH_CAP)
+        open_backdoor_path_listing(g, x, y, z, OPEN_PATH_CAP, COUNT_LIMIT)
     };
     BackdoorCheck {
         valid,
         descendants_of_exposure: descendants,
-        open_paths,
-        open_paths_truncated,
+        open_paths: open.items,
+        open_paths_total: open.total,
+        open_paths_complete: open.complete,
         contains_outcome,
     }
 }

@@ -40,8 +40,9 @@
 //! S minus that member; searched sets are remembered so none is searched
 //! twice.
 
+use super::Listing;
 use crate::graph::{Graph, Node, quote};
-use std::collections::{BTreeSet, HashSet};
+use std::collections::HashSet;
 
 /// Upper bound on candidate sets searched; past it the list is reported as
 /// truncated.
@@ -241,15 +242,28 @@ pub fn frontdoor_obstacle(g: &Graph, x: Node, y: Node) -> Option<String> {
 /// is not an ancestor of `y` (the graph implies no effect) or `x -> y` is an
 /// edge. The flag is true when the listing stopped early.
 pub fn minimal_frontdoor_sets(g: &Graph, x: Node, y: Node, cap: usize) -> (Vec<Vec<Node>>, bool) {
+    minimal_frontdoor_listing(g, x, y, cap, cap.max(1).saturating_add(1)).into_pair()
+}
+
+/// As [`minimal_frontdoor_sets`], with the sets past the cap counted up to
+/// `count_to` (the search budget still applies).
+pub fn minimal_frontdoor_listing(
+    g: &Graph,
+    x: Node,
+    y: Node,
+    cap: usize,
+    count_to: usize,
+) -> Listing<Vec<Node>> {
     let cap = cap.max(1);
+    let count_to = count_to.max(cap + 1);
+    let mut listing = Listing::empty();
     if x == y || !g.is_ancestor(x, y) || g.has_edge(x, y) {
-        return (Vec::new(), false);
+        return listing;
     }
     let search = Search::new(g, x, y);
-    let mut found: BTreeSet<Vec<Node>> = BTreeSet::new();
+    let mut found: HashSet<Vec<Node>> = HashSet::new();
     let mut searched: HashSet<Vec<Node>> = HashSet::new();
     let mut stack = vec![candidates(g, x, y)];
-    let mut truncated = false;
     while let Some(s) = stack.pop() {
         // The minimal sets inside s are those inside its largest valid subset.
         let Some(largest) = search.largest_within(s) else {
@@ -259,25 +273,20 @@ pub fn minimal_frontdoor_sets(g: &Graph, x: Node, y: Node, cap: usize) -> (Vec<V
             continue;
         }
         if searched.len() > SEARCH_BUDGET {
-            truncated = true;
+            listing.complete = false;
             break;
         }
         let m = search.minimize(largest.clone());
-        if !found.contains(&m) {
-            if found.len() == cap {
-                truncated = true;
-                break;
-            }
-            found.insert(m.clone());
+        if found.insert(m.clone()) && listing.offer(m.clone(), cap, count_to) {
+            break;
         }
         for &e in m.iter().rev() {
             stack.push(largest.iter().copied().filter(|&v| v != e).collect());
         }
     }
-    let mut sets: Vec<Vec<Node>> = found.into_iter().collect();
-    for s in &mut sets {
+    for s in &mut listing.items {
         super::sort_by_name(g, s);
     }
-    super::sort_sets(g, &mut sets);
-    (sets, truncated)
+    super::sort_sets(g, &mut listing.items);
+    listing
 }

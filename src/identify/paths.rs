@@ -11,6 +11,7 @@
 //! large graphs. Every node of an open path is an ancestor of the exposure,
 //! the outcome or Z, so the search is confined to that ancestral set.
 
+use super::Listing;
 use crate::graph::{Graph, Node};
 
 /// Upper bound on search steps, a guard against pathological graphs; when
@@ -86,9 +87,25 @@ impl Setting<'_> {
 /// listed. Latent nodes (including those made by `a <-> b`) are ordinary
 /// nodes of a path.
 pub fn open_backdoor_paths(g: &Graph, x: Node, y: Node, z: &[Node], cap: usize) -> (Vec<Vec<Node>>, bool) {
+    open_backdoor_path_listing(g, x, y, z, cap, cap.saturating_add(1)).into_pair()
+}
+
+/// As [`open_backdoor_paths`], with the paths past the cap counted up to
+/// `count_to` (the search budget still applies; when it runs out, the
+/// listing is incomplete).
+pub fn open_backdoor_path_listing(
+    g: &Graph,
+    x: Node,
+    y: Node,
+    z: &[Node],
+    cap: usize,
+    count_to: usize,
+) -> Listing<Vec<Node>> {
+    let mut found = Listing::empty();
     if x == y || z.contains(&x) || z.contains(&y) {
-        return (Vec::new(), false);
+        return found;
     }
+    let count_to = count_to.max(cap.saturating_add(1));
     let mut roots = z.to_vec();
     roots.extend([x, y]);
     let st = Setting {
@@ -101,8 +118,6 @@ pub fn open_backdoor_paths(g: &Graph, x: Node, y: Node, z: &[Node], cap: usize) 
     let mut on_path = vec![false; g.len()];
     on_path[x] = true;
     let mut path = vec![x];
-    let mut found = Vec::new();
-    let mut truncated = false;
     let mut steps = 0usize;
     // Explicit stack of (node, arrival, depth at which it extends the path).
     let mut stack: Vec<(Node, Arrival, usize)> = g
@@ -115,7 +130,7 @@ pub fn open_backdoor_paths(g: &Graph, x: Node, y: Node, z: &[Node], cap: usize) 
     while let Some((v, arrival, depth)) = stack.pop() {
         steps += 1;
         if steps > STEP_BUDGET {
-            truncated = true;
+            found.complete = false;
             break;
         }
         for &u in &path[depth..] {
@@ -128,11 +143,9 @@ pub fn open_backdoor_paths(g: &Graph, x: Node, y: Node, z: &[Node], cap: usize) 
         path.push(v);
         on_path[v] = true;
         if v == y {
-            if found.len() == cap {
-                truncated = true;
+            if found.offer(path.clone(), cap, count_to) {
                 break;
             }
-            found.push(path.clone());
             continue;
         }
         on_path[v] = false;
@@ -147,6 +160,6 @@ pub fn open_backdoor_paths(g: &Graph, x: Node, y: Node, z: &[Node], cap: usize) 
             stack.push((w, b, depth + 1));
         }
     }
-    super::sort_paths(g, &mut found);
-    (found, truncated)
+    super::sort_paths(g, &mut found.items);
+    found
 }

@@ -33,6 +33,7 @@
 //!   branch yields a separator, each separator is listed once, and the
 //!   delay between two outputs is O(n (n + m)).
 
+use super::Listing;
 use crate::graph::Node;
 
 /// An undirected graph on nodes 0..n, as adjacency lists.
@@ -101,7 +102,7 @@ impl Undirected {
     }
 
     /// Minimal x-y separators made only of `allowed` nodes (x and y must not
-    /// be allowed), at most `cap`; the flag is true when there are more.
+    /// be allowed): the first `cap` kept, counted up to `count_to`.
     /// Each separator is sorted by node index.
     pub fn minimal_separators(
         &self,
@@ -109,16 +110,21 @@ impl Undirected {
         y: Node,
         allowed: &[bool],
         cap: usize,
-    ) -> (Vec<Vec<Node>>, bool) {
+        count_to: usize,
+    ) -> Listing<Vec<Node>> {
         let n = self.adj.len();
-        let cap = cap.max(1);
-        let mut out = Vec::new();
+        let (cap, count_to) = (cap.max(1), count_to.max(cap.max(1) + 1));
+        let mut out = Listing::empty();
         let mut start = vec![false; n];
         start[x] = true;
         let Some(side) = self.smallest_side(&start, y, allowed) else {
-            return (out, false);
+            return out;
         };
-        let mut stack = vec![self.frame(side, Vec::new(), &mut out)];
+        let (sep, f) = self.frame(side, Vec::new());
+        if out.offer(sep, cap, count_to) {
+            return out;
+        }
+        let mut stack = vec![f];
         while let Some(top) = stack.last_mut() {
             if top.next == top.branches.len() {
                 stack.pop();
@@ -133,27 +139,27 @@ impl Undirected {
             if let Some(side) = self.smallest_side(&a, y, allowed)
                 && !forbidden.iter().any(|&f| side[f])
             {
-                if out.len() == cap {
-                    return (out, true);
+                let (sep, f) = self.frame(side, forbidden);
+                if out.offer(sep, cap, count_to) {
+                    return out;
                 }
-                let f = self.frame(side, forbidden, &mut out);
                 stack.push(f);
             }
         }
-        (out, false)
+        out
     }
 
-    /// Records the separator N(side) and makes the frame that branches on it.
-    fn frame(&self, side: Vec<bool>, forbidden: Vec<Node>, out: &mut Vec<Vec<Node>>) -> Frame {
+    /// The separator N(side) and the frame that branches on it.
+    fn frame(&self, side: Vec<bool>, forbidden: Vec<Node>) -> (Vec<Node>, Frame) {
         let b = self.boundary(&side);
         let sep: Vec<Node> = (0..b.len()).filter(|&v| b[v]).collect();
         let branches = sep.iter().copied().filter(|v| !forbidden.contains(v)).collect();
-        out.push(sep);
-        Frame {
+        let frame = Frame {
             side,
             forbidden,
             branches,
             next: 0,
-        }
+        };
+        (sep, frame)
     }
 }

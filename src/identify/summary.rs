@@ -4,8 +4,8 @@
 //! kept in fields that are not serialized.
 
 use super::{
-    OPEN_PATH_CAP, SET_CAP, check_backdoor, frontdoor_obstacle, minimal_backdoor_sets,
-    minimal_frontdoor_sets, open_backdoor_paths, optimal_set,
+    COUNT_LIMIT, OPEN_PATH_CAP, SET_CAP, check_backdoor, frontdoor_obstacle, minimal_backdoor_listing,
+    minimal_frontdoor_listing, open_backdoor_path_listing, optimal_set,
 };
 use crate::graph::{Graph, Node};
 use serde::Serialize;
@@ -48,12 +48,17 @@ pub struct BackdoorSummary {
     /// The same paths as lists of edges, each `[from, to]` as drawn in
     /// the graph (a `<->` edge appears as its latent node's two edges).
     pub open_path_edges: Vec<Vec<[String; 2]>>,
-    /// There are more minimal sets than listed.
-    #[serde(skip)]
-    pub minimal_sets_truncated: bool,
-    /// There are more open paths than listed.
-    #[serde(skip)]
-    pub open_paths_truncated: bool,
+    /// How many minimal sets exist (counted up to
+    /// [`COUNT_LIMIT`](super::COUNT_LIMIT); at most
+    /// [`SET_CAP`](super::SET_CAP) are listed).
+    pub minimal_sets_total: usize,
+    /// `minimal_sets_total` is exact (else the count stopped: at least).
+    pub minimal_sets_complete: bool,
+    /// How many open paths exist (counted up to the count limit; at most
+    /// [`OPEN_PATH_CAP`](super::OPEN_PATH_CAP) are listed).
+    pub open_paths_total: usize,
+    /// `open_paths_total` is exact (else a lower bound).
+    pub open_paths_complete: bool,
     /// Why the optimal set is `None`.
     #[serde(skip)]
     pub optimal_set_reason: Option<String>,
@@ -67,9 +72,11 @@ pub struct FrontdoorSummary {
     /// Every inclusion-minimal front-door set (each sorted; the list by
     /// size, then names).
     pub sets: Vec<Vec<String>>,
-    /// The listing stopped early.
-    #[serde(skip)]
-    pub truncated: bool,
+    /// How many minimal front-door sets exist (counted up to the count
+    /// limit; at most [`SET_CAP`](super::SET_CAP) are listed).
+    pub sets_total: usize,
+    /// `sets_total` is exact (else a lower bound).
+    pub sets_complete: bool,
     /// Why no set meets the criterion, when none does.
     #[serde(skip)]
     pub obstacle: Option<String>,
@@ -86,9 +93,10 @@ pub struct GivenSet {
     pub open_paths: Vec<Vec<String>>,
     /// The same paths as lists of directed edges `[from, to]`.
     pub open_path_edges: Vec<Vec<[String; 2]>>,
-    /// There are more open paths than listed.
-    #[serde(skip)]
-    pub open_paths_truncated: bool,
+    /// How many open paths exist (counted up to the count limit).
+    pub open_paths_total: usize,
+    /// `open_paths_total` is exact (else a lower bound).
+    pub open_paths_complete: bool,
     /// Members that are descendants of the exposure.
     #[serde(skip)]
     pub descendants_of_exposure: Vec<String>,
@@ -118,9 +126,10 @@ pub struct Identification {
     /// The set the analyst gave, when one was given.
     #[serde(skip_serializing_if = "Option::is_none")]
     pub given_set: Option<GivenSet>,
-    /// The exposure is an ancestor of the outcome (when it is not, the graph
-    /// implies no effect).
-    #[serde(skip)]
+    /// The graph has a directed path from the exposure to the outcome (when
+    /// it has none, the graph implies that the effect is zero); `directed_path`
+    /// in JSON.
+    #[serde(rename = "directed_path")]
     pub exposure_is_ancestor: bool,
 }
 
@@ -139,6 +148,25 @@ impl Identification {
     pub fn recommended_frontdoor(&self) -> Option<Vec<String>> {
         self.frontdoor.sets.first().cloned()
     }
+
+    /// The warning every report gives when the graph has no directed path
+    /// from the exposure to the outcome (None when it has one), with the
+    /// names as `show` writes them.
+    pub fn no_directed_path_warning(&self, show: impl Fn(&str) -> String) -> Option<String> {
+        (!self.exposure_is_ancestor)
+            .then(|| no_directed_path_warning(&show(&self.exposure), &show(&self.outcome)))
+    }
+}
+
+/// The warning for a graph with no directed path from `x` to `y`: the graph
+/// itself says the effect is zero, and an estimate only tests that claim.
+pub fn no_directed_path_warning(x: &str, y: &str) -> String {
+    format!(
+        "the graph has no directed path from {x} to {y}, so under the graph {x} has no effect on {y}: \
+         the effect is zero by assumption. Any estimate of it is a test of that claim, not a measure \
+         of an effect; one clearly away from zero points to an arrow missing from the graph, confounding it \
+         does not show, or a problem with the data or the models"
+    )
 }
 
 fn names(g: &Graph, sets: &[Vec<Node>]) -> Vec<Vec<String>> {
@@ -170,25 +198,28 @@ pub fn path_edges(g: &Graph, paths: &[Vec<Node>]) -> Vec<Vec<[String; 2]>> {
 /// caller makes sure `x` and `y` are distinct observed nodes and that
 /// `given` holds neither.
 pub fn identify(g: &Graph, x: Node, y: Node, given: Option<&[Node]>) -> Identification {
-    let (open, open_truncated) = open_backdoor_paths(g, x, y, &[], OPEN_PATH_CAP);
-    let (minimal, minimal_truncated) = minimal_backdoor_sets(g, x, y, SET_CAP);
+    let open = open_backdoor_path_listing(g, x, y, &[], OPEN_PATH_CAP, COUNT_LIMIT);
+    let minimal = minimal_backdoor_listing(g, x, y, SET_CAP, COUNT_LIMIT);
     let optimal = optimal_set(g, x, y);
-    let (front, front_truncated) = minimal_frontdoor_sets(g, x, y, SET_CAP);
+    let front = minimal_frontdoor_listing(g, x, y, SET_CAP, COUNT_LIMIT);
     let backdoor = BackdoorSummary {
-        identified: !minimal.is_empty(),
-        minimal_sets: names(g, &minimal),
+        identified: !minimal.items.is_empty(),
+        minimal_sets: names(g, &minimal.items),
         optimal_set: optimal.as_ref().ok().map(|o| g.names_of(o)),
-        open_paths: names(g, &open),
-        open_path_edges: path_edges(g, &open),
-        minimal_sets_truncated: minimal_truncated,
-        open_paths_truncated: open_truncated,
+        open_paths: names(g, &open.items),
+        open_path_edges: path_edges(g, &open.items),
+        minimal_sets_total: minimal.total,
+        minimal_sets_complete: minimal.complete,
+        open_paths_total: open.total,
+        open_paths_complete: open.complete,
         optimal_set_reason: optimal.err(),
     };
     let frontdoor = FrontdoorSummary {
-        identified: !front.is_empty(),
-        sets: names(g, &front),
-        truncated: front_truncated,
-        obstacle: if front.is_empty() {
+        identified: !front.items.is_empty(),
+        sets: names(g, &front.items),
+        sets_total: front.total,
+        sets_complete: front.complete,
+        obstacle: if front.items.is_empty() {
             frontdoor_obstacle(g, x, y)
         } else {
             None
@@ -211,7 +242,8 @@ pub fn identify(g: &Graph, x: Node, y: Node, given: Option<&[Node]>) -> Identifi
             valid: check.valid,
             open_paths: names(g, &check.open_paths),
             open_path_edges: path_edges(g, &check.open_paths),
-            open_paths_truncated: check.open_paths_truncated,
+            open_paths_total: check.open_paths_total,
+            open_paths_complete: check.open_paths_complete,
             descendants_of_exposure: g.names_of(&check.descendants_of_exposure),
         }
     });

@@ -444,6 +444,7 @@ mod tests {
             exposure: "x".into(),
             outcome: "y".into(),
             strategy: crate::identify::Strategy::Backdoor,
+            directed_path: true,
             adjustment_set: Some(vec!["c1".into(), "c2".into()]),
             frontdoor_set: None,
             bearing: 1,

@@ -184,6 +184,14 @@ pub fn comparison_table(runs: &[Run], level: f64) -> Table {
         }
     }
     for r in runs {
+        if let RunResult::Done(a) = &r.result
+            && !a.identification.directed_path
+        {
+            let w = crate::identify::no_directed_path_warning(&a.exposure, &a.outcome);
+            t.notes.push(format!("{}: {w}.", r.graph));
+        }
+    }
+    for r in runs {
         let check = match &r.result {
             RunResult::Done(a) => a.check.as_ref(),
             RunResult::Stopped { check, .. } => check.as_ref(),

@@ -12,7 +12,7 @@
 
 use super::doc::{Block, Cell, DataTable, Doc, Exporter};
 use crate::analysis::{Analysis, CheckSummary};
-use crate::identify::Strategy;
+use crate::identify::{Strategy, no_directed_path_warning};
 
 /// Renders documents as CSV.
 pub struct Csv;
@@ -51,7 +51,7 @@ impl Exporter for Csv {
         let mut out = String::new();
         if let Some(s) = &doc.stamp {
             for l in s.lines() {
-                out.push_str(&format!("# {l}\n"));
+                out.push_str(&format!("# {}\n", l.replace(['\n', '\r'], " ")));
             }
         }
         let mut first = true;
@@ -132,6 +132,11 @@ pub fn estimates(graph: &str, a: &Analysis) -> DataTable {
     }
     let mut t = DataTable::new("estimates", &columns);
     let [strategy, set] = strategy_cells(a);
+    let note = if a.identification.directed_path {
+        Cell::Empty
+    } else {
+        text(no_directed_path_warning(&a.exposure, &a.outcome))
+    };
     for it in &a.estimates {
         let e = &it.estimate;
         let own = a
@@ -175,7 +180,7 @@ pub fn estimates(graph: &str, a: &Analysis) -> DataTable {
             Cell::opt(ev.map(|v| v.point)),
             Cell::opt(ev.and_then(|v| v.ci_limit)),
             Cell::Count(a.sample.used),
-            Cell::Empty,
+            note.clone(),
         ];
         if contrasts {
             let [l, r] = e

@@ -240,3 +240,28 @@ pub trait Exporter {
     /// The document as text in this format.
     fn render(&self, doc: &Doc) -> String;
 }
+
+/// How many items of a list cut at a cap are shown, in words: `12` when all
+/// of them are, `50 shown of 340` when the list was cut, and `50 shown of at
+/// least 1000` when the count itself stopped early (`complete` false). The
+/// one wording of every capped list in the reports.
+pub fn shown_of(shown: usize, total: usize, complete: bool) -> String {
+    match (complete, shown >= total) {
+        (true, true) => total.to_string(),
+        (true, false) => format!("{shown} shown of {total}"),
+        (false, _) => format!("{shown} shown of at least {}", total.max(shown)),
+    }
+}
+
+#[cfg(test)]
+mod shown_tests {
+    use super::shown_of;
+
+    #[test]
+    fn capped_lists_say_how_many_exist() {
+        assert_eq!(shown_of(3, 3, true), "3");
+        assert_eq!(shown_of(50, 340, true), "50 shown of 340");
+        assert_eq!(shown_of(50, 1000, false), "50 shown of at least 1000");
+        assert_eq!(shown_of(7, 7, false), "7 shown of at least 7");
+    }
+}

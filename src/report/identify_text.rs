@@ -4,9 +4,9 @@
 //! own set. Only lays out an [`Identification`]; the graph is used to draw
 //! each path's arrows.
 
-use super::doc::CAUTION;
+use super::doc::{CAUTION, shown_of};
 use crate::graph::{self, Graph, Names, quote};
-use crate::identify::{Identification, OPEN_PATH_CAP, SET_CAP, Strategy};
+use crate::identify::{Identification, Strategy};
 use std::fmt::Write;
 
 /// A node name as written in a graph file (quoted when needed).
@@ -44,15 +44,9 @@ fn set_text(set: &[String]) -> String {
     graph::set_text(set, Names::Quoted, "nothing (the empty set)")
 }
 
-fn paths_block(out: &mut String, g: &Graph, paths: &[Vec<String>], truncated: bool) {
+fn paths_block(out: &mut String, g: &Graph, paths: &[Vec<String>]) {
     for p in paths {
         let _ = writeln!(out, "    {}", g.path_text(p));
-    }
-    if truncated {
-        let _ = writeln!(
-            out,
-            "    (more than {OPEN_PATH_CAP}; only the first {OPEN_PATH_CAP} are shown)"
-        );
     }
 }
 
@@ -96,7 +90,7 @@ pub fn identify_text(id: &Identification, g: &Graph) -> String {
         );
     }
     let _ = writeln!(out);
-    verdict(&mut out, id, &x, &y);
+    verdict(&mut out, id);
     backdoor(&mut out, id, g, &x);
     frontdoor(&mut out, id, &x, &y);
     given(&mut out, id, g, &x);
@@ -104,7 +98,7 @@ pub fn identify_text(id: &Identification, g: &Graph) -> String {
     out
 }
 
-fn verdict(out: &mut String, id: &Identification, x: &str, y: &str) {
+fn verdict(out: &mut String, id: &Identification) {
     let text = match id.strategy {
         Strategy::Backdoor => {
             "identified by adjustment (some set of observed variables meets the backdoor criterion)."
@@ -115,15 +109,8 @@ fn verdict(out: &mut String, id: &Identification, x: &str, y: &str) {
         Strategy::None => "not identified by the backdoor or the front-door criterion under this graph.",
     };
     para(out, "Verdict:", "  ", text);
-    if !id.exposure_is_ancestor {
-        para(
-            out,
-            "  ",
-            "  ",
-            &format!(
-                "The graph has no directed path from {x} to {y}: it implies that {x} has no effect on {y}."
-            ),
-        );
+    if let Some(w) = id.no_directed_path_warning(show) {
+        para(out, "! Warning:", "  ", &format!("{w}."));
     }
     let _ = writeln!(out);
 }
@@ -135,11 +122,10 @@ fn backdoor(out: &mut String, id: &Identification, g: &Graph, x: &str) {
     } else {
         let _ = writeln!(
             out,
-            "Backdoor paths open without adjustment, to be blocked ({}{}):",
-            if b.open_paths_truncated { "more than " } else { "" },
-            b.open_paths.len()
+            "Backdoor paths open without adjustment, to be blocked ({}):",
+            shown_of(b.open_paths.len(), b.open_paths_total, b.open_paths_complete)
         );
-        paths_block(out, g, &b.open_paths, b.open_paths_truncated);
+        paths_block(out, g, &b.open_paths);
     }
     let _ = writeln!(out);
     match id.recommended_adjustment() {
@@ -175,11 +161,11 @@ fn backdoor(out: &mut String, id: &Identification, g: &Graph, x: &str) {
         ),
     }
     if !b.minimal_sets.is_empty() {
-        let count = if b.minimal_sets_truncated {
-            format!("more than {SET_CAP}; the first {SET_CAP} found")
-        } else {
-            b.minimal_sets.len().to_string()
-        };
+        let count = shown_of(
+            b.minimal_sets.len(),
+            b.minimal_sets_total,
+            b.minimal_sets_complete,
+        );
         let _ = writeln!(out, "Minimal adjustment sets ({count}):");
         for s in &b.minimal_sets {
             let _ = writeln!(out, "    {}", set_text(s));
@@ -202,12 +188,8 @@ fn frontdoor(out: &mut String, id: &Identification, x: &str, y: &str) {
                      from {x} to it is open; (3) {x} blocks every backdoor path from it to {y}."
                 ),
             );
-            if f.sets.len() > 1 || f.truncated {
-                let count = if f.truncated {
-                    format!("more than {}, the first found", f.sets.len())
-                } else {
-                    f.sets.len().to_string()
-                };
+            if f.sets.len() > 1 || f.sets_total > f.sets.len() || !f.sets_complete {
+                let count = shown_of(f.sets.len(), f.sets_total, f.sets_complete);
                 let _ = writeln!(out, "Minimal front-door sets ({count}):");
                 for s in &f.sets {
                     let _ = writeln!(out, "    {}", set_text(s));
@@ -248,8 +230,12 @@ fn given(out: &mut String, id: &Identification, g: &Graph, x: &str) {
         );
     }
     if !s.open_paths.is_empty() {
-        let _ = writeln!(out, "  backdoor paths it leaves open:");
-        paths_block(out, g, &s.open_paths, s.open_paths_truncated);
+        let _ = writeln!(
+            out,
+            "  backdoor paths it leaves open ({}):",
+            shown_of(s.open_paths.len(), s.open_paths_total, s.open_paths_complete)
+        );
+        paths_block(out, g, &s.open_paths);
     }
     let _ = writeln!(out);
 }
@@ -290,11 +276,14 @@ mod tests {
         assert!(text.contains("Your set nothing (the empty set): does NOT meet"));
         assert!(text.contains("X <- A -> B -> Y"));
         assert!(text.contains("only as valid as the declared graph"));
-        id.backdoor.minimal_sets_truncated = true;
+        id.backdoor.minimal_sets_total = 250;
         id.backdoor.optimal_set = None;
         id.backdoor.optimal_set_reason = Some("a reason".into());
         let text = identify_text(&id, &g);
-        assert!(text.contains(&format!("more than {SET_CAP}")), "{text}");
+        assert!(
+            text.contains("Minimal adjustment sets (2 shown of 250)"),
+            "{text}"
+        );
         assert!(
             text.contains("(a reason); this is the smallest minimal set"),
             "{text}"

@@ -9,9 +9,27 @@ use super::doc::{Align, Block, CAUTION, Doc, Exporter, Stamp, Table};
 /// Renders documents as a LaTeX article.
 pub struct Latex;
 
-/// Escapes LaTeX special characters. Latin letters with accents pass
-/// through (LaTeX reads UTF-8); a few symbols become their commands; any
-/// other character that pdfLaTeX cannot typeset becomes `?`.
+/// Letters beyond ASCII that pdfLaTeX sets from UTF-8 input with T1
+/// fonts: the Latin-1 and Latin Extended-A letters (é, ß, ł, ő, ...), less
+/// the few the T1 encoding lacks (found by compiling each with pdflatex).
+fn settable(c: char) -> bool {
+    let u = c as u32;
+    (0xC0..=0x17F).contains(&u)
+        && c != '×'
+        && c != '÷'
+        && !matches!(
+            u,
+            0x126 | 0x127 | 0x138 | 0x13F | 0x140 | 0x149 | 0x166 | 0x167 | 0x17F
+        )
+}
+
+/// Escapes text for LaTeX, the one place that does: the characters special
+/// to LaTeX become commands, Latin letters with accents pass through (the
+/// documents load UTF-8 input and T1 fonts), a few symbols become their
+/// commands, line breaks and tabs become spaces, and any other character
+/// that pdfLaTeX cannot set (CJK, emoji, control characters) is written as
+/// its code point in typewriter type, `\texttt{[U+4F53]}`, so that a name
+/// stays recognisable and the document still compiles.
 pub fn esc(s: &str) -> String {
     let mut out = String::with_capacity(s.len());
     let mut prev = '\0';
@@ -42,9 +60,10 @@ pub fn esc(s: &str) -> String {
             '‘' | '’' => out.push('\''),
             '“' => out.push_str("``"),
             '”' => out.push_str("''"),
-            c if c.is_ascii() => out.push(c),
-            c if c.is_alphabetic() && (c as u32) < 0x250 => out.push(c),
-            _ => out.push('?'),
+            '\n' | '\r' | '\t' => out.push(' '),
+            c if c.is_ascii() && !c.is_ascii_control() => out.push(c),
+            c if settable(c) => out.push(c),
+            c => out.push_str(&format!("\\texttt{{[U+{:04X}]}}", c as u32)),
         }
         prev = c;
     }
@@ -106,7 +125,7 @@ pub fn fragment(tables: &[Table], stamp: Option<&Stamp>) -> String {
 pub fn standalone(name: &str) -> String {
     format!(
         "% Compiles {name} on its own: pdflatex table-standalone.tex\n\
-         \\documentclass{{article}}\n\\usepackage[T1]{{fontenc}}\n\\usepackage{{booktabs}}\n\
+         \\documentclass{{article}}\n\\usepackage[utf8]{{inputenc}}\n\\usepackage[T1]{{fontenc}}\n\\usepackage{{booktabs}}\n\
          \\usepackage[margin=2cm,landscape]{{geometry}}\n\\begin{{document}}\n\\input{{{}}}\n\\end{{document}}\n",
         name.trim_end_matches(".tex")
     )
@@ -115,7 +134,7 @@ pub fn standalone(name: &str) -> String {
 impl Exporter for Latex {
     fn render(&self, doc: &Doc) -> String {
         let mut out = String::from(
-            "\\documentclass{article}\n\\usepackage[T1]{fontenc}\n\\usepackage{booktabs}\n\\usepackage[margin=2cm,landscape]{geometry}\n\\begin{document}\n",
+            "\\documentclass{article}\n\\usepackage[utf8]{inputenc}\n\\usepackage[T1]{fontenc}\n\\usepackage{booktabs}\n\\usepackage[margin=2cm,landscape]{geometry}\n\\begin{document}\n",
         );
         out.push_str(&format!("\\section*{{{}}}\n", esc(&doc.title)));
         for b in &doc.blocks {
@@ -167,7 +186,11 @@ mod tests {
             esc("a|b <c> R²"),
             "a\\textbar{}b \\textless{}c\\textgreater{} R\\textsuperscript{2}"
         );
-        assert_eq!(esc("café ≥ 1 → 2"), "café $\\geq$ 1 ? 2");
+        assert_eq!(esc("café ≥ 1 → 2"), "café $\\geq$ 1 \\texttt{[U+2192]} 2");
+        assert_eq!(
+            esc("体😀\u{1}Ħß\nx"),
+            "\\texttt{[U+4F53]}\\texttt{[U+1F600]}\\texttt{[U+0001]}\\texttt{[U+0126]}ß x"
+        );
         assert_eq!(esc("use --exposed"), "use -{}-exposed");
     }
 

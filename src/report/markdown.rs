@@ -7,7 +7,22 @@ use super::doc::{Align, Block, CAUTION, Doc, Exporter, Table};
 pub struct Markdown;
 
 fn cell(s: &str) -> String {
-    s.replace('|', "\\|").replace('\n', " ")
+    s.replace('|', "\\|").replace(['\n', '\r'], " ")
+}
+
+/// Text inside the HTML of the stamp lines.
+fn html(s: &str) -> String {
+    s.replace('&', "&amp;").replace('<', "&lt;").replace('>', "&gt;")
+}
+
+/// A link target: in angle brackets when it holds a space or a
+/// parenthesis (a figure named after a graph file `my graph (2).txt`).
+fn target(path: &str) -> String {
+    if path.contains([' ', '(', ')', '<', '>']) {
+        format!("<{}>", path.replace('<', "%3C").replace('>', "%3E"))
+    } else {
+        path.to_string()
+    }
 }
 
 /// A pipe table.
@@ -46,7 +61,7 @@ impl Exporter for Markdown {
                 Block::List(items) => items.iter().for_each(|i| out.push_str(&format!("- {i}\n"))),
                 Block::Table(t) => out.push_str(&table(t)),
                 Block::Figure { path, caption } => {
-                    out.push_str(&format!("![{caption}]({path})\n\n*{caption}*\n"))
+                    out.push_str(&format!("![{caption}]({})\n\n*{caption}*\n", target(path)))
                 }
                 Block::Warning(w) => out.push_str(&format!("> **Warning.** {w}\n")),
                 Block::Data(_) => {}
@@ -56,7 +71,7 @@ impl Exporter for Markdown {
         if let Some(s) = &doc.stamp {
             out.push_str("\n---\n\n");
             for l in s.lines() {
-                out.push_str(&format!("<sub>{}</sub><br>\n", cell(&l)));
+                out.push_str(&format!("<sub>{}</sub><br>\n", html(&cell(&l))));
             }
         }
         out
