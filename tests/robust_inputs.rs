@@ -6,56 +6,19 @@
 //! harness timeout: it must end, with exit 2 and a message naming the file,
 //! the column or the cells.
 
-use crate::helpers::{Run, write};
+use crate::helpers::{Run, run_bounded, write};
 use causeway::data::{Dataset, Frame, ReadOptions, Role};
 use proptest::prelude::*;
 use std::path::Path;
-use std::process::{Command, Stdio};
-use std::time::{Duration, Instant};
+use std::process::Command;
+use std::time::Duration;
 
 /// The most a run may take before the harness kills it and fails.
 const LIMIT: Duration = Duration::from_secs(30);
 
 /// Runs `causeway` with `args` in `dir`, killed and failed past [`LIMIT`].
 fn bounded(dir: &Path, args: &[&str]) -> Run {
-    let mut child = Command::new(env!("CARGO_BIN_EXE_causeway"))
-        .args(args)
-        .current_dir(dir)
-        .stdin(Stdio::null())
-        .stdout(Stdio::piped())
-        .stderr(Stdio::piped())
-        .spawn()
-        .expect("the causeway binary runs");
-    // Drain the pipes while waiting, so a full pipe cannot stall the run.
-    let mut out = child.stdout.take().unwrap();
-    let mut err = child.stderr.take().unwrap();
-    let t_out = std::thread::spawn(move || {
-        let mut s = Vec::new();
-        std::io::Read::read_to_end(&mut out, &mut s).ok();
-        s
-    });
-    let t_err = std::thread::spawn(move || {
-        let mut s = Vec::new();
-        std::io::Read::read_to_end(&mut err, &mut s).ok();
-        s
-    });
-    let start = Instant::now();
-    let status = loop {
-        if let Some(s) = child.try_wait().expect("wait") {
-            break s;
-        }
-        if start.elapsed() > LIMIT {
-            child.kill().ok();
-            child.wait().ok();
-            panic!("causeway {args:?} ran past {LIMIT:?}");
-        }
-        std::thread::sleep(Duration::from_millis(20));
-    };
-    Run {
-        code: status.code().unwrap_or(-1),
-        stdout: String::from_utf8_lossy(&t_out.join().unwrap()).into_owned(),
-        stderr: String::from_utf8_lossy(&t_err.join().unwrap()).into_owned(),
-    }
+    run_bounded(dir, args, LIMIT)
 }
 
 /// Asserts exit `code` and that standard error holds each of `words`.

@@ -13,49 +13,18 @@
 //! bounded by a timeout in the harness (the child is killed and the test
 //! fails); nothing asserts on measured times.
 
+use crate::helpers::{Run, run_bounded};
 use serde_json::Value;
 use std::path::Path;
 use std::process::{Command, Stdio};
-use std::time::{Duration, Instant};
+use std::time::Duration;
 
 /// Longest a single run may take before the harness kills it.
 const LIMIT: Duration = Duration::from_secs(60);
 
-struct Out {
-    code: i32,
-    stdout: String,
-    stderr: String,
-}
-
 /// Runs the binary in `dir`, killing it (and failing) after [`LIMIT`].
-fn run(dir: &Path, args: &[&str]) -> Out {
-    let so = dir.join(".stdout");
-    let se = dir.join(".stderr");
-    let mut child = Command::new(env!("CARGO_BIN_EXE_causeway"))
-        .args(args)
-        .current_dir(dir)
-        .stdin(Stdio::null())
-        .stdout(std::fs::File::create(&so).unwrap())
-        .stderr(std::fs::File::create(&se).unwrap())
-        .spawn()
-        .expect("the binary runs");
-    let start = Instant::now();
-    let status = loop {
-        if let Some(s) = child.try_wait().unwrap() {
-            break s;
-        }
-        if start.elapsed() > LIMIT {
-            let _ = child.kill();
-            let _ = child.wait();
-            panic!("causeway {args:?} did not end within {LIMIT:?}");
-        }
-        std::thread::sleep(Duration::from_millis(20));
-    };
-    Out {
-        code: status.code().unwrap_or(-1),
-        stdout: std::fs::read_to_string(&so).unwrap(),
-        stderr: std::fs::read_to_string(&se).unwrap(),
-    }
+fn run(dir: &Path, args: &[&str]) -> Run {
+    run_bounded(dir, args, LIMIT)
 }
 
 fn ok(dir: &Path, args: &[&str]) -> String {

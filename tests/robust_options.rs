@@ -16,10 +16,10 @@
 //! work by design (it shows progress and stops on Ctrl-C), not a hang to
 //! catch.
 
-use crate::helpers::{data, repo};
+use crate::helpers::{data, finish_within, repo};
 use std::path::Path;
-use std::process::{Command, Stdio};
-use std::time::{Duration, Instant};
+use std::process::Command;
+use std::time::Duration;
 
 /// A run taking longer than this fails the test.
 const TIMEOUT: Duration = Duration::from_secs(20);
@@ -451,46 +451,25 @@ fn corpus() -> Vec<Vec<String>> {
 /// The exit code of one run (`None`: none), and what is wrong with it, if
 /// anything.
 fn judge(args: &[String], dir: &Path) -> (Option<i32>, Option<String>) {
-    let out = dir.join("stdout");
-    let err = dir.join("stderr");
-    let mut child = Command::new("sh")
-        .arg("-c")
+    let mut cmd = Command::new("sh");
+    cmd.arg("-c")
         .arg(format!("ulimit -v {MEMORY_KIB}; exec \"$0\" \"$@\""))
         .arg(env!("CARGO_BIN_EXE_causeway"))
         .args(args)
-        .current_dir(dir)
-        .stdin(Stdio::null())
-        .stdout(std::fs::File::create(&out).unwrap())
-        .stderr(std::fs::File::create(&err).unwrap())
-        .spawn()
-        .expect("sh runs");
-    let start = Instant::now();
-    let status = loop {
-        if let Some(s) = child.try_wait().expect("wait") {
-            break s;
-        }
-        if start.elapsed() > TIMEOUT {
-            let _ = child.kill();
-            let _ = child.wait();
-            return (None, Some(format!("still running after {TIMEOUT:?}")));
-        }
-        std::thread::sleep(Duration::from_millis(10));
+        .current_dir(dir);
+    let Some(run) = finish_within(cmd, TIMEOUT) else {
+        return (None, Some(format!("still running after {TIMEOUT:?}")));
     };
-    let stderr = String::from_utf8_lossy(&std::fs::read(&err).unwrap_or_default()).into_owned();
+    let stderr = run.stderr;
     // Warnings may come first; the first other line is the message.
     let first = stderr
         .lines()
         .find(|l| !l.starts_with("causeway: warning: "))
         .unwrap_or("");
-    let code = match status.code() {
-        Some(c) => c,
-        None => {
-            return (
-                None,
-                Some(format!("ended by a signal ({status}); stderr: {stderr}")),
-            );
-        }
-    };
+    let code = run.code;
+    if code == -1 {
+        return (None, Some(format!("ended by a signal; stderr: {stderr}")));
+    }
     if stderr.contains("panicked") || stderr.contains("internal error") {
         return (
             Some(code),

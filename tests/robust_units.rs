@@ -20,8 +20,7 @@ use causeway::{Error, check};
 use proptest::prelude::*;
 use serde_json::Value;
 use std::path::Path;
-use std::process::{Command, Stdio};
-use std::time::{Duration, Instant};
+use std::time::Duration;
 
 const ROWS: usize = 160;
 const TOL: f64 = 1e-8;
@@ -294,30 +293,8 @@ fn doses_far_outside_the_data_are_refused_naming_the_range() {
 
 /// Runs the binary with a time limit (the harness kills it and fails).
 fn run_bounded(dir: &Path, args: &[&str]) -> (i32, String, String) {
-    let mut child = Command::new(env!("CARGO_BIN_EXE_causeway"))
-        .args(args)
-        .current_dir(dir)
-        .stdout(Stdio::piped())
-        .stderr(Stdio::piped())
-        .spawn()
-        .unwrap();
-    let start = Instant::now();
-    loop {
-        if child.try_wait().unwrap().is_some() {
-            break;
-        }
-        if start.elapsed() > Duration::from_secs(60) {
-            child.kill().ok();
-            panic!("causeway {args:?} did not end within 60 s");
-        }
-        std::thread::sleep(Duration::from_millis(10));
-    }
-    let o = child.wait_with_output().unwrap();
-    (
-        o.status.code().unwrap_or(-1),
-        String::from_utf8_lossy(&o.stdout).into_owned(),
-        String::from_utf8_lossy(&o.stderr).into_owned(),
-    )
+    let r = crate::helpers::run_bounded(dir, args, Duration::from_secs(60));
+    (r.code, r.stdout, r.stderr)
 }
 
 fn no_non_finite(text: &str) {

@@ -261,6 +261,24 @@ fn cell(raw: &[u8], line: u64, column: usize) -> Cell {
     }
 }
 
+/// A number as messages and reports write a data value: whole numbers
+/// without decimals, others as the shortest decimal that reads back the
+/// same, and exponent form below 1e-6 and from 1e15 up (never hundreds of
+/// digits).
+pub fn value_text(v: f64) -> String {
+    let v = v + 0.0; // a negative zero reads as 0
+    let m = v.abs();
+    if !v.is_finite() {
+        format!("{v}")
+    } else if m != 0.0 && !(1e-6..1e15).contains(&m) {
+        format!("{v:e}")
+    } else if v.fract() == 0.0 {
+        format!("{v:.0}")
+    } else {
+        format!("{v}")
+    }
+}
+
 /// `raw` as text fit for a message: UTF-8 text as it is, but control
 /// characters written as `\n`, `\t`, `\r` or `\xNN` (C1 controls as
 /// `\u{NN}`), and bytes that are not UTF-8 as `\xNN`.
@@ -300,5 +318,24 @@ pub(crate) fn unfit(raw: &[u8]) -> Option<&'static str> {
             Some("a control character")
         }
         Ok(_) => None,
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::value_text;
+
+    #[test]
+    fn values_read_back_and_never_run_to_hundreds_of_digits() {
+        assert_eq!(value_text(3.0), "3");
+        assert_eq!(value_text(-0.0), "0");
+        assert_eq!(value_text(0.25), "0.25");
+        assert_eq!(value_text(1.5e-120), "1.5e-120");
+        assert_eq!(value_text(-2e20), "-2e20");
+        assert_eq!(value_text(123456789012345.0), "123456789012345");
+        for v in [1e-300, 7.25e-7, 0.1 + 0.2, 9.75e14, 1e15, 3.3e299] {
+            assert_eq!(value_text(v).parse::<f64>().unwrap(), v);
+            assert!(value_text(v).len() < 30, "{}", value_text(v));
+        }
     }
 }

@@ -14,7 +14,7 @@
 //! sorts first, so `quit` is exposed). The [`ExposureCoding`] says which
 //! level was taken and why, for every report to repeat.
 
-use super::{Dataset, Sample};
+use super::{Dataset, Sample, value_text};
 use crate::{Advice, Error, Remedy, Result, Setting};
 
 /// The most levels a categorical column may have. Each level but the
@@ -419,8 +419,8 @@ fn code_numeric(mut v: Vec<f64>) -> (Vec<f64>, Kind) {
     (
         v,
         Kind::Binary {
-            low: format!("{}", low + 0.0),
-            high: format!("{}", high + 0.0),
+            low: value_text(low),
+            high: value_text(high),
         },
     )
 }
@@ -431,7 +431,7 @@ fn count_values(v: &[f64]) -> String {
     d.sort_by(f64::total_cmp);
     d.dedup();
     if d.len() <= 5 {
-        let shown: Vec<String> = d.iter().map(|x| format!("{x}")).collect();
+        let shown: Vec<String> = d.iter().map(|&x| value_text(x)).collect();
         format!("{} values ({})", d.len(), shown.join(", "))
     } else {
         format!("{} values", d.len())
@@ -457,7 +457,7 @@ fn code_numeric_levels(mut v: Vec<f64>) -> (Vec<f64>, Vec<String>) {
     for x in v.iter_mut() {
         *x = distinct.partition_point(|d| d < x) as f64;
     }
-    (v, distinct.iter().map(|d| format!("{d}")).collect())
+    (v, distinct.iter().map(|&d| value_text(d)).collect())
 }
 
 /// Levels of a text column (the codes present in the sample), sorted

@@ -36,7 +36,7 @@ mod sample;
 mod spline;
 mod store;
 
-pub use column::{Cell, Column, escaped};
+pub use column::{Cell, Column, escaped, value_text};
 pub use design::{
     Design, DesignRows, Factor, Setting, Shape, Term, Transform, covariate_terms, largest_magnitude,
     unit_scale,

@@ -4,7 +4,7 @@
 //! influence on a linear functional of its coefficients.
 
 use super::Nuisance;
-use crate::data::Kind;
+use crate::data::{Kind, value_text};
 use crate::maths::expit_std as expit;
 use crate::model::{Logit, LogitOptions, linear_predictor};
 use crate::problem::Problem;
@@ -132,19 +132,18 @@ pub fn separating_terms(p: &Problem, coef: &DVector<f64>) -> String {
                             (lo.min(v), hi.max(v))
                         })
                 };
-                // (+ 0.0 shows a negative zero as 0.)
                 let (e, u) = (range(1.0), range(0.0));
                 if e.0 >= u.1 {
                     alone.push(format!(
                         "'{name}' is at least {} in every exposed row and at most {} in every unexposed row",
-                        e.0 + 0.0,
-                        u.1 + 0.0
+                        value_text(e.0),
+                        value_text(u.1)
                     ));
                 } else if u.0 >= e.1 {
                     alone.push(format!(
                         "'{name}' is at most {} in every exposed row and at least {} in every unexposed row",
-                        e.1 + 0.0,
-                        u.0 + 0.0
+                        value_text(e.1),
+                        value_text(u.0)
                     ));
                 }
                 continue;

@@ -78,10 +78,12 @@ impl Cell {
     }
 
     /// The cell as written in a data file: numbers in full (shortest
-    /// round-trip) precision, nothing for a missing or non-finite value.
+    /// round-trip) precision, in exponent form beyond the magnitudes met in
+    /// practice ([`crate::data::value_text`]), nothing for a missing or
+    /// non-finite value.
     pub fn plain(&self) -> String {
         match self {
-            Cell::Num(v) if v.is_finite() => format!("{v}"),
+            Cell::Num(v) if v.is_finite() => crate::data::value_text(*v),
             Cell::Num(_) | Cell::Empty => String::new(),
             Cell::Count(n) => n.to_string(),
             Cell::Text(s) => s.clone(),

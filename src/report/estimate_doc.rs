@@ -16,6 +16,9 @@ pub fn num(v: f64) -> String {
     if !v.is_finite() {
         return "-".into();
     }
+    if v.abs() >= 1e15 {
+        return sig(v, 4);
+    }
     if v.abs() >= 100.0 {
         return format!("{v:.1}");
     }
@@ -27,13 +30,9 @@ pub fn num(v: f64) -> String {
     }
 }
 
-/// A data value as written: whole numbers without decimals.
+/// A data value as written ([`crate::data::value_text`]).
 pub fn value(v: f64) -> String {
-    if v.fract() == 0.0 && v.abs() < 1e15 {
-        format!("{v:.0}")
-    } else {
-        format!("{v}")
-    }
+    crate::data::value_text(v)
 }
 
 /// `[lo, hi]` as "lo to hi".
