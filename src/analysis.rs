@@ -101,6 +101,15 @@ pub struct Item {
     pub analytic_ci: [f64; 2],
 }
 
+/// The JSON `design` block: how the rows were sampled.
+#[derive(Debug, Clone, Serialize)]
+pub struct StudyDesign {
+    /// The sampling-weight column (none here: rows are equally weighted).
+    pub weights: Option<String>,
+    /// The clusters rows are grouped into, when given.
+    pub cluster: Option<crate::problem::Clusters>,
+}
+
 /// Sensitivity details the text and figures need beyond the JSON block.
 #[derive(Debug, Clone, Default)]
 pub struct SensitivityDetails {
@@ -125,6 +134,10 @@ pub struct Analysis {
     pub identification: Identified,
     /// Rows used and dropped.
     pub sample: crate::data::Sample,
+    /// How the rows were sampled: clusters (absent when the rows are
+    /// independent).
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub design: Option<StudyDesign>,
     /// One item per method.
     pub estimates: Vec<Item>,
     /// Propensity, weight and balance diagnostics (binary exposure with an
@@ -276,6 +289,11 @@ pub fn columns(plan: &Plan, opts: &Options) -> Vec<String> {
     ];
     c.extend(plan.adjustment_set.iter().flatten().cloned());
     c.extend(plan.frontdoor_set.iter().flatten().cloned());
+    if let Some(k) = &opts.model.cluster
+        && !c.contains(k)
+    {
+        c.push(k.clone());
+    }
     if opts.check.is_some() {
         for v in g.observed() {
             if !c.iter().any(|n| n == g.name(v)) {
@@ -435,6 +453,10 @@ pub fn run(plan: &Plan, data: &Dataset, opts: &Options) -> Result<Analysis> {
             reason: plan.reason.clone(),
         },
         sample: problem.sample.clone(),
+        design: problem.clusters.clone().map(|c| StudyDesign {
+            weights: None,
+            cluster: Some(c),
+        }),
         estimates,
         diagnostics,
         level_diagnostics,
@@ -463,7 +485,8 @@ fn curve(p: &Problem, method: &str, t: &Targets) -> Option<Curve> {
         .iter()
         .filter_map(|&x| {
             let k = t.position(Target::Dose(x))?;
-            let (std_error, ci) = estimate::contrast::target_interval(t, k, p.spec.level);
+            let variance = estimate::contrast::Variance::of(p, t);
+            let (std_error, ci) = estimate::contrast::target_interval_by(t, k, p.spec.level, &variance);
             Some(CurvePoint {
                 x,
                 estimate: t.values[k],
@@ -524,7 +547,15 @@ fn run_bootstrap(
     // message, the same for any order the threads finish in). The methods
     // of one replicate share its model fits, made once.
     let reasons: Vec<Mutex<BTreeMap<String, usize>>> = methods.iter().map(|_| Mutex::default()).collect();
-    let draws = bootstrap::run(p.n(), &boot, |w| {
+    // Whole clusters are resampled when the rows are clustered.
+    let units = match &p.clusters {
+        Some(c) => bootstrap::Units::Clusters {
+            of: &c.of,
+            count: c.count,
+        },
+        None => bootstrap::Units::Rows(p.n()),
+    };
+    let draws = bootstrap::run_units(units, &boot, |w| {
         let fits = Fits::fit(p, Some(w), Some(full), needs);
         let mut out = Vec::new();
         for ((m, (rows, doses)), tally) in methods.iter().zip(&layout).zip(&reasons) {
@@ -698,7 +729,8 @@ fn evalue_for(
             return evalue::risk_ratio(e.estimate, Some(ci));
         }
         // The risk ratio from the same targets, with its own interval.
-        let rr = estimate::contrast::form(targets, &e.spec, Scale::Ratio, p.spec.level)
+        let variance = estimate::contrast::Variance::of(p, targets);
+        let rr = estimate::contrast::form(targets, &e.spec, Scale::Ratio, p.spec.level, &variance)
             .ok_or_else(|| Error::Internal("the method forms no risk ratio".into()))??;
         return evalue::risk_ratio(rr.estimate, Some((rr.ci[0], rr.ci[1])));
     }

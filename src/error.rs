@@ -132,6 +132,8 @@ pub enum Setting {
     Rows,
     /// The number of Monte Carlo draws.
     Draws,
+    /// The column whose values group rows into clusters.
+    Cluster,
 }
 
 impl Setting {
@@ -172,6 +174,7 @@ impl Setting {
             Setting::Threads => "the number of worker threads",
             Setting::Rows => "the number of rows to simulate",
             Setting::Draws => "the number of Monte Carlo draws",
+            Setting::Cluster => "the cluster column",
         }
     }
 }

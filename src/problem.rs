@@ -102,6 +102,86 @@ pub struct Spec {
     pub exposed: Option<String>,
     /// The reference level of a categorical exposure; `None`: the lowest.
     pub reference: Option<String>,
+    /// The column whose values group rows into clusters (`None`: rows are
+    /// independent).
+    pub cluster: Option<String>,
+}
+
+/// Below this many clusters a warning says that cluster-robust intervals
+/// may be too narrow (common practice, no single source: the sandwich
+/// summed by cluster rests on the number of clusters growing).
+pub const FEW_CLUSTERS: usize = 30;
+
+/// The used rows grouped into clusters by a column's values (the JSON
+/// `design.cluster` block).
+#[derive(Debug, Clone, Serialize)]
+pub struct Clusters {
+    /// The column.
+    pub variable: String,
+    /// Number of clusters among the used rows.
+    pub count: usize,
+    /// Rows in the smallest cluster.
+    pub min_size: usize,
+    /// Rows in the largest cluster.
+    pub max_size: usize,
+    /// Each used row's cluster, numbered from 0 in order of first
+    /// appearance.
+    #[serde(skip)]
+    pub of: Vec<u32>,
+}
+
+impl Clusters {
+    /// The clusters of the rows `sample` keeps, by the values of column
+    /// `name` (text or numbers, each distinct value a cluster); refused
+    /// when they form a single cluster.
+    pub fn of(data: &Dataset, sample: &Sample, name: &str) -> Result<Clusters> {
+        let column = data.require(name)?;
+        let mut index: std::collections::HashMap<u64, u32> = std::collections::HashMap::new();
+        let mut of = Vec::with_capacity(sample.keep.len());
+        let mut sizes: Vec<usize> = Vec::new();
+        for &i in &sample.keep {
+            let key = match column.codes() {
+                Some((codes, _)) => u64::from(codes[i]),
+                // -0 and 0 are the same cluster.
+                None => (column.values[i] + 0.0).to_bits(),
+            };
+            let next = sizes.len() as u32;
+            let c = *index.entry(key).or_insert(next);
+            if c == next {
+                sizes.push(0);
+            }
+            sizes[c as usize] += 1;
+            of.push(c);
+        }
+        if sizes.len() < 2 {
+            return Err(Error::option(
+                Opt::Cluster,
+                format!(
+                    "'{name}' takes a single value in the {} rows used: cluster-robust standard errors \
+                     need at least two clusters",
+                    sample.used
+                ),
+            ));
+        }
+        Ok(Clusters {
+            variable: name.to_string(),
+            count: sizes.len(),
+            min_size: sizes.iter().copied().min().unwrap_or(0),
+            max_size: sizes.iter().copied().max().unwrap_or(0),
+            of,
+        })
+    }
+
+    /// The warning that there are fewer than [`FEW_CLUSTERS`] clusters.
+    pub fn few_warning(&self) -> Option<String> {
+        (self.count < FEW_CLUSTERS).then(|| {
+            format!(
+                "only {} clusters in '{}': with fewer than {FEW_CLUSTERS} clusters, cluster-robust \
+                 standard errors tend to be too small and intervals too narrow; read them with caution",
+                self.count, self.variable
+            )
+        })
+    }
 }
 
 /// Doses on the default dose-response grid (common practice, no source).
@@ -130,6 +210,7 @@ impl Default for Spec {
             at: None,
             exposed: None,
             reference: None,
+            cluster: None,
         }
     }
 }
@@ -165,6 +246,8 @@ pub struct Problem {
     pub adjusted: Design,
     /// Warnings raised while preparing (dropped rows, aliased terms).
     pub warnings: Vec<String>,
+    /// The clusters of the used rows (`None`: rows are independent).
+    pub clusters: Option<Clusters>,
     /// The propensity design's rows, kept when they fit in memory.
     propensity_store: Option<Store>,
     /// The outcome design's rows (exposure as observed), likewise.
@@ -210,6 +293,11 @@ impl Problem {
         let mut used: Vec<&str> = vec![&spec.outcome, &spec.exposure];
         used.extend(spec.covariates.iter().map(String::as_str));
         used.extend(spec.mediators.iter().map(String::as_str));
+        if let Some(c) = &spec.cluster
+            && !used.contains(&c.as_str())
+        {
+            used.push(c);
+        }
         let sample = data.complete_cases(&used)?;
         let mut warnings = Vec::new();
         if sample.used == 0 {
@@ -233,6 +321,11 @@ impl Problem {
             )));
         }
         warnings.extend(sample.dropped_warning());
+        let clusters = match &spec.cluster {
+            Some(name) => Some(Clusters::of(data, &sample, name)?),
+            None => None,
+        };
+        warnings.extend(clusters.as_ref().and_then(Clusters::few_warning));
         let mut frame = Frame::new(sample.used);
         let outcome = frame.push_from(data, &sample, &spec.outcome, Role::Number)?;
         let choice = ExposureChoice {
@@ -350,6 +443,7 @@ impl Problem {
             outcome_design,
             adjusted,
             warnings,
+            clusters,
             propensity_store,
             outcome_store,
         })

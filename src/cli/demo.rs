@@ -59,6 +59,10 @@ pub struct Args {
     /// Also test each graph's implications against the data.
     #[arg(long)]
     check: bool,
+    /// A column of the demo data grouping rows into clusters (e.g. role):
+    /// cluster-robust intervals, and whole clusters resampled by --bootstrap.
+    #[arg(long, value_name = "COLUMN")]
+    cluster: Option<String>,
     /// Print no progress bar and no warnings on stderr.
     #[arg(long)]
     quiet: bool,
@@ -85,6 +89,7 @@ fn flags(a: &Args) -> EstimateFlags {
         trim: None,
         contrast: None,
         latent: None,
+        cluster: a.cluster.clone(),
         seed: a.seed,
         threads: a.threads,
         check: a.check,

@@ -103,6 +103,12 @@ pub struct EstimateFlags {
     /// Columns to treat as unobserved, comma-separated.
     #[arg(long, value_name = "A,B")]
     pub latent: Option<String>,
+    /// A column grouping rows into clusters (a hospital, school or region;
+    /// text or numeric codes; need not be a graph node): standard errors
+    /// and intervals become cluster-robust, and --bootstrap resamples whole
+    /// clusters.
+    #[arg(long, value_name = "COLUMN")]
+    pub cluster: Option<String>,
     /// Seed of the bootstrap's random streams.
     #[arg(long, allow_negative_numbers = true, default_value_t = 1, value_name = "N")]
     pub seed: u64,
@@ -285,6 +291,7 @@ impl EstimateFlags {
                 at,
                 exposed: self.exposed.clone(),
                 reference: self.reference.clone(),
+                cluster: self.cluster.clone(),
                 ..Spec::default()
             },
             bootstrap: self.bootstrap,

@@ -150,6 +150,7 @@ pub fn flag(setting: Setting) -> &'static str {
         Setting::Threads => "--threads",
         Setting::Rows => "--rows",
         Setting::Draws => "--mc-draws",
+        Setting::Cluster => "--cluster",
     }
 }
 
@@ -160,7 +161,7 @@ mod tests {
     use clap::CommandFactory;
 
     /// Every setting, so that each is checked against the flags below.
-    const SETTINGS: [Setting; 34] = [
+    const SETTINGS: [Setting; 35] = [
         Setting::Method,
         Setting::Estimand,
         Setting::Scale,
@@ -195,6 +196,7 @@ mod tests {
         Setting::Threads,
         Setting::Rows,
         Setting::Draws,
+        Setting::Cluster,
     ];
 
     #[test]

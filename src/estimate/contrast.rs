@@ -4,7 +4,8 @@
 //! own scale; ratio and odds on the log scale).
 
 use super::targets::{Points, Target, Targets};
-use super::{Scale, z_value};
+use super::{Problem, Scale, z_value};
+use crate::problem::Clusters;
 use crate::{Error, Result};
 use serde::Serialize;
 
@@ -89,9 +90,81 @@ pub struct Formed {
     pub means: (f64, f64),
 }
 
-/// The contrast `c` of `t` on `scale`; `None` when the estimator did not
-/// form one of its two targets.
-pub fn form(t: &Targets, c: &ContrastSpec, scale: Scale, level: f64) -> Option<Result<Formed>> {
+/// How influence values become a standard error.
+///
+/// - Independent rows: `sqrt(sum_i phi_i^2)`.
+/// - Clustered rows: the influence values are summed within each cluster
+///   first, `sqrt(c * sum_g (sum_{i in g} phi_i)^2)`, with the small-sample
+///   factor `c = G/(G-1) x (N-1)/(N-K)` when the targets come from a linear
+///   outcome model with K coefficients (regression standardization of a
+///   continuous outcome; the factor general-purpose statistics libraries
+///   apply to least squares by default), and `c = G/(G-1)` otherwise
+///   (common practice; no single source).
+#[derive(Debug, Clone, Copy)]
+pub struct Variance<'a> {
+    clusters: Option<&'a Clusters>,
+    factor: f64,
+}
+
+impl<'a> Variance<'a> {
+    /// The variance for targets `t` of problem `p`: clustered when the
+    /// problem has clusters.
+    pub fn of(p: &'a Problem, t: &Targets) -> Variance<'a> {
+        let Some(c) = &p.clusters else {
+            return Variance {
+                clusters: None,
+                factor: 1.0,
+            };
+        };
+        let g = c.count as f64;
+        let n = p.n() as f64;
+        let linear = match t.linear_terms {
+            Some(k) if (k as f64) < n => (n - 1.0) / (n - k as f64),
+            _ => 1.0,
+        };
+        Variance {
+            clusters: Some(c),
+            factor: g / (g - 1.0) * linear,
+        }
+    }
+
+    /// Rows taken as independent.
+    pub fn rows() -> Variance<'static> {
+        Variance {
+            clusters: None,
+            factor: 1.0,
+        }
+    }
+
+    /// The standard error from per-row influence values `phi`.
+    pub fn std_error(&self, phi: impl Iterator<Item = f64> + Clone) -> f64 {
+        match self.clusters {
+            None => root_sum_squares(phi),
+            Some(c) => {
+                let mut sums = vec![0.0; c.count];
+                for (&g, v) in c.of.iter().zip(phi) {
+                    sums[g as usize] += v;
+                }
+                self.factor.sqrt() * root_sum_squares(sums.into_iter())
+            }
+        }
+    }
+
+    /// Cluster-robust (summed within clusters)?
+    pub fn clustered(&self) -> bool {
+        self.clusters.is_some()
+    }
+}
+
+/// The contrast `c` of `t` on `scale`, its standard error by `variance`;
+/// `None` when the estimator did not form one of its two targets.
+pub fn form(
+    t: &Targets,
+    c: &ContrastSpec,
+    scale: Scale,
+    level: f64,
+    variance: &Variance<'_>,
+) -> Option<Result<Formed>> {
     let (i1, i0) = (t.position(c.level)?, t.position(c.reference)?);
     let arms = Arms {
         mu1: t.values[i1],
@@ -100,7 +173,7 @@ pub fn form(t: &Targets, c: &ContrastSpec, scale: Scale, level: f64) -> Option<R
         phi0: &t.influence[i0],
     };
     Some(
-        interval(scale, &arms, level).map(|(estimate, std_error, ci)| Formed {
+        interval(scale, &arms, level, variance).map(|(estimate, std_error, ci)| Formed {
             estimate,
             std_error,
             ci,
@@ -118,9 +191,15 @@ pub fn point(p: &Points, c: &ContrastSpec, scale: Scale) -> f64 {
     }
 }
 
-/// A single target's normal interval (a point of a curve).
+/// A single target's normal interval (a point of a curve), rows taken as
+/// independent.
 pub fn target_interval(t: &Targets, k: usize, level: f64) -> (f64, [f64; 2]) {
-    let se = root_sum_squares(t.influence[k].iter().copied());
+    target_interval_by(t, k, level, &Variance::rows())
+}
+
+/// A single target's normal interval, its standard error by `variance`.
+pub fn target_interval_by(t: &Targets, k: usize, level: f64, variance: &Variance<'_>) -> (f64, [f64; 2]) {
+    let se = variance.std_error(t.influence[k].iter().copied());
     let z = z_value(level);
     let v = t.values[k];
     (se, [v - z * se, v + z * se])
@@ -176,7 +255,12 @@ pub fn root_sum_squares(x: impl Iterator<Item = f64> + Clone) -> f64 {
     m * x.map(|v| (v / m) * (v / m)).sum::<f64>().sqrt()
 }
 
-pub(crate) fn interval(scale: Scale, arms: &Arms<'_>, level: f64) -> Result<(f64, f64, [f64; 2])> {
+pub(crate) fn interval(
+    scale: Scale,
+    arms: &Arms<'_>,
+    level: f64,
+    variance: &Variance<'_>,
+) -> Result<(f64, f64, [f64; 2])> {
     let est = effect(scale, arms.mu1, arms.mu0)?;
     let (d1, d0) = match scale {
         Scale::Difference => (1.0, 1.0),
@@ -186,7 +270,7 @@ pub(crate) fn interval(scale: Scale, arms: &Arms<'_>, level: f64) -> Result<(f64
             1.0 / (arms.mu0 * (1.0 - arms.mu0)),
         ),
     };
-    let se = root_sum_squares(arms.phi1.iter().zip(arms.phi0).map(|(a, b)| d1 * a - d0 * b));
+    let se = variance.std_error(arms.phi1.iter().zip(arms.phi0).map(|(a, b)| d1 * a - d0 * b));
     if !se.is_finite() {
         return Err(Error::Numerical("the standard error is not finite".into()));
     }
@@ -213,7 +297,7 @@ mod tests {
             phi1: &[0.1, 0.0],
             phi0: &[0.0, -0.1],
         };
-        let (e, se, ci) = interval(Scale::Ratio, &arms, 0.95).unwrap();
+        let (e, se, ci) = interval(Scale::Ratio, &arms, 0.95, &Variance::rows()).unwrap();
         let sl = (0.04f64 + 0.16).sqrt();
         assert!((e - 2.0).abs() < 1e-12);
         assert!((se - 2.0 * sl).abs() < 1e-12);

@@ -183,9 +183,10 @@ pub fn needs(estimators: &[&dyn Estimator]) -> Needs {
 /// targets themselves (for curves).
 pub fn rows(e: &dyn Estimator, p: &Problem, fits: &Fits) -> Result<(Vec<Estimate>, Targets)> {
     let t = e.targets(p, fits)?;
+    let variance = contrast::Variance::of(p, &t);
     let mut out = Vec::new();
     for c in p.contrasts() {
-        let Some(formed) = contrast::form(&t, &c, p.spec.scale, p.spec.level) else {
+        let Some(formed) = contrast::form(&t, &c, p.spec.scale, p.spec.level, &variance) else {
             continue;
         };
         let f = formed?;
@@ -203,6 +204,8 @@ pub fn rows(e: &dyn Estimator, p: &Problem, fits: &Fits) -> Result<(Vec<Estimate
             estimate: f.estimate,
             std_error: f.std_error,
             ci: f.ci,
+            // Cluster-robust when the problem has clusters (the JSON's
+            // `design.cluster` says so; the contract keeps the name).
             ci_method: "sandwich".into(),
             level: p.spec.level,
             means: (!t.means_hidden).then(|| Means {

@@ -91,6 +91,9 @@ impl Estimator for Regression {
                 "outcome model shows {s}; predictions near 0 or 1 are unstable"
             ));
         }
+        if !m.binary {
+            out.linear_terms = Some(m.coef.len());
+        }
         let model = if m.binary {
             "logistic regression"
         } else {

@@ -85,6 +85,11 @@ pub struct Targets {
     /// Per target, each row's influence, scaled so that
     /// `value - truth ~ sum_i influence_i` (hence `Var = sum_i influence_i^2`).
     pub influence: Vec<Vec<f64>>,
+    /// The coefficients of the linear outcome model the targets come from,
+    /// when they come from one alone (regression standardization of a
+    /// continuous outcome): the small-sample factor of a clustered
+    /// variance uses it.
+    pub linear_terms: Option<usize>,
     /// The means are not reported as such (the front-door product of
     /// coefficients forms a one-unit effect, not two means).
     pub means_hidden: bool,

@@ -32,6 +32,14 @@
 //!   their second and third moments alike;
 //! - normal: estimate ± z_{1-α} × bootstrap standard error.
 //!
+//! The resampling unit is a row or, for clustered rows, a whole cluster
+//! ([`Units`]): a cluster bootstrap draws G clusters with replacement out
+//! of G and gives each row its cluster's draw count as frequency weight
+//! (Davison and Hinkley, Bootstrap Methods and their Application, 1997,
+//! section 3.8; Cameron, Gelbach and Miller, Rev Econ Stat 2008;90:414-427);
+//! the jackknife leaves out whole clusters (or groups of them). Every step
+//! above is the same with "row" read as "unit".
+//!
 //! A replicate whose closure fails (for example a model that does not
 //! converge), or that returns a value that is not finite, is counted as
 //! failed for the statistics concerned and reported; the intervals use the
@@ -242,6 +250,46 @@ fn below(rng: &mut ChaCha8Rng, n: u64) -> u64 {
     (m >> 64) as u64
 }
 
+/// What the bootstrap resamples: rows, or whole clusters of rows.
+#[derive(Debug, Clone, Copy)]
+pub enum Units<'a> {
+    /// `n` independent rows.
+    Rows(usize),
+    /// Clusters: `of[i]` is row i's cluster, numbered 0..`count`.
+    Clusters {
+        /// Each row's cluster.
+        of: &'a [u32],
+        /// Number of clusters.
+        count: usize,
+    },
+}
+
+impl Units<'_> {
+    /// Number of rows.
+    pub fn rows(&self) -> usize {
+        match self {
+            Units::Rows(n) => *n,
+            Units::Clusters { of, .. } => of.len(),
+        }
+    }
+
+    /// Number of resampling units.
+    pub fn count(&self) -> usize {
+        match self {
+            Units::Rows(n) => *n,
+            Units::Clusters { count, .. } => *count,
+        }
+    }
+
+    /// Per-row frequency weights from per-unit weights.
+    fn to_rows(self, w: Vec<f64>) -> Vec<f64> {
+        match self {
+            Units::Rows(_) => w,
+            Units::Clusters { of, .. } => of.iter().map(|&g| w[g as usize]).collect(),
+        }
+    }
+}
+
 /// The frequency weights of bootstrap replicate `replicate` (0-based) for
 /// `n` rows under `seed`: how many times each row was drawn in n draws with
 /// replacement.
@@ -330,7 +378,19 @@ pub fn run<F>(n: usize, opts: &BootOpts, stat: F) -> Result<Draws>
 where
     F: Fn(&[f64]) -> Result<Vec<f64>> + Sync,
 {
-    check_opts(n, opts)?;
+    run_units(Units::Rows(n), opts, stat)
+}
+
+/// [`run`] over resampling `units`: rows, or whole clusters (each row
+/// weighted by its cluster's draw count; the jackknife leaves out whole
+/// clusters). `stat` still receives one weight per row.
+pub fn run_units<F>(units: Units<'_>, opts: &BootOpts, stat: F) -> Result<Draws>
+where
+    F: Fn(&[f64]) -> Result<Vec<f64>> + Sync,
+{
+    let n = units.rows();
+    let k = units.count();
+    check_opts(k, opts)?;
     let estimate = stat(&vec![1.0; n])?;
     let m = estimate.len();
     if m == 0 {
@@ -358,7 +418,7 @@ where
         (0..opts.replicates as u64)
             .into_par_iter()
             .map(|i| {
-                let w = resample_weights(n, seed, i);
+                let w = units.to_rows(resample_weights(k, seed, i));
                 let r = stat(&w);
                 progress.advance(1);
                 r
@@ -367,7 +427,7 @@ where
     });
     progress.finish();
     let (groups, membership) = if opts.bca {
-        jackknife_groups(n, seed)
+        jackknife_groups(k, seed)
     } else {
         (0, None)
     };
@@ -376,10 +436,10 @@ where
             .into_par_iter()
             .map(|g| {
                 let w: Vec<f64> = match &membership {
-                    None => (0..n).map(|i| if i == g { 0.0 } else { 1.0 }).collect(),
-                    Some(grp) => grp.iter().map(|&k| if k == g { 0.0 } else { 1.0 }).collect(),
+                    None => (0..k).map(|i| if i == g { 0.0 } else { 1.0 }).collect(),
+                    Some(grp) => grp.iter().map(|&j| if j == g { 0.0 } else { 1.0 }).collect(),
                 };
-                stat(&w)
+                stat(&units.to_rows(w))
             })
             .collect()
     });

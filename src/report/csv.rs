@@ -130,6 +130,15 @@ pub fn estimates(graph: &str, a: &Analysis) -> DataTable {
     if contrasts {
         columns.splice(8..8, ["contrast_level", "contrast_reference"]);
     }
+    let cluster = a.design.as_ref().and_then(|d| d.cluster.as_ref());
+    if cluster.is_some() {
+        columns.extend([
+            "cluster_variable",
+            "clusters",
+            "cluster_min_size",
+            "cluster_max_size",
+        ]);
+    }
     let mut t = DataTable::new("estimates", &columns);
     let [strategy, set] = strategy_cells(a);
     let note = if a.identification.directed_path {
@@ -187,6 +196,14 @@ pub fn estimates(graph: &str, a: &Analysis) -> DataTable {
                 .contrast()
                 .map_or([String::new(), String::new()], |c| c.values());
             row.splice(8..8, [text(l), text(r)]);
+        }
+        if let Some(c) = cluster {
+            row.extend([
+                text(&c.variable),
+                Cell::Count(c.count),
+                Cell::Count(c.min_size),
+                Cell::Count(c.max_size),
+            ]);
         }
         t.row(row);
     }

@@ -171,6 +171,12 @@ pub fn estimates_table(a: &Analysis) -> Table {
         }
         t.row(row);
     }
+    if let Some(c) = a.design.as_ref().and_then(|d| d.cluster.as_ref()) {
+        t.notes.push(format!(
+            "Standard errors and intervals are cluster-robust ({} clusters by {}).",
+            c.count, c.variable
+        ));
+    }
     t.notes.push(
         if a.estimates.iter().any(|e| e.estimate.scale != Scale::Difference) {
             "Analytic intervals use the sandwich (M-estimation) standard error, on the log scale for ratios."
@@ -254,6 +260,13 @@ pub fn sample_text(a: &Analysis) -> String {
         t.push_str(", none dropped");
     }
     t.push('.');
+    if let Some(c) = a.design.as_ref().and_then(|d| d.cluster.as_ref()) {
+        t.push_str(&format!(
+            " The rows form {} clusters by {} ({} to {} rows each); standard errors and intervals are \
+             cluster-robust.",
+            c.count, c.variable, c.min_size, c.max_size
+        ));
+    }
     t
 }
 
@@ -485,6 +498,14 @@ pub fn methods_paragraphs(a: &Analysis) -> Vec<String> {
             "Analytic standard errors are sandwich (M-estimation) standard errors from the stacked estimating \
              equations of every fitted model, carried to the effect by the delta method (Stefanski & Boos 2002).",
         );
+        if let Some(c) = a.design.as_ref().and_then(|d| d.cluster.as_ref()) {
+            s.push_str(&format!(
+                " They are cluster-robust: influence values were summed within each of the {} clusters \
+                 defined by {} before squaring (Liang & Zeger 1986), with the small-sample factor G/(G-1) \
+                 ((N-1)/(N-K) besides for a least-squares outcome model with K coefficients).",
+                c.count, c.variable
+            ));
+        }
         if a.estimates.iter().any(|e| e.estimate.scale != Scale::Difference) {
             s.push_str(" Intervals for ratios are formed on the log scale.");
         }
@@ -496,9 +517,14 @@ pub fn methods_paragraphs(a: &Analysis) -> Vec<String> {
         };
         s.push_str(&format!(
             " Alongside them, nonparametric bootstrap {} intervals from {} replicates refitting every model \
-             are reported ({cite}).",
+             are reported ({cite}){}.",
             bootstrap_long(&b.interval),
-            b.replicates
+            b.replicates,
+            if a.design.as_ref().is_some_and(|d| d.cluster.is_some()) {
+                ", each replicate drawing whole clusters with replacement"
+            } else {
+                ""
+            }
         ));
     }
     paras.push(s);
