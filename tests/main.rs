@@ -16,6 +16,7 @@ mod cli_identify;
 mod data_csv;
 mod estimate_bootstrap;
 mod estimate_cases;
+mod estimate_cluster;
 mod estimate_exposures;
 mod estimate_frontdoor;
 mod estimate_nhefs;

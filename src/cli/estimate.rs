@@ -27,7 +27,9 @@ use std::path::PathBuf;
 /// is exposed, and the report says which. An exposure of three or more
 /// levels compares each with --reference (default the lowest); a numeric
 /// exposure with many values is a dose, with a dose-response curve at --at
-/// and a comparison of two doses with --contrast.
+/// and a comparison of two doses with --contrast. Rows grouped in clusters
+/// (--cluster COLUMN) get cluster-robust intervals, and a bootstrap that
+/// resamples whole clusters.
 ///
 /// Examples (run from the repository root):
 ///   causeway estimate --graph demo-data/main.graph --data demo-data/study.csv \
@@ -42,6 +44,8 @@ use std::path::PathBuf;
 ///       --exposure role --outcome pain_days --reference office
 ///   causeway estimate --graph demo-data/main.graph --data demo-data/study.csv \
 ///       --exposure bmi --outcome pain_days --at 20,25,30,35 --contrast 20,30
+///   causeway estimate --graph demo-data/main.graph --data demo-data/study.csv \
+///       --exposure bmi --outcome pain_days --cluster role
 #[derive(clap::Args)]
 #[command(verbatim_doc_comment)]
 pub struct Args {
