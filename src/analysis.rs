@@ -686,6 +686,16 @@ fn sensitivity(
             (None, None)
         }
     };
+    if rv.is_some()
+        && let Some(c) = &p.clusters
+    {
+        details.notes.push(format!(
+            "the robustness value and its benchmarks come from the least-squares t statistic of the \
+             outcome model, which treats the rows as independent; the {} clusters by {} are not \
+             accounted for there (the E-value's interval limit is cluster-robust)",
+            c.count, c.variable
+        ));
+    }
     let mut by_contrast = Vec::new();
     let rows: Vec<&Item> = estimates
         .iter()

@@ -200,6 +200,19 @@ pub fn comparison_table(runs: &[Run], level: f64) -> Table {
             t.notes.push(format!("{}: {}.", r.graph, c.sentence()));
         }
     }
+    for r in runs {
+        if let RunResult::Done(a) = &r.result
+            && let Some(c) = a.design.as_ref().and_then(|d| d.cluster.as_ref())
+        {
+            let note = format!(
+                "Standard errors and intervals are cluster-robust ({} clusters by {}, {} to {} rows each).",
+                c.count, c.variable, c.min_size, c.max_size
+            );
+            if !t.notes.contains(&note) {
+                t.notes.push(note);
+            }
+        }
+    }
     t.notes
         .push("The E-value is given for the first method of each graph.".into());
     t
