@@ -320,3 +320,89 @@ fn a_single_cluster_or_an_unknown_column_is_refused() {
     assert!(unknown.stderr.contains("'sites'"), "{}", unknown.stderr);
     assert!(unknown.stderr.contains("did you mean"), "{}", unknown.stderr);
 }
+
+// Closed form, every method and exposure kind: with every row its own
+// cluster, summing within clusters changes nothing but the small-sample
+// factor, so the clustered standard error is the row-level one times
+// sqrt(N/(N-1)), and times sqrt((N-1)/(N-K)) besides for regression
+// standardization of a continuous outcome (K outcome-model coefficients).
+// Tolerance 1e-10 relative (the same sums in another order).
+#[test]
+fn one_row_clusters_give_the_row_level_sandwich_times_the_factor() {
+    use causeway::estimate::{ESTIMATORS, applicable, rows};
+    use causeway::identify::Strategy;
+    use causeway::learn::Fits;
+    let n = 400;
+    let mut r = rng(77);
+    let (mut id, mut x, mut dose, mut level, mut y) = (vec![], vec![], vec![], vec![], vec![]);
+    for i in 0..n {
+        let xi = normal(&mut r);
+        let d = 2.0 + 0.5 * xi + normal(&mut r);
+        let l = ((xi + normal(&mut r)).clamp(-1.4, 1.4) + 1.5).floor();
+        id.push(i as f64);
+        x.push(xi);
+        dose.push(d);
+        level.push(l);
+        y.push(1.0 + d + l + xi + normal(&mut r));
+    }
+    let d = dataset(vec![
+        ("id", id),
+        ("x", x),
+        ("dose", dose),
+        ("level", level),
+        ("y", y),
+    ]);
+    let cases = [
+        Spec {
+            exposure: "level".into(),
+            categorical: vec!["level".into()],
+            ..Spec::default()
+        },
+        Spec {
+            exposure: "dose".into(),
+            contrast: Some((1.0, 3.0)),
+            ..Spec::default()
+        },
+    ];
+    let mut checked = 0;
+    for case in cases {
+        let base = Spec {
+            outcome: "y".into(),
+            covariates: vec!["x".into()],
+            ..case
+        };
+        let with = Spec {
+            cluster: Some("id".into()),
+            ..base.clone()
+        };
+        let (p0, p1) = (
+            Problem::build(&d, &base).unwrap(),
+            Problem::build(&d, &with).unwrap(),
+        );
+        assert_eq!(p1.clusters.as_ref().unwrap().count, n);
+        let fits = Fits::fit(&p0, None, None, causeway::estimate::needs(&ESTIMATORS));
+        for e in applicable(&p0, Strategy::Backdoor) {
+            let (a, _) = rows(e, &p0, &fits).unwrap();
+            let (b, _) = rows(e, &p1, &fits).unwrap();
+            assert_eq!(a.len(), b.len());
+            let nf = n as f64;
+            let mut factor = nf / (nf - 1.0);
+            if e.about().name == "regression" {
+                let k = p0.outcome_design.ncols() as f64;
+                factor *= (nf - 1.0) / (nf - k);
+            }
+            for (ra, rb) in a.iter().zip(&b) {
+                let want = ra.std_error * factor.sqrt();
+                assert!(
+                    close(rb.std_error, want, 1e-10),
+                    "{} {}: {} vs {want}",
+                    e.about().name,
+                    base.exposure,
+                    rb.std_error
+                );
+                checked += 1;
+            }
+        }
+    }
+    assert!(checked >= 6, "{checked}");
+}
