@@ -268,8 +268,12 @@ fn fewer_than_thirty_clusters_are_warned_of() {
             "--quiet",
         ],
     );
-    assert!(text.stdout.contains("3 clusters by role"), "{}", text.stdout);
-    assert!(text.stdout.contains("cluster-robust"), "{}", text.stdout);
+    let flat = text.stdout.split_whitespace().collect::<Vec<_>>().join(" ");
+    assert!(
+        flat.contains("The rows form 3 clusters by role (611 to 1470 rows each)"),
+        "{flat}"
+    );
+    assert!(flat.contains("intervals are cluster-robust"), "{flat}");
     // 48 clusters: no such warning.
     let v = json(&["--cluster", "site", "--method", "regression"]);
     assert!(!v["warnings"].to_string().contains("clusters in"));
@@ -405,4 +409,49 @@ fn one_row_clusters_give_the_row_level_sandwich_times_the_factor() {
         }
     }
     assert!(checked >= 6, "{checked}");
+}
+
+#[test]
+fn compare_and_demo_take_the_cluster_column() {
+    let demo = run_in(
+        &repo(""),
+        &["demo", "--cluster", "role", "--format", "json", "--quiet"],
+    );
+    assert_eq!(demo.code, 0, "{}", demo.stderr);
+    let v: Value = serde_json::from_str(&demo.stdout).unwrap();
+    let runs = v["runs"].as_array().unwrap();
+    let done: Vec<&Value> = runs.iter().filter(|r| r.get("sample").is_some()).collect();
+    assert!(!done.is_empty());
+    for r in done {
+        assert_eq!(r["design"]["cluster"]["variable"], "role", "{r}");
+        assert_eq!(r["design"]["cluster"]["count"], 3);
+    }
+    let compare = run_in(
+        &repo(""),
+        &[
+            "compare",
+            "--graph",
+            "demo-data/main.graph",
+            "--graph",
+            "demo-data/hidden-motivation.graph",
+            "--data",
+            "demo-data/study.csv",
+            "--exposure",
+            "enrolled",
+            "--outcome",
+            "pain_days",
+            "--categorical",
+            "role",
+            "--cluster",
+            "role",
+            "--quiet",
+        ],
+    );
+    assert_eq!(compare.code, 0, "{}", compare.stderr);
+    let flat = compare.stdout.split_whitespace().collect::<Vec<_>>().join(" ");
+    assert!(
+        flat.contains("cluster-robust (3 clusters by role, 611 to 1470 rows each)"),
+        "{}",
+        compare.stdout
+    );
 }
