@@ -314,3 +314,39 @@ fn methods_without_weighted_equations_are_refused_and_regression_serves_a_dose()
     assert_eq!(methods, ["regression"]);
     assert_eq!(v["design"]["weights"], "w");
 }
+
+// Weights with clusters: one-row clusters give the weighted row-level
+// sandwich times sqrt(G/(G-1)) for IPW (closed form, G = 900 rows).
+#[test]
+fn weights_combine_with_one_row_clusters_as_the_closed_form_says() {
+    let dir = tempfile::tempdir().unwrap();
+    let text = std::fs::read_to_string(repo("tests/data/weighted.csv")).unwrap();
+    let mut out = String::new();
+    for (i, line) in text.lines().enumerate() {
+        out.push_str(line);
+        out.push_str(&if i == 0 {
+            ",id\n".to_string()
+        } else {
+            format!(",r{i}\n")
+        });
+    }
+    let csv = dir.path().join("ids.csv");
+    std::fs::write(&csv, out).unwrap();
+    let get = |extra: &[&str]| -> Value {
+        let r = weighted(dir.path(), csv.to_str().unwrap(), extra);
+        assert_eq!(r.code, 0, "{}", r.stderr);
+        serde_json::from_str(&r.stdout).unwrap()
+    };
+    let both = get(&["--weights", "w", "--cluster", "id", "--method", "ipw"]);
+    let only = get(&["--weights", "w", "--method", "ipw"]);
+    assert_eq!(both["design"]["weights"], "w");
+    assert_eq!(both["design"]["cluster"]["count"], 900);
+    let g = 900.0f64;
+    let (a, b) = (row(&both, "ipw"), row(&only, "ipw"));
+    assert!(close(num(&a["estimate"]), num(&b["estimate"]), 1e-12));
+    assert!(close(
+        num(&a["std_error"]),
+        num(&b["std_error"]) * (g / (g - 1.0)).sqrt(),
+        1e-9
+    ));
+}
