@@ -350,3 +350,32 @@ fn weights_combine_with_one_row_clusters_as_the_closed_form_says() {
         1e-9
     ));
 }
+
+#[test]
+fn compare_takes_the_weight_column() {
+    let r = run_in(
+        &repo(""),
+        &[
+            "compare",
+            "--graph",
+            "tests/data/weighted.graph",
+            "--graph",
+            "tests/data/weighted.graph",
+            "--data",
+            "tests/data/weighted.csv",
+            "--exposure",
+            "treated",
+            "--outcome",
+            "y",
+            "--weights",
+            "w",
+            "--method",
+            "regression",
+            "--quiet",
+        ],
+    );
+    assert_eq!(r.code, 0, "{}", r.stderr);
+    assert!(r.stdout.contains("sampling weights in w"), "{}", r.stdout);
+    // The weighted estimate (fixture: WLS coefficient 2.026).
+    assert!(r.stdout.contains("2.026"), "{}", r.stdout);
+}
