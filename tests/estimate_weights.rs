@@ -379,3 +379,54 @@ fn compare_takes_the_weight_column() {
     // The weighted estimate (fixture: WLS coefficient 2.026).
     assert!(r.stdout.contains("2.026"), "{}", r.stdout);
 }
+
+// A categorical exposure (tests/data/multilevel.csv, invented): constant
+// weights leave every method's estimates and standard errors unchanged,
+// for each contrast against the reference level.
+#[test]
+fn constant_weights_change_nothing_for_a_categorical_exposure() {
+    let dir = tempfile::tempdir().unwrap();
+    let text = std::fs::read_to_string(repo("tests/data/multilevel.csv")).unwrap();
+    let mut out = String::new();
+    for (i, line) in text.lines().enumerate() {
+        out.push_str(line);
+        out.push_str(if i == 0 { ",c\n" } else { ",0.25\n" });
+    }
+    let csv = dir.path().join("m.csv");
+    std::fs::write(&csv, out).unwrap();
+    let graph = repo("tests/data/multilevel.graph");
+    let get = |extra: &[&str]| -> Value {
+        let mut args = vec![
+            "estimate",
+            "--graph",
+            graph.to_str().unwrap(),
+            "--data",
+            csv.to_str().unwrap(),
+            "--exposure",
+            "dose_group",
+            "--outcome",
+            "y",
+            "--method",
+            "regression,ipw,ipw-ht,aipw",
+            "--format",
+            "json",
+            "--quiet",
+        ];
+        args.extend_from_slice(extra);
+        let r = run_in(dir.path(), &args);
+        assert_eq!(r.code, 0, "{}", r.stderr);
+        serde_json::from_str(&r.stdout).unwrap()
+    };
+    let (w, p) = (get(&["--weights", "c"]), get(&[]));
+    let (ew, ep) = (
+        w["estimates"].as_array().unwrap(),
+        p["estimates"].as_array().unwrap(),
+    );
+    assert_eq!(ew.len(), ep.len());
+    assert!(ew.len() >= 8);
+    for (a, b) in ew.iter().zip(ep) {
+        assert_eq!(a["method"], b["method"]);
+        assert!(close(num(&a["estimate"]), num(&b["estimate"]), 1e-9), "{a} {b}");
+        assert!(close(num(&a["std_error"]), num(&b["std_error"]), 1e-9), "{a} {b}");
+    }
+}
