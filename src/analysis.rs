@@ -104,8 +104,12 @@ pub struct Item {
 /// The JSON `design` block: how the rows were sampled.
 #[derive(Debug, Clone, Serialize)]
 pub struct StudyDesign {
-    /// The sampling-weight column (none here: rows are equally weighted).
+    /// The sampling-weight column (`None`: rows are equally weighted).
     pub weights: Option<String>,
+    /// Kish's effective sample size of the sampling weights,
+    /// `(sum w)^2 / sum w^2` over the used rows.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub effective_sample_size: Option<f64>,
     /// The clusters rows are grouped into, when given.
     pub cluster: Option<crate::problem::Clusters>,
 }
@@ -289,10 +293,10 @@ pub fn columns(plan: &Plan, opts: &Options) -> Vec<String> {
     ];
     c.extend(plan.adjustment_set.iter().flatten().cloned());
     c.extend(plan.frontdoor_set.iter().flatten().cloned());
-    if let Some(k) = &opts.model.cluster
-        && !c.contains(k)
-    {
-        c.push(k.clone());
+    for k in [&opts.model.cluster, &opts.model.weights].into_iter().flatten() {
+        if !c.contains(k) {
+            c.push(k.clone());
+        }
     }
     if opts.check.is_some() {
         for v in g.observed() {
@@ -357,7 +361,7 @@ pub fn run(plan: &Plan, data: &Dataset, opts: &Options) -> Result<Analysis> {
             exposure: true,
         });
     }
-    let fits = Fits::fit(&problem, None, None, needs);
+    let fits = Fits::fit(&problem, problem.sampling(), None, needs);
     let mut warnings = plan.warnings.clone();
     warnings.extend(problem.warnings.iter().cloned());
     let mut notes: Vec<String> = problem
@@ -414,7 +418,7 @@ pub fn run(plan: &Plan, data: &Dataset, opts: &Options) -> Result<Analysis> {
                 level_diagnostics = Some(d);
             }
             Ok(crate::learn::ExposureModel::Dose(dd)) => {
-                let (d, w) = estimate::dose_diagnostics(dd);
+                let (d, w) = estimate::dose_diagnostics(&problem, dd);
                 warnings.extend(w);
                 dose_diagnostics = Some(d);
             }
@@ -453,9 +457,10 @@ pub fn run(plan: &Plan, data: &Dataset, opts: &Options) -> Result<Analysis> {
             reason: plan.reason.clone(),
         },
         sample: problem.sample.clone(),
-        design: problem.clusters.clone().map(|c| StudyDesign {
-            weights: None,
-            cluster: Some(c),
+        design: (problem.clusters.is_some() || problem.weights.is_some()).then(|| StudyDesign {
+            weights: problem.weights.as_ref().map(|w| w.variable.clone()),
+            effective_sample_size: problem.weights.as_ref().map(|w| w.effective_n),
+            cluster: problem.clusters.clone(),
         }),
         estimates,
         diagnostics,
@@ -556,10 +561,12 @@ fn run_bootstrap(
         None => bootstrap::Units::Rows(p.n()),
     };
     let draws = bootstrap::run_units(units, &boot, |w| {
-        let fits = Fits::fit(p, Some(w), Some(full), needs);
+        let w = p.fit_weights(Some(w));
+        let w = w.as_deref();
+        let fits = Fits::fit(p, w, Some(full), needs);
         let mut out = Vec::new();
         for ((m, (rows, doses)), tally) in methods.iter().zip(&layout).zip(&reasons) {
-            match m.point(p, &fits, Some(w)) {
+            match m.point(p, &fits, w) {
                 Ok(points) => out.extend(estimate::replicate(&points, p, rows, doses)),
                 Err(e) => {
                     let mut t = tally.lock().unwrap_or_else(|poisoned| poisoned.into_inner());
@@ -694,6 +701,16 @@ fn sensitivity(
              outcome model, which treats the rows as independent; the {} clusters by {} are not \
              accounted for there (the E-value's interval limit is cluster-robust)",
             c.count, c.variable
+        ));
+    }
+    if rv.is_some()
+        && let Some(w) = &p.weights
+    {
+        details.notes.push(format!(
+            "the robustness value and its benchmarks come from the least-squares t statistic of the \
+             outcome model fitted with the sampling weights in {} and the usual (not sandwich) \
+             standard error; read them as approximate",
+            w.variable
         ));
     }
     let mut by_contrast = Vec::new();

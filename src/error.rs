@@ -134,6 +134,8 @@ pub enum Setting {
     Draws,
     /// The column whose values group rows into clusters.
     Cluster,
+    /// The column of sampling weights.
+    Weights,
 }
 
 impl Setting {
@@ -175,6 +177,7 @@ impl Setting {
             Setting::Rows => "the number of rows to simulate",
             Setting::Draws => "the number of Monte Carlo draws",
             Setting::Cluster => "the cluster column",
+            Setting::Weights => "the sampling-weight column",
         }
     }
 }

@@ -105,6 +105,57 @@ pub struct Spec {
     /// The column whose values group rows into clusters (`None`: rows are
     /// independent).
     pub cluster: Option<String>,
+    /// The column of sampling (survey or design) weights (`None`: rows are
+    /// equally weighted).
+    pub weights: Option<String>,
+}
+
+/// The sampling weights of the used rows (the JSON `design.weights` names
+/// the column; the effective sample size goes with it).
+#[derive(Debug, Clone)]
+pub struct Weights {
+    /// The column.
+    pub variable: String,
+    /// Each used row's weight, scaled to mean 1 over the used rows (every
+    /// estimate, standard error and effective sample size is unchanged by
+    /// the scale; a model's residual degrees of freedom, sum w - K, then
+    /// count rows).
+    pub values: Vec<f64>,
+    /// Kish's effective sample size `(sum w)^2 / sum w^2` (Kish, Survey
+    /// Sampling, 1965).
+    pub effective_n: f64,
+}
+
+impl Weights {
+    /// The weights of the rows `sample` keeps, from column `name`. Every
+    /// row of the file must carry a finite positive number: a missing,
+    /// zero, negative, infinite or text cell is refused naming its line
+    /// (a row is never dropped for its weight alone).
+    pub fn of(data: &Dataset, sample: &Sample, name: &str) -> Result<Weights> {
+        let column = data.require(name)?;
+        let source = data.source();
+        let values = column.numeric(source, name, "sampling weights")?;
+        if let Some((line, col)) = column.first_missing {
+            return Err(Error::input(format!(
+                "{source}:{line}:{col}: the sampling weight in column '{name}' is missing; every row needs                  a positive weight (rows are not dropped for a missing weight: give the row its weight, or                  remove it from the file if it is not part of the sample)"
+            )));
+        }
+        if let Some(c) = &column.first_nonpositive {
+            return Err(Error::input(format!(
+                "{source}:{}:{}: the sampling weight in column '{name}' is '{}'; weights must be positive                  (a row that does not represent anyone is removed from the file, not given weight 0)",
+                c.line, c.column, c.text
+            )));
+        }
+        let mut values: Vec<f64> = sample.keep.iter().map(|&i| values[i]).collect();
+        let mean = values.iter().sum::<f64>() / values.len().max(1) as f64;
+        values.iter_mut().for_each(|w| *w /= mean);
+        let (s, s2) = values.iter().fold((0.0, 0.0), |(s, s2), w| (s + w, s2 + w * w));
+        Ok(Weights {
+            variable: name.to_string(),
+            effective_n: s * s / s2,
+            values,
+        })
+    }
 }
 
 /// Below this many clusters a warning says that cluster-robust intervals
@@ -211,6 +262,7 @@ impl Default for Spec {
             exposed: None,
             reference: None,
             cluster: None,
+            weights: None,
         }
     }
 }
@@ -248,6 +300,8 @@ pub struct Problem {
     pub warnings: Vec<String>,
     /// The clusters of the used rows (`None`: rows are independent).
     pub clusters: Option<Clusters>,
+    /// The sampling weights of the used rows (`None`: equal weights).
+    pub weights: Option<Weights>,
     /// The propensity design's rows, kept when they fit in memory.
     propensity_store: Option<Store>,
     /// The outcome design's rows (exposure as observed), likewise.
@@ -293,10 +347,10 @@ impl Problem {
         let mut used: Vec<&str> = vec![&spec.outcome, &spec.exposure];
         used.extend(spec.covariates.iter().map(String::as_str));
         used.extend(spec.mediators.iter().map(String::as_str));
-        if let Some(c) = &spec.cluster
-            && !used.contains(&c.as_str())
-        {
-            used.push(c);
+        for c in [&spec.cluster, &spec.weights].into_iter().flatten() {
+            if !used.contains(&c.as_str()) {
+                used.push(c);
+            }
         }
         let sample = data.complete_cases(&used)?;
         let mut warnings = Vec::new();
@@ -326,6 +380,10 @@ impl Problem {
             None => None,
         };
         warnings.extend(clusters.as_ref().and_then(Clusters::few_warning));
+        let weights = match &spec.weights {
+            Some(name) => Some(Weights::of(data, &sample, name)?),
+            None => None,
+        };
         let mut frame = Frame::new(sample.used);
         let outcome = frame.push_from(data, &sample, &spec.outcome, Role::Number)?;
         let choice = ExposureChoice {
@@ -444,6 +502,7 @@ impl Problem {
             adjusted,
             warnings,
             clusters,
+            weights,
             propensity_store,
             outcome_store,
         })
@@ -473,6 +532,30 @@ impl Problem {
     /// Number of rows used.
     pub fn n(&self) -> usize {
         self.frame.nrows()
+    }
+
+    /// The sampling weights of the used rows, if given.
+    pub fn sampling(&self) -> Option<&[f64]> {
+        self.weights.as_ref().map(|w| w.values.as_slice())
+    }
+
+    /// Row `i`'s sampling weight (1 when none are given).
+    pub fn weight(&self, i: usize) -> f64 {
+        self.weights.as_ref().map_or(1.0, |w| w.values[i])
+    }
+
+    /// The weights every fit and average is made under: the sampling
+    /// weights times the bootstrap frequency weights `freq` (a replicate
+    /// draws rows, and each drawn row keeps its sampling weight); `None`
+    /// when both are absent (all ones). The one place where the two meet.
+    pub fn fit_weights<'a>(&'a self, freq: Option<&'a [f64]>) -> Option<std::borrow::Cow<'a, [f64]>> {
+        use std::borrow::Cow;
+        match (self.sampling(), freq) {
+            (None, None) => None,
+            (Some(w), None) => Some(Cow::Borrowed(w)),
+            (None, Some(f)) => Some(Cow::Borrowed(f)),
+            (Some(w), Some(f)) => Some(Cow::Owned(w.iter().zip(f).map(|(a, b)| a * b).collect())),
+        }
     }
 
     /// Is the exposure binary?

@@ -63,6 +63,10 @@ pub struct Args {
     /// cluster-robust intervals, and whole clusters resampled by --bootstrap.
     #[arg(long, value_name = "COLUMN")]
     cluster: Option<String>,
+    /// A column of the demo data holding sampling weights (positive
+    /// numbers): weighted fits, averages and diagnostics.
+    #[arg(long, value_name = "COLUMN")]
+    weights: Option<String>,
     /// Print no progress bar and no warnings on stderr.
     #[arg(long)]
     quiet: bool,
@@ -90,6 +94,7 @@ fn flags(a: &Args) -> EstimateFlags {
         contrast: None,
         latent: None,
         cluster: a.cluster.clone(),
+        weights: a.weights.clone(),
         seed: a.seed,
         threads: a.threads,
         check: a.check,

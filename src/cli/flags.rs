@@ -109,6 +109,12 @@ pub struct EstimateFlags {
     /// clusters.
     #[arg(long, value_name = "COLUMN")]
     pub cluster: Option<String>,
+    /// A column of sampling (survey or design) weights, one positive number
+    /// per row (need not be a graph node): every model fit, average and
+    /// diagnostic is weighted, intervals treat the weights as known, and
+    /// the effective sample size is reported.
+    #[arg(long, value_name = "COLUMN")]
+    pub weights: Option<String>,
     /// Seed of the bootstrap's random streams.
     #[arg(long, allow_negative_numbers = true, default_value_t = 1, value_name = "N")]
     pub seed: u64,
@@ -292,6 +298,7 @@ impl EstimateFlags {
                 exposed: self.exposed.clone(),
                 reference: self.reference.clone(),
                 cluster: self.cluster.clone(),
+                weights: self.weights.clone(),
                 ..Spec::default()
             },
             bootstrap: self.bootstrap,

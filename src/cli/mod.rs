@@ -151,6 +151,7 @@ pub fn flag(setting: Setting) -> &'static str {
         Setting::Rows => "--rows",
         Setting::Draws => "--mc-draws",
         Setting::Cluster => "--cluster",
+        Setting::Weights => "--weights",
     }
 }
 
@@ -161,7 +162,7 @@ mod tests {
     use clap::CommandFactory;
 
     /// Every setting, so that each is checked against the flags below.
-    const SETTINGS: [Setting; 35] = [
+    const SETTINGS: [Setting; 36] = [
         Setting::Method,
         Setting::Estimand,
         Setting::Scale,
@@ -197,6 +198,7 @@ mod tests {
         Setting::Rows,
         Setting::Draws,
         Setting::Cluster,
+        Setting::Weights,
     ];
 
     #[test]

@@ -54,6 +54,11 @@ pub struct Column {
     pub first_text: Option<Cell>,
     /// The first cell holding an infinite value.
     pub first_infinite: Option<Cell>,
+    /// The first cell holding a number that is zero or negative (a
+    /// sampling-weight column refuses it).
+    pub first_nonpositive: Option<Cell>,
+    /// The line and column of the first missing cell.
+    pub first_missing: Option<(u64, usize)>,
     /// Cells holding a number.
     pub numbers: usize,
     /// Cells holding something else than a number or a missing token.
@@ -86,6 +91,13 @@ impl Column {
         self.missing_tokens.iter().map(|t| t.1).sum()
     }
 
+    /// Notes where a missing cell lies, when it is the first.
+    pub(crate) fn note_missing(&mut self, line: u64, column: usize) {
+        if self.first_missing.is_none() {
+            self.first_missing = Some((line, column));
+        }
+    }
+
     /// Appends a missing cell.
     fn push_missing(&mut self) {
         self.values.push(f64::NAN);
@@ -98,10 +110,16 @@ impl Column {
     pub(crate) fn push(&mut self, raw: &[u8], line: u64, column: usize) {
         let parsed = std::str::from_utf8(raw).ok().and_then(|s| s.parse::<f64>().ok());
         match parsed {
-            Some(v) if v.is_nan() => return self.push_token(raw),
+            Some(v) if v.is_nan() => {
+                self.note_missing(line, column);
+                return self.push_token(raw);
+            }
             Some(v) => {
                 if v.is_infinite() && self.first_infinite.is_none() {
                     self.first_infinite = Some(cell(raw, line, column));
+                }
+                if v <= 0.0 && self.first_nonpositive.is_none() {
+                    self.first_nonpositive = Some(cell(raw, line, column));
                 }
                 self.numbers += 1;
                 self.values.push(v);

@@ -84,10 +84,21 @@ impl Dataset {
                 column: names.len() + 1,
                 text: format!("{}", values[i]),
             });
+            let first_nonpositive = values.iter().position(|&v| v <= 0.0).map(|i| Cell {
+                line: i as u64 + 2,
+                column: names.len() + 1,
+                text: value_text(values[i]),
+            });
+            let first_missing = values
+                .iter()
+                .position(|v| v.is_nan())
+                .map(|i| (i as u64 + 2, names.len() + 1));
             names.push(name);
             cols.push(Some(Column {
                 values,
                 first_infinite,
+                first_nonpositive,
+                first_missing,
                 ..Column::default()
             }));
         }

@@ -342,6 +342,7 @@ impl Dataset {
                 if let Some(c) = col {
                     let raw = trim(&rec[j]);
                     if missing_token(raw) {
+                        c.note_missing(line, j + 1);
                         c.push_token(raw);
                     } else if let Some(why) = super::column::unfit(raw) {
                         return Err(Error::input(format!(

@@ -26,6 +26,7 @@ static ABOUT: About = About {
     label: "AIPW (doubly robust)",
     strategies: &[Strategy::Backdoor],
     serves: &[Serves::Binary, Serves::Levels],
+    weighted: &[Serves::Binary, Serves::Levels],
     estimands: &[Estimand::Ate],
     needs: Needs {
         outcome: true,
@@ -120,8 +121,12 @@ impl Estimator for Aipw {
         // The propensity model first: its failure is the reason reported.
         let q = Scores::of(p, fits)?;
         let om = fits.outcome()?;
+        // Under sampling weights w_i the mean is sum_i w_i term_i / sum_i w_i,
+        // and each row's part of every estimating equation carries w_i
+        // (the models' own scores take it inside their influence).
         let n = p.n();
-        let nf = n as f64;
+        let w = |i: usize| p.weight(i);
+        let nf: f64 = (0..n).map(w).sum();
         let observed = om.predict(p, Setting::Observed);
         let (a, y) = (p.a(), p.y());
         let prop_rows = p.propensity_rows();
@@ -129,20 +134,23 @@ impl Estimator for Aipw {
         for t in p.targets() {
             let Target::Level(k) = t else { continue };
             let m = om.at(p, t);
-            let mu = (0..n).map(|i| term(a[i], k, y[i], m[i], q.q(k, i))).sum::<f64>() / nf;
+            let mu = (0..n)
+                .map(|i| w(i) * term(a[i], k, y[i], m[i], q.q(k, i)))
+                .sum::<f64>()
+                / nf;
             let r = |i: usize| f64::from(u8::from(a[i] as usize == k));
             // d/d beta = (1 - R/q) dm.
-            let u: Vec<f64> = (0..n).map(|i| (1.0 - r(i) / q.q(k, i)) / nf).collect();
+            let u: Vec<f64> = (0..n).map(|i| w(i) * (1.0 - r(i) / q.q(k, i)) / nf).collect();
             let kb = om.gradient(p, t.setting(), &m, &u);
             drop(u);
             let mut phi = om.influence(p, &kb, &observed);
             // d/d q = -R (Y - m) / q^2, through the propensity model.
             let dq: Vec<f64> = (0..n)
-                .map(|i| -r(i) * (y[i] - m[i]) / (q.q(k, i) * q.q(k, i)) / nf)
+                .map(|i| -w(i) * r(i) * (y[i] - m[i]) / (q.q(k, i) * q.q(k, i)) / nf)
                 .collect();
             let ig = propensity_influence(p, fits, k, &dq, &prop_rows)?;
             for (i, v) in phi.iter_mut().enumerate() {
-                *v += (term(a[i], k, y[i], m[i], q.q(k, i)) - mu) / nf + ig[i];
+                *v += w(i) * (term(a[i], k, y[i], m[i], q.q(k, i)) - mu) / nf + ig[i];
             }
             out.push(t, mu, phi);
         }

@@ -154,19 +154,22 @@ pub fn diagnostics(p: &Problem, ps: &Propensity) -> Diagnostics {
     };
     let h: Vec<(f64, f64)> = (0..n)
         .map(|i| {
+            // Under sampling weights each row's weight is its sampling weight
+            // times its inverse probability weight.
             let (h1, h0, _, _) = arm_weights(p.spec.estimand, a[i], ps.e[i]);
-            (h1, h0)
+            (p.weight(i) * h1, p.weight(i) * h0)
         })
         .collect();
     let h1: Vec<f64> = h.iter().map(|x| x.0).collect();
     let h0: Vec<f64> = h.iter().map(|x| x.1).collect();
     let w: Vec<f64> = h.iter().map(|x| x.0 + x.1).collect();
     let wr = range(w.iter().copied());
-    let mean = w.iter().sum::<f64>() / n as f64;
+    let total: f64 = (0..n).map(|i| p.weight(i)).sum();
+    let mean = w.iter().sum::<f64>() / total;
     let ess = |h: &[f64]| h.iter().sum::<f64>().powi(2) / h.iter().map(|x| x * x).sum::<f64>();
     let share = |h: &[f64]| h.iter().fold(0.0f64, |m, &x| m.max(x)) / h.iter().sum::<f64>();
     let stabilized = (p.spec.estimand == Estimand::Ate).then(|| {
-        let pa = a.iter().sum::<f64>() / n as f64;
+        let pa = (0..n).map(|i| p.weight(i) * a[i]).sum::<f64>() / total;
         let s: Vec<f64> = (0..n)
             .map(|i| {
                 if a[i] == 1.0 {
@@ -178,7 +181,7 @@ pub fn diagnostics(p: &Problem, ps: &Propensity) -> Diagnostics {
             .collect();
         let r = range(s.iter().copied());
         Summary {
-            mean: s.iter().sum::<f64>() / n as f64,
+            mean: (0..n).map(|i| p.weight(i) * s[i]).sum::<f64>() / total,
             min: r.min,
             max: r.max,
         }
@@ -193,8 +196,8 @@ pub fn diagnostics(p: &Problem, ps: &Propensity) -> Diagnostics {
         max_share_control: share(&h0),
         stabilized,
     };
-    let r1: Vec<f64> = a.to_vec();
-    let r0: Vec<f64> = a.iter().map(|x| 1.0 - x).collect();
+    let r1: Vec<f64> = (0..n).map(|i| p.weight(i) * a[i]).collect();
+    let r0: Vec<f64> = (0..n).map(|i| p.weight(i) * (1.0 - a[i])).collect();
     let balance = balance(&term_columns(p), (&r1, &r0), (&h1, &h0));
     let mut warnings = Vec::new();
     if propensity.treated_outside_control_range + propensity.control_outside_treated_range > 0 {
@@ -300,12 +303,20 @@ pub fn level_diagnostics(p: &Problem, lp: &LevelPropensity) -> (Vec<LevelDiagnos
     let at = |i: usize, k: usize| a[i] as usize == k;
     let weight = |k: usize| -> Vec<f64> {
         (0..n)
-            .map(|i| if at(i, k) { 1.0 / lp.prob[k][i] } else { 0.0 })
+            .map(|i| {
+                if at(i, k) {
+                    p.weight(i) / lp.prob[k][i]
+                } else {
+                    0.0
+                }
+            })
             .collect()
     };
     let reference = weight(0);
     let columns = term_columns(p);
-    let ref_raw: Vec<f64> = (0..n).map(|i| f64::from(u8::from(at(i, 0)))).collect();
+    let ref_raw: Vec<f64> = (0..n)
+        .map(|i| p.weight(i) * f64::from(u8::from(at(i, 0))))
+        .collect();
     let mut out = Vec::new();
     let mut warnings = Vec::new();
     for (k, label) in levels.iter().enumerate() {
@@ -318,7 +329,9 @@ pub fn level_diagnostics(p: &Problem, lp: &LevelPropensity) -> (Vec<LevelDiagnos
         let hk: Vec<f64> = h.iter().copied().filter(|&x| x > 0.0).collect();
         let wr = range(hk.iter().copied());
         let ess = hk.iter().sum::<f64>().powi(2) / hk.iter().map(|x| x * x).sum::<f64>();
-        let raw: Vec<f64> = (0..n).map(|i| f64::from(u8::from(at(i, k)))).collect();
+        let raw: Vec<f64> = (0..n)
+            .map(|i| p.weight(i) * f64::from(u8::from(at(i, k))))
+            .collect();
         let balance = if k == 0 {
             Vec::new()
         } else {
@@ -375,16 +388,30 @@ const SKEW_LIMIT: f64 = 1.0;
 const KURTOSIS_LIMIT: f64 = 2.0;
 
 /// Weight diagnostics of a continuous exposure, and warnings.
-pub fn dose_diagnostics(dd: &DoseDensity) -> (DoseDiagnostics, Vec<String>) {
-    let w = &dd.weights;
-    let n = w.len() as f64;
+/// Under sampling weights every row's weight is its sampling weight times
+/// its density-ratio weight, and the residual moments are weighted.
+pub fn dose_diagnostics(p: &Problem, dd: &DoseDensity) -> (DoseDiagnostics, Vec<String>) {
+    let w: Vec<f64> = dd
+        .weights
+        .iter()
+        .enumerate()
+        .map(|(i, x)| p.weight(i) * x)
+        .collect();
+    let n: f64 = (0..w.len()).map(|i| p.weight(i)).sum();
     let r = range(w.iter().copied());
     let mean = w.iter().sum::<f64>() / n;
     let ess = w.iter().sum::<f64>().powi(2) / w.iter().map(|x| x * x).sum::<f64>();
-    let zm = dd.z.iter().sum::<f64>() / n;
-    let m2 = dd.z.iter().map(|z| (z - zm).powi(2)).sum::<f64>() / n;
-    let m3 = dd.z.iter().map(|z| (z - zm).powi(3)).sum::<f64>() / n;
-    let m4 = dd.z.iter().map(|z| (z - zm).powi(4)).sum::<f64>() / n;
+    let moment = |f: &dyn Fn(f64) -> f64| {
+        dd.z.iter()
+            .enumerate()
+            .map(|(i, &z)| p.weight(i) * f(z))
+            .sum::<f64>()
+            / n
+    };
+    let zm = moment(&|z| z);
+    let m2 = moment(&|z| (z - zm).powi(2));
+    let m3 = moment(&|z| (z - zm).powi(3));
+    let m4 = moment(&|z| (z - zm).powi(4));
     let skew = m3 / m2.powf(1.5);
     let kurt = m4 / (m2 * m2) - 3.0;
     let mut warnings = Vec::new();

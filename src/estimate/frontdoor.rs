@@ -36,6 +36,7 @@ static ABOUT: About = About {
     label: "front-door formula",
     strategies: &[Strategy::Frontdoor],
     serves: &[Serves::Binary, Serves::Dose],
+    weighted: &[],
     estimands: &[Estimand::Ate],
     needs: Needs {
         outcome: false,

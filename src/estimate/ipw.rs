@@ -46,6 +46,7 @@ static HAJEK: About = About {
     label: "IPW (normalized weights)",
     strategies: &[Strategy::Backdoor],
     serves: &[Serves::Binary, Serves::Levels, Serves::Dose],
+    weighted: &[Serves::Binary, Serves::Levels],
     estimands: &[Estimand::Ate, Estimand::Att, Estimand::Atc],
     needs: Needs {
         outcome: false,
@@ -59,6 +60,7 @@ static HORVITZ_THOMPSON: About = About {
     label: "IPW (Horvitz-Thompson)",
     strategies: &[Strategy::Backdoor],
     serves: &[Serves::Binary, Serves::Levels],
+    weighted: &[Serves::Binary, Serves::Levels],
     estimands: &[Estimand::Ate, Estimand::Att, Estimand::Atc],
     needs: Needs {
         outcome: false,
@@ -183,15 +185,25 @@ impl Ipw {
     }
 
     fn binary_targets(&self, p: &Problem, ps: &Propensity) -> Result<Targets> {
-        let (mu1, mu0) = self.means(p, ps, None)?;
+        // Under sampling weights w_i every row's weight and its derivative
+        // carry w_i (the weighted estimating equations
+        // sum_i w_i h_i (Y_i - mu) = 0 stacked with the weighted propensity
+        // score equations), and so does its population share.
+        let (mu1, mu0) = self.means(p, ps, p.sampling())?;
         let (a, y, est, n) = (p.a(), p.y(), p.spec.estimand, p.n());
         let ht = self.horvitz_thompson;
-        let pop: f64 = (0..n).map(|i| population(est, a[i])).sum();
+        let share = |i: usize| p.weight(i) * population(est, a[i]);
+        let pop: f64 = (0..n).map(share).sum();
         let arm = |arm: usize, mu: f64| -> Vec<f64> {
             // Row i's weight in this arm and its derivative in the score.
             let h = |i: usize| {
                 let (h1, h0, d1, d0) = arm_weights(est, a[i], ps.e[i]);
-                if arm == 1 { (h1, d1) } else { (h0, d0) }
+                let w = p.weight(i);
+                if arm == 1 {
+                    (w * h1, w * d1)
+                } else {
+                    (w * h0, w * d0)
+                }
             };
             let s = if ht { pop } else { (0..n).map(|i| h(i).0).sum() };
             // Derivative of the estimating function in the coefficients.
@@ -206,7 +218,7 @@ impl Ipw {
             let mut phi = ps.influence(p, &k);
             for (i, f) in phi.iter_mut().enumerate() {
                 let u = if ht {
-                    h(i).0 * y[i] - population(est, a[i]) * mu
+                    h(i).0 * y[i] - share(i) * mu
                 } else {
                     h(i).0 * (y[i] - mu)
                 };
@@ -266,20 +278,32 @@ impl Ipw {
         let (a, y, n) = (p.a(), p.y(), p.n());
         let ht = self.horvitz_thompson;
         let levels = lp.prob.len();
+        let total: f64 = (0..n).map(|i| p.weight(i)).sum();
         let mut t = Targets::default();
         for k in 0..levels {
             let pk = &lp.prob[k];
-            let mu = self.level_mean(p, pk, k, None)?;
+            let mu = self.level_mean(p, pk, k, p.sampling())?;
+            // Each row's weight, its sampling weight w_i included.
             let h: Vec<f64> = (0..n)
-                .map(|i| if a[i] as usize == k { 1.0 / pk[i] } else { 0.0 })
+                .map(|i| {
+                    if a[i] as usize == k {
+                        p.weight(i) / pk[i]
+                    } else {
+                        0.0
+                    }
+                })
                 .collect();
-            let s = if ht { n as f64 } else { h.iter().sum() };
+            let s = if ht { total } else { h.iter().sum() };
             let r = |i: usize| if ht { y[i] } else { y[i] - mu };
             // h_i = 1{A_i = k} / p_ik, so d h_i = -(h_i / p_ik) d p_ik.
             let g: Vec<f64> = (0..n).map(|i| -h[i] / pk[i] * r(i)).collect();
             let mut phi = lp.influence(p, &lp.gradient(p, k, &g));
             for (i, f) in phi.iter_mut().enumerate() {
-                let u = if ht { h[i] * y[i] - mu } else { h[i] * (y[i] - mu) };
+                let u = if ht {
+                    h[i] * y[i] - p.weight(i) * mu
+                } else {
+                    h[i] * (y[i] - mu)
+                };
                 *f = (u + *f) / s;
             }
             t.push(Target::Level(k), mu, phi);

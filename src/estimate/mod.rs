@@ -60,6 +60,8 @@ pub struct About {
     pub strategies: &'static [Strategy],
     /// The exposure kinds it serves.
     pub serves: &'static [Serves],
+    /// The exposure kinds for which it takes sampling weights.
+    pub weighted: &'static [Serves],
     /// The estimands it forms.
     pub estimands: &'static [Estimand],
     /// The nuisance models it needs.
@@ -145,6 +147,14 @@ pub fn refusal(e: &dyn Estimator, p: &Problem, strategy: Strategy) -> Option<Err
             p.kind.words(),
             p.spec.exposure,
             others(&|x| fits_strategy(x) && serves(x))
+        )
+    } else if p.weights.is_some() && !a.weighted.iter().any(|s| s.covers(&p.kind)) {
+        format!(
+            "'{}' does not take sampling weights for a {} exposure such as '{}' (with sampling weights: {})",
+            a.name,
+            p.kind.words(),
+            p.spec.exposure,
+            others(&|x| fits_strategy(x) && x.weighted.iter().any(|s| s.covers(&p.kind)))
         )
     } else if !a.estimands.contains(&p.spec.estimand) {
         let forms: Vec<String> = a.estimands.iter().map(|e| e.to_string()).collect();
@@ -275,7 +285,7 @@ impl Method {
 
     /// The full-sample fits this estimator needs.
     pub fn fits(&self, p: &Problem) -> Fits {
-        Fits::fit(p, None, None, self.0.about().needs)
+        Fits::fit(p, p.sampling(), None, self.0.about().needs)
     }
 
     /// The full-sample estimate of the first contrast.
@@ -295,8 +305,9 @@ impl Method {
         if let Some(e) = refusal(self.0, p, Self::strategy(p)) {
             return Err(e);
         }
-        let fits = Fits::fit(p, freq, full, self.0.about().needs);
-        let points = self.0.point(p, &fits, freq)?;
+        let w = p.fit_weights(freq);
+        let fits = Fits::fit(p, w.as_deref(), full, self.0.about().needs);
+        let points = self.0.point(p, &fits, w.as_deref())?;
         let c = p
             .contrasts()
             .into_iter()

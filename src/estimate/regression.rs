@@ -22,6 +22,7 @@ static ABOUT: About = About {
     label: "regression (standardization)",
     strategies: &[Strategy::Backdoor],
     serves: &[Serves::Binary, Serves::Levels, Serves::Dose],
+    weighted: &[Serves::Binary, Serves::Levels, Serves::Dose],
     estimands: &[Estimand::Ate, Estimand::Att, Estimand::Atc],
     needs: Needs {
         outcome: true,
@@ -72,7 +73,9 @@ impl Estimator for Regression {
 
     fn targets(&self, p: &Problem, fits: &Fits) -> Result<Targets> {
         let m = fits.outcome()?;
-        let u = group_weights(p, None);
+        // Under sampling weights the averaging is weighted and so is the
+        // outcome model's score (see `OutcomeFit::influence`).
+        let u = group_weights(p, p.sampling());
         let total: f64 = u.iter().sum();
         if total <= 0.0 {
             return Err(Error::input(format!(

@@ -51,8 +51,8 @@ pub fn sensitivity_inputs(p: &Problem) -> Result<Option<SensitivityInputs>> {
     if p.binary_outcome() || p.adjusted.exposure_terms().len() != 1 {
         return Ok(None);
     }
-    let out = Ols::fit(&p.adjusted.rows(&p.frame, Setting::Observed), p.y(), None)?;
-    let exp = Ols::fit(&p.propensity_rows(), p.a(), None)?;
+    let out = Ols::fit(&p.adjusted.rows(&p.frame, Setting::Observed), p.y(), p.sampling())?;
+    let exp = Ols::fit(&p.propensity_rows(), p.a(), p.sampling())?;
     let ja = p
         .adjusted
         .exposure_term()
@@ -95,7 +95,7 @@ pub fn level_coefficients(p: &Problem) -> Result<Vec<(f64, f64, f64)>> {
     if p.binary_outcome() {
         return Ok(Vec::new());
     }
-    let out = Ols::fit(&p.adjusted.rows(&p.frame, Setting::Observed), p.y(), None)?;
+    let out = Ols::fit(&p.adjusted.rows(&p.frame, Setting::Observed), p.y(), p.sampling())?;
     let se = out.se();
     Ok(p.adjusted
         .exposure_terms()

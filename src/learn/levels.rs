@@ -29,7 +29,7 @@ impl Nuisance for LevelPropensity {
         let model = Multinomial::fit(&rows, &codes, k, w, start, LogitOptions::default())?;
         if let Some(s) = &model.separation {
             let x = &p.spec.exposure;
-            return Err(match w {
+            return Err(match full {
                 None => Error::Separation(format!(
                     "the levels of the exposure '{x}' are predicted perfectly by its adjustment covariates \
                      ({s} in its multinomial propensity model): some units had no chance of some levels (a \
@@ -65,7 +65,8 @@ impl LevelPropensity {
 
     /// Row i's influence on `k' (gamma_hat - gamma)`, with `k` stacked as
     /// the parameters (level by level, levels 1..K-1): `s_i' I^-1 k` where
-    /// the score's block for level j is `(1{A_i = j} - p_ij) x_i`.
+    /// the score's block for level j is `(1{A_i = j} - p_ij) x_i`, times
+    /// the row's sampling weight when given.
     pub fn influence(&self, p: &Problem, k: &DVector<f64>) -> Vec<f64> {
         let c = &self.model.cov * k;
         let rows = p.propensity_rows();
@@ -77,7 +78,7 @@ impl LevelPropensity {
             let lin = linear_predictor(&rows, &cj);
             for (i, v) in d.iter_mut().enumerate() {
                 let r = f64::from(u8::from(a[i] as usize == j)) - self.prob[j][i];
-                *v += r * lin[i];
+                *v += p.weight(i) * r * lin[i];
             }
         }
         d

@@ -87,7 +87,7 @@ impl Nuisance for OutcomeFit {
                     chol: f.chol().clone(),
                     separation: f.separation.clone(),
                     binary,
-                    logit: w.is_none().then_some(f),
+                    logit: Some(f),
                     at: Vec::new(),
                 };
                 let aliased = aliased_in(&fit.chol);
@@ -172,12 +172,14 @@ impl OutcomeFit {
         weighted_sum(&p.outcome_design.rows(&p.frame, setting), &v)
     }
 
-    /// Row i's influence on `k' (b - beta)`: `x_i' B^-1 k (y_i - mu_i)`.
+    /// Row i's influence on `k' (b - beta)`: `x_i' B^-1 k w_i (y_i - mu_i)`,
+    /// `w_i` the row's sampling weight (1 when none are given; the bread
+    /// `B` is then the weighted `X'WX` or information of the weighted fit).
     pub fn influence(&self, p: &Problem, k: &DVector<f64>, mu_observed: &[f64]) -> Vec<f64> {
         let c = self.chol.solve(k);
         let mut d = linear_predictor(&p.outcome_rows(), &c);
-        for ((d, y), m) in d.iter_mut().zip(p.y()).zip(mu_observed) {
-            *d *= y - m;
+        for (i, ((d, y), m)) in d.iter_mut().zip(p.y()).zip(mu_observed).enumerate() {
+            *d *= p.weight(i) * (y - m);
         }
         d
     }

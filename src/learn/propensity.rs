@@ -48,7 +48,7 @@ impl Nuisance for Propensity {
             // On the full sample this is a property of the data (bad input,
             // explained by the covariates behind it); in a resample it is a
             // failed replicate.
-            return Err(match w {
+            return Err(match full {
                 None => Error::Separation(format!(
                     "the exposure '{x}' is predicted perfectly by {} ({s} in its propensity model): those \
                      units had no chance of the other exposure level (a positivity violation), so weighting \
@@ -102,8 +102,10 @@ impl Propensity {
         let fit = self.fit.as_ref().expect("influence of a full-sample fit");
         let c = fit.bread_solve(k);
         let mut d = linear_predictor(&p.propensity_rows(), &c);
+        // Under sampling weights the score of row i is w_i z_i (A_i - e_i)
+        // and the information is weighted alike.
         for (i, (d, a)) in d.iter_mut().zip(p.a()).enumerate() {
-            *d *= a - self.raw(i);
+            *d *= p.weight(i) * (a - self.raw(i));
         }
         d
     }

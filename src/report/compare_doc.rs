@@ -202,6 +202,17 @@ pub fn comparison_table(runs: &[Run], level: f64) -> Table {
     }
     for r in runs {
         if let RunResult::Done(a) = &r.result
+            && let Some(d) = &a.design
+            && let (Some(w), Some(ess)) = (&d.weights, d.effective_sample_size)
+        {
+            let note = format!(
+                "Estimates and standard errors use the sampling weights in {w} (effective sample size {ess:.1})."
+            );
+            if !t.notes.contains(&note) {
+                t.notes.push(note);
+            }
+        }
+        if let RunResult::Done(a) = &r.result
             && let Some(c) = a.design.as_ref().and_then(|d| d.cluster.as_ref())
         {
             let note = format!(

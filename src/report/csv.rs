@@ -130,6 +130,13 @@ pub fn estimates(graph: &str, a: &Analysis) -> DataTable {
     if contrasts {
         columns.splice(8..8, ["contrast_level", "contrast_reference"]);
     }
+    let weights = a
+        .design
+        .as_ref()
+        .and_then(|d| d.weights.as_ref().zip(d.effective_sample_size));
+    if weights.is_some() {
+        columns.extend(["weights_variable", "effective_sample_size"]);
+    }
     let cluster = a.design.as_ref().and_then(|d| d.cluster.as_ref());
     if cluster.is_some() {
         columns.extend([
@@ -196,6 +203,9 @@ pub fn estimates(graph: &str, a: &Analysis) -> DataTable {
                 .contrast()
                 .map_or([String::new(), String::new()], |c| c.values());
             row.splice(8..8, [text(l), text(r)]);
+        }
+        if let Some((w, ess)) = weights {
+            row.extend([text(w), Cell::Num(ess)]);
         }
         if let Some(c) = cluster {
             row.extend([

@@ -171,6 +171,11 @@ pub fn estimates_table(a: &Analysis) -> Table {
         }
         t.row(row);
     }
+    if let Some(w) = a.design.as_ref().and_then(|d| d.weights.as_ref()) {
+        t.notes.push(format!(
+            "Estimates and standard errors use the sampling weights in {w}."
+        ));
+    }
     if let Some(c) = a.design.as_ref().and_then(|d| d.cluster.as_ref()) {
         t.notes.push(format!(
             "Standard errors and intervals are cluster-robust ({} clusters by {}).",
@@ -260,6 +265,14 @@ pub fn sample_text(a: &Analysis) -> String {
         t.push_str(", none dropped");
     }
     t.push('.');
+    if let Some(d) = &a.design
+        && let (Some(w), Some(ess)) = (&d.weights, d.effective_sample_size)
+    {
+        t.push_str(&format!(
+            " Rows are weighted by the sampling weights in {w} (effective sample size {ess:.1}); \
+             every model fit, average and diagnostic uses them."
+        ));
+    }
     if let Some(c) = a.design.as_ref().and_then(|d| d.cluster.as_ref()) {
         t.push_str(&format!(
             " The rows form {} clusters by {} ({} to {} rows each); standard errors and intervals are \
@@ -498,6 +511,13 @@ pub fn methods_paragraphs(a: &Analysis) -> Vec<String> {
             "Analytic standard errors are sandwich (M-estimation) standard errors from the stacked estimating \
              equations of every fitted model, carried to the effect by the delta method (Stefanski & Boos 2002).",
         );
+        if let Some(w) = a.design.as_ref().and_then(|d| d.weights.as_ref()) {
+            s.push_str(&format!(
+                " Every model was fitted, and every average taken, with the sampling weights in {w}; the \
+                 sandwich treats the weights as known (each row's influence carries its weight, \
+                 w_i times its estimating-function value over the weighted bread)."
+            ));
+        }
         if let Some(c) = a.design.as_ref().and_then(|d| d.cluster.as_ref()) {
             s.push_str(&format!(
                 " They are cluster-robust: influence values were summed within each of the {} clusters \
