@@ -35,18 +35,7 @@ fn json(extra: &[&str]) -> Value {
     serde_json::from_str(&r.stdout).unwrap()
 }
 
-fn row<'a>(v: &'a Value, name: &str) -> &'a Value {
-    v["estimates"]
-        .as_array()
-        .unwrap()
-        .iter()
-        .find(|e| e["method"] == name)
-        .unwrap()
-}
-
-fn close(a: f64, b: f64, rel: f64) -> bool {
-    (a - b).abs() <= rel * b.abs()
-}
+use crate::helpers::{method_row as row, rel_close as close};
 
 // Source: tests/fixtures/cluster_reference.json, made by
 // tests/scripts/make_cluster_fixtures.py (statsmodels 0.15.0 OLS with

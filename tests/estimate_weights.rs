@@ -36,18 +36,7 @@ fn json(extra: &[&str]) -> Value {
     serde_json::from_str(&r.stdout).unwrap()
 }
 
-fn row<'a>(v: &'a Value, name: &str) -> &'a Value {
-    v["estimates"]
-        .as_array()
-        .unwrap()
-        .iter()
-        .find(|e| e["method"] == name)
-        .unwrap()
-}
-
-fn close(a: f64, b: f64, rel: f64) -> bool {
-    (a - b).abs() <= rel * b.abs()
-}
+use crate::helpers::{method_row as row, rel_close as close};
 
 fn num(v: &Value) -> f64 {
     v.as_f64().unwrap()

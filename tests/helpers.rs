@@ -130,3 +130,18 @@ pub const DEMO_QUESTION: [&str; 6] = [
     "--categorical",
     "role",
 ];
+
+/// The row of `method` in an `estimate --format json` result.
+pub fn method_row<'a>(v: &'a serde_json::Value, method: &str) -> &'a serde_json::Value {
+    v["estimates"]
+        .as_array()
+        .expect("an estimates list")
+        .iter()
+        .find(|e| e["method"] == method)
+        .unwrap_or_else(|| panic!("no row for {method}"))
+}
+
+/// Whether `a` is within `rel` of `b`, relative to `b`.
+pub fn rel_close(a: f64, b: f64, rel: f64) -> bool {
+    (a - b).abs() <= rel * b.abs()
+}
