@@ -137,12 +137,15 @@ impl Weights {
         let values = column.numeric(source, name, "sampling weights")?;
         if let Some((line, col)) = column.first_missing {
             return Err(Error::input(format!(
-                "{source}:{line}:{col}: the sampling weight in column '{name}' is missing; every row needs                  a positive weight (rows are not dropped for a missing weight: give the row its weight, or                  remove it from the file if it is not part of the sample)"
+                "{source}:{line}:{col}: the sampling weight in column '{name}' is missing; every row needs \
+                 a positive weight (rows are not dropped for a missing weight: give the row its weight, or \
+                 remove it from the file if it is not part of the sample)"
             )));
         }
         if let Some(c) = &column.first_nonpositive {
             return Err(Error::input(format!(
-                "{source}:{}:{}: the sampling weight in column '{name}' is '{}'; weights must be positive                  (a row that does not represent anyone is removed from the file, not given weight 0)",
+                "{source}:{}:{}: the sampling weight in column '{name}' is '{}'; weights must be positive \
+                 (a row that does not represent anyone is removed from the file, not given weight 0)",
                 c.line, c.column, c.text
             )));
         }
