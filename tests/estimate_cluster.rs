@@ -3,11 +3,10 @@
 //! a seeded coverage simulation, the cluster bootstrap, the JSON
 //! `design.cluster` block and the refusals.
 
-use crate::estimate_sim::{dataset, normal, rng};
+use crate::designs::{clustered as simulate, dataset, normal, rng};
 use crate::helpers::{fixture, repo, run_in};
 use causeway::estimate::{Problem, Spec, method};
 use causeway::infer::bootstrap::{BootOpts, Units, run_units};
-use rand::RngExt;
 use serde_json::Value;
 
 fn clustered(extra: &[&str]) -> crate::helpers::Run {
@@ -95,27 +94,6 @@ fn cluster_robust_standard_errors_match_statsmodels_and_numpy() {
     assert!(plain.get("design").is_none());
     let p = row(&plain, "ipw")["std_error"].as_f64().unwrap();
     assert!(p < 0.6 * ipw["std_error"].as_f64().unwrap(), "{p}");
-}
-
-/// Clustered data: `g` clusters of `m` rows; the exposure leans on a
-/// cluster tendency and the outcome carries a shared cluster effect.
-fn simulate(seed: u64, g: usize, m: usize) -> causeway::data::Dataset {
-    let mut r = rng(seed);
-    let (mut site, mut x, mut a, mut y) = (vec![], vec![], vec![], vec![]);
-    for k in 0..g {
-        let tendency = 1.5 * normal(&mut r);
-        let effect = 2.0 * normal(&mut r);
-        for _ in 0..m {
-            let xi = normal(&mut r);
-            let p = 1.0 / (1.0 + (-(0.5 * xi + tendency)).exp());
-            let ai = if r.random::<f64>() < p { 1.0 } else { 0.0 };
-            site.push(k as f64);
-            x.push(xi);
-            a.push(ai);
-            y.push(1.0 + 2.0 * ai + xi + effect + normal(&mut r));
-        }
-    }
-    dataset(vec![("site", site), ("x", x), ("a", a), ("y", y)])
 }
 
 // Seeded coverage simulation (200 repetitions, 50 clusters of 12 rows, true

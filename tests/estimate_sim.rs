@@ -7,20 +7,9 @@
 
 use causeway::data::Dataset;
 use causeway::estimate::{Estimand, Problem, Scale, Spec, method};
-use rand::{RngExt, SeedableRng};
-use rand_chacha::ChaCha8Rng;
+use rand::RngExt;
 
-pub fn rng(seed: u64) -> ChaCha8Rng {
-    ChaCha8Rng::seed_from_u64(seed)
-}
-
-pub fn normal(r: &mut ChaCha8Rng) -> f64 {
-    r.sample(rand_distr::StandardNormal)
-}
-
-pub fn dataset(cols: Vec<(&str, Vec<f64>)>) -> Dataset {
-    Dataset::from_columns("sim", cols.into_iter().map(|(n, v)| (n.to_string(), v)).collect()).unwrap()
-}
+pub use crate::designs::{dataset, normal, rng};
 
 /// Infinitesimal-jackknife standard error of `name`'s point estimate:
 /// sqrt(sum_i (d est / d w_i)^2) by central differences (step 1e-4).

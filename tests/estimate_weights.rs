@@ -3,11 +3,10 @@
 //! invented survey data, a seeded coverage simulation, the bootstrap with
 //! weights, the JSON `design.weights` key and the refusals.
 
-use crate::estimate_sim::{dataset, normal, rng};
+use crate::designs::surveyed as sample;
 use crate::helpers::{fixture, repo, run_in};
 use causeway::estimate::{Problem, Spec, method};
 use causeway::learn::{Fits, Needs};
-use rand::RngExt;
 use serde_json::Value;
 
 fn weighted(dir: &std::path::Path, data: &str, extra: &[&str]) -> crate::helpers::Run {
@@ -109,25 +108,6 @@ fn weighted_estimates_and_standard_errors_match_statsmodels_and_numpy() {
 /// One sample of `n` rows from a population in which x confounds and
 /// modifies the effect (population ATE 2) and rows with larger x are more
 /// likely to be sampled; `w` = 1 / selection probability.
-fn sample(seed: u64, n: usize) -> causeway::data::Dataset {
-    let mut r = rng(seed);
-    let (mut x, mut a, mut y, mut w) = (vec![], vec![], vec![], vec![]);
-    while x.len() < n {
-        let xi = normal(&mut r);
-        let p = 1.0 / (1.0 + (-0.5 * xi).exp());
-        let ai = if r.random::<f64>() < p { 1.0 } else { 0.0 };
-        let yi = 1.0 + ai * (2.0 + xi) + xi + normal(&mut r);
-        // Selection probabilities between 0.15 and 0.85 (weights 1.2 to 6.7).
-        let s = 0.15 + 0.7 / (1.0 + (-1.5 * xi).exp());
-        if r.random::<f64>() < s {
-            x.push(xi);
-            a.push(ai);
-            y.push(yi);
-            w.push(1.0 / s);
-        }
-    }
-    dataset(vec![("x", x), ("a", a), ("y", y), ("w", w)])
-}
 
 // Seeded coverage simulation (200 repetitions of 800 sampled rows; the
 // population ATE is 2, the sampled rows' own effect near 2.4): weighted IPW

@@ -14,6 +14,7 @@ mod cli_estimate;
 mod cli_help;
 mod cli_identify;
 mod data_csv;
+mod designs;
 mod estimate_bootstrap;
 mod estimate_cases;
 mod estimate_cluster;
