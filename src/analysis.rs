@@ -17,6 +17,7 @@ use crate::identify::Strategy;
 use crate::infer::bootstrap::{self, BootOpts, BootstrapBlock, IntervalKind};
 use crate::learn::{Fits, Needs};
 use crate::plan::Plan;
+use crate::problem::Missing;
 use crate::progress::Reporter;
 use crate::sensitivity::evalue::{self, EValue};
 use crate::sensitivity::robustness::{
@@ -27,6 +28,8 @@ use crate::{Error, Result, Setting};
 use serde::Serialize;
 use std::collections::BTreeMap;
 use std::sync::Mutex;
+
+mod imputed;
 
 /// Settings of an analysis, from the estimation flags.
 #[derive(Debug, Clone)]
@@ -181,6 +184,10 @@ pub struct Analysis {
     /// How each method was described for a methods paragraph, in order.
     #[serde(skip)]
     pub methods_sentences: Vec<String>,
+    /// Terms of the outcome model (the complete-data degrees of freedom of
+    /// multiple imputation are the used rows minus these).
+    #[serde(skip)]
+    pub model_terms: usize,
 }
 
 /// One method's dose-response curve.
@@ -312,6 +319,17 @@ pub fn columns(plan: &Plan, opts: &Options) -> Vec<String> {
 pub fn run(plan: &Plan, data: &Dataset, opts: &Options) -> Result<Analysis> {
     if plan.strategy == Strategy::None {
         return Err(Error::NotIdentified(plan.not_identified_reason()));
+    }
+    match opts.model.missing {
+        Missing::Complete => {}
+        Missing::Weight => {
+            return Err(Error::option(
+                Setting::Missing,
+                "weighting observed outcomes by their probability of being observed is not available \
+                 here; choose complete or impute",
+            ));
+        }
+        Missing::Impute => return imputed::run(plan, data, opts),
     }
     for name in &opts.model.interact {
         if !plan.adjustment_set.iter().flatten().any(|c| c == name) {
@@ -476,6 +494,7 @@ pub fn run(plan: &Plan, data: &Dataset, opts: &Options) -> Result<Analysis> {
         check,
         curves,
         methods_sentences,
+        model_terms: problem.outcome_design.ncols(),
     })
 }
 

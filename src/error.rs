@@ -136,6 +136,10 @@ pub enum Setting {
     Cluster,
     /// The column of sampling weights.
     Weights,
+    /// How rows with missing values are handled.
+    Missing,
+    /// The number of imputed datasets.
+    Imputations,
 }
 
 impl Setting {
@@ -178,6 +182,8 @@ impl Setting {
             Setting::Draws => "the number of Monte Carlo draws",
             Setting::Cluster => "the cluster column",
             Setting::Weights => "the sampling-weight column",
+            Setting::Missing => "the handling of missing values",
+            Setting::Imputations => "the number of imputations",
         }
     }
 }

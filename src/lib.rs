@@ -22,6 +22,7 @@ pub mod error;
 pub mod estimate;
 pub mod graph;
 pub mod identify;
+pub mod impute;
 pub mod infer;
 pub mod learn;
 pub mod maths;

@@ -108,7 +108,31 @@ pub struct Spec {
     /// The column of sampling (survey or design) weights (`None`: rows are
     /// equally weighted).
     pub weights: Option<String>,
+    /// How rows missing a used column are handled.
+    pub missing: Missing,
+    /// With [`Missing::Impute`]: the number of imputed datasets.
+    pub imputations: usize,
 }
+
+/// How rows missing a used column are handled.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, Default)]
+#[serde(rename_all = "lowercase")]
+pub enum Missing {
+    /// Rows missing a used column are dropped (complete cases).
+    #[default]
+    Complete,
+    /// Observed outcomes weighted by the inverse probability of being
+    /// observed.
+    Weight,
+    /// Multiple imputation by chained equations, pooled by Rubin's rules
+    /// (see [`crate::impute`]).
+    Impute,
+}
+
+/// The default number of imputed datasets (van Buuren 2018, *Flexible
+/// Imputation of Missing Data*, 2nd ed., sec. 2.8: 20 is a common choice
+/// when the fraction of missing information is moderate).
+pub const DEFAULT_IMPUTATIONS: usize = 20;
 
 /// The sampling weights of the used rows (the JSON `design.weights` names
 /// the column; the effective sample size goes with it).
@@ -266,6 +290,8 @@ impl Default for Spec {
             reference: None,
             cluster: None,
             weights: None,
+            missing: Missing::Complete,
+            imputations: DEFAULT_IMPUTATIONS,
         }
     }
 }

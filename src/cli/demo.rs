@@ -67,6 +67,12 @@ pub struct Args {
     /// numbers): weighted fits, averages and diagnostics.
     #[arg(long, value_name = "COLUMN")]
     weights: Option<String>,
+    /// Rows with missing values: complete, weight or impute.
+    #[arg(long, value_enum, default_value = "complete", value_name = "HOW")]
+    missing: super::flags::MissingArg,
+    /// With --missing impute: the number of imputed datasets.
+    #[arg(long, default_value_t = 20, value_name = "M")]
+    imputations: usize,
     /// Print no progress bar and no warnings on stderr.
     #[arg(long)]
     quiet: bool,
@@ -95,6 +101,8 @@ fn flags(a: &Args) -> EstimateFlags {
         latent: None,
         cluster: a.cluster.clone(),
         weights: a.weights.clone(),
+        missing: a.missing,
+        imputations: a.imputations,
         seed: a.seed,
         threads: a.threads,
         check: a.check,

@@ -11,6 +11,7 @@ use causeway::estimate::{Estimand, Scale, Spec};
 use causeway::graph::Graph;
 use causeway::infer::bootstrap::IntervalKind;
 use causeway::plan::{AdjustChoice, Plan, Roles, split_list};
+use causeway::problem::Missing;
 use causeway::report::doc::{FileStamp, Stamp, ToolInfo};
 use causeway::sensitivity::robustness::{BenchmarkChoice, check_multiples};
 use causeway::{Error, Result};
@@ -115,6 +116,14 @@ pub struct EstimateFlags {
     /// the effective sample size is reported.
     #[arg(long, value_name = "COLUMN")]
     pub weights: Option<String>,
+    /// Rows with missing values: complete (drop them), weight, or impute
+    /// (multiple imputation by chained equations, pooled by Rubin's rules).
+    #[arg(long, value_enum, default_value = "complete", value_name = "HOW")]
+    pub missing: MissingArg,
+    /// With --missing impute: the number of imputed datasets, each analysed
+    /// in full.
+    #[arg(long, default_value_t = 20, value_name = "M")]
+    pub imputations: usize,
     /// Seed of the bootstrap's random streams.
     #[arg(long, allow_negative_numbers = true, default_value_t = 1, value_name = "N")]
     pub seed: u64,
@@ -202,6 +211,18 @@ value_enum!(
         Quadratic => Shape::Quadratic,
         /// A restricted cubic spline with 4 knots.
         Spline => Shape::Spline,
+    }
+);
+
+value_enum!(
+    /// The `--missing` flag's values.
+    MissingArg => Missing {
+        /// Drop rows missing a used column.
+        Complete => Missing::Complete,
+        /// Weight observed outcomes by the inverse probability of being observed.
+        Weight => Missing::Weight,
+        /// Multiple imputation by chained equations.
+        Impute => Missing::Impute,
     }
 );
 
@@ -299,6 +320,8 @@ impl EstimateFlags {
                 reference: self.reference.clone(),
                 cluster: self.cluster.clone(),
                 weights: self.weights.clone(),
+                missing: self.missing.into(),
+                imputations: self.imputations,
                 ..Spec::default()
             },
             bootstrap: self.bootstrap,

@@ -158,6 +158,30 @@ impl Column {
         self.text = Some(t);
     }
 
+    /// Fills the missing row `i` with the number `v` (an imputed value);
+    /// a text column gets the level coded by its text.
+    pub(crate) fn fill_number(&mut self, i: usize, v: f64) {
+        self.values[i] = v;
+        self.numbers += 1;
+        if let Some(t) = &mut self.text {
+            t.codes[i] = t.code(format!("{v}").as_bytes());
+        }
+    }
+
+    /// Fills the missing row `i` of a text column with the level `code`.
+    pub(crate) fn fill_code(&mut self, i: usize, code: u32) {
+        if let Some(t) = &mut self.text {
+            t.codes[i] = code;
+            match t.levels[code as usize].parse::<f64>() {
+                Ok(v) => {
+                    self.values[i] = v;
+                    self.numbers += 1;
+                }
+                Err(_) => self.others += 1,
+            }
+        }
+    }
+
     /// Number of rows.
     pub fn len(&self) -> usize {
         self.values.len()

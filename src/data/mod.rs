@@ -47,7 +47,7 @@ pub use frame::{
 pub(crate) use kernel::{expit_into, gram_lower_add};
 pub use pass::{BLOCK, Block, DenseRows, Rows, map_rows, reduce, reduce_into, with_buffer};
 pub use read::{Delimiter, ReadOptions, compressed, not_text};
-pub use sample::{Sample, tokens_note};
+pub use sample::{Imputed, ImputedColumn, Sample, tokens_note};
 pub use spline::{rcs_basis, rcs_knots};
 pub use store::Store;
 
@@ -140,6 +140,13 @@ impl Dataset {
     pub fn column(&self, name: &str) -> Option<&Column> {
         let i = self.names.iter().position(|n| n == name)?;
         self.columns[i].as_ref()
+    }
+
+    /// The stored column `name`, to fill its imputed cells.
+    pub(crate) fn column_mut(&mut self, name: &str) -> crate::Result<&mut Column> {
+        let i = self.names.iter().position(|n| n == name);
+        i.and_then(|i| self.columns[i].as_mut())
+            .ok_or_else(|| crate::Error::Internal(format!("column '{name}' is not stored")))
     }
 
     /// The column `name`, or an input error naming the file.

@@ -27,6 +27,39 @@ pub struct Sample {
     /// Row indices kept, in file order.
     #[serde(skip)]
     pub keep: Vec<usize>,
+    /// How missing values were handled, when not by dropping rows.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub missing: Option<Imputed>,
+}
+
+/// The JSON `sample.missing` block of an analysis by multiple imputation.
+#[derive(Debug, Clone, Serialize)]
+pub struct Imputed {
+    /// `impute`.
+    pub handling: &'static str,
+    /// Imputed datasets, each analysed in full.
+    pub imputations: usize,
+    /// Rounds of the chained equations.
+    pub iterations: usize,
+    /// The largest change, between the last two rounds, of an imputed
+    /// column's summary averaged over the imputations' chains: its imputed
+    /// cells' mean in standard deviations of its observed values (a
+    /// numeric column) or a level's share (a categorical one). Near 0 when
+    /// the chains have settled.
+    pub largest_change: f64,
+    /// The imputed columns.
+    pub columns: Vec<ImputedColumn>,
+}
+
+/// One imputed column.
+#[derive(Debug, Clone, Serialize)]
+pub struct ImputedColumn {
+    /// The column.
+    pub column: String,
+    /// Its missing cells (imputed).
+    pub missing: usize,
+    /// The imputation model.
+    pub model: String,
 }
 
 impl Dataset {
@@ -62,6 +95,7 @@ impl Dataset {
             dropped_by_column: by_column,
             tokens_by_column: tokens,
             keep,
+            missing: None,
         })
     }
 }

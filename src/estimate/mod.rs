@@ -217,6 +217,8 @@ pub fn rows(e: &dyn Estimator, p: &Problem, fits: &Fits) -> Result<(Vec<Estimate
             // Cluster-robust when the problem has clusters (the JSON's
             // `design.cluster` says so; the contract keeps the name).
             ci_method: "sandwich".into(),
+            fraction_missing_information: None,
+            df: None,
             level: p.spec.level,
             means: (!t.means_hidden).then(|| Means {
                 exposed: f.means.0,

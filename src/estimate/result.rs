@@ -74,6 +74,14 @@ pub struct Estimate {
     pub ci: [f64; 2],
     /// How the interval was made (`sandwich`).
     pub ci_method: String,
+    /// With multiple imputation: the fraction of missing information
+    /// (see [`crate::infer::pool`]).
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub fraction_missing_information: Option<f64>,
+    /// With multiple imputation: the Barnard-Rubin degrees of freedom of
+    /// the pooled interval.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub df: Option<f64>,
     /// Confidence level.
     pub level: f64,
     /// Mean outcome under each setting, when the method forms them.

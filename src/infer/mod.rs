@@ -5,3 +5,4 @@
 //! every stage takes them from one place.
 
 pub mod bootstrap;
+pub mod pool;

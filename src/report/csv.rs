@@ -146,6 +146,10 @@ pub fn estimates(graph: &str, a: &Analysis) -> DataTable {
             "cluster_max_size",
         ]);
     }
+    let imputed = a.sample.missing.as_ref();
+    if imputed.is_some() {
+        columns.extend(["imputations", "fraction_missing_information", "df"]);
+    }
     let mut t = DataTable::new("estimates", &columns);
     let [strategy, set] = strategy_cells(a);
     let note = if a.identification.directed_path {
@@ -213,6 +217,13 @@ pub fn estimates(graph: &str, a: &Analysis) -> DataTable {
                 Cell::Count(c.count),
                 Cell::Count(c.min_size),
                 Cell::Count(c.max_size),
+            ]);
+        }
+        if let Some(m) = imputed {
+            row.extend([
+                Cell::Count(m.imputations),
+                Cell::opt(e.fraction_missing_information),
+                Cell::opt(e.df),
             ]);
         }
         t.row(row);

@@ -128,7 +128,11 @@ pub fn estimates_table(a: &Analysis) -> Table {
     let level = a.estimates.first().map_or(0.95, |e| e.estimate.level);
     let pct = format!("{:.0}%", 100.0 * level);
     let boot = a.estimates.iter().find_map(|e| e.bootstrap.as_ref());
-    let analytic_head = format!("{pct} interval (analytic)");
+    let imputed = a.sample.missing.as_ref();
+    let analytic_head = match imputed {
+        Some(_) => format!("{pct} interval (pooled)"),
+        None => format!("{pct} interval (analytic)"),
+    };
     let boot_head = boot.map(|b| format!("{pct} interval (bootstrap {})", bootstrap_label(&b.interval)));
     let contrasts = a.estimates.iter().any(|e| e.estimate.contrast().is_some());
     let mut heads = vec!["method"];
@@ -139,10 +143,17 @@ pub fn estimates_table(a: &Analysis) -> Table {
         "estimand",
         "scale",
         "estimate",
-        "std. error (analytic)",
+        if imputed.is_some() {
+            "std. error (pooled)"
+        } else {
+            "std. error (analytic)"
+        },
         &analytic_head,
     ]);
     heads.extend(boot_head.as_deref());
+    if imputed.is_some() {
+        heads.extend(["df", "missing information"]);
+    }
     let mut t = Table::new(&format!("Effect of {} on {}", a.exposure, a.outcome), &heads)
         .align(1, Align::Left)
         .align(2, Align::Left);
@@ -169,7 +180,23 @@ pub fn estimates_table(a: &Analysis) -> Table {
                 None => "-".into(),
             });
         }
+        if imputed.is_some() {
+            row.push(e.df.map_or("-".into(), |d| format!("{d:.1}")));
+            row.push(
+                e.fraction_missing_information
+                    .map_or("-".into(), |f| format!("{:.1}%", 100.0 * f)),
+            );
+        }
         t.row(row);
+    }
+    if let Some(m) = imputed {
+        t.notes.push(format!(
+            "Pooled over {} imputed datasets by Rubin's rules: each dataset's sandwich standard error \
+             within, the spread of the estimates between; intervals from the t distribution with the \
+             Barnard-Rubin degrees of freedom (df); missing information is the share of the estimate's \
+             variance due to the missing values.",
+            m.imputations
+        ));
     }
     if let Some(w) = a.design.as_ref().and_then(|d| d.weights.as_ref()) {
         t.notes.push(format!(
@@ -265,6 +292,26 @@ pub fn sample_text(a: &Analysis) -> String {
         t.push_str(", none dropped");
     }
     t.push('.');
+    if let Some(m) = &s.missing {
+        let cols: Vec<String> = m
+            .columns
+            .iter()
+            .map(|c| format!("{} {} ({})", c.column, c.missing, c.model))
+            .collect();
+        t.push_str(&format!(
+            " Missing cells were imputed by chained equations, {} imputations of {} rounds each \
+             (imputed cells by column: {}); the largest change of an imputed column's mean or level \
+             share between the last two rounds was {:.3}.",
+            m.imputations,
+            m.iterations,
+            if cols.is_empty() {
+                "none".to_string()
+            } else {
+                cols.join(", ")
+            },
+            m.largest_change
+        ));
+    }
     if let Some(d) = &a.design
         && let (Some(w), Some(ess)) = (&d.weights, d.effective_sample_size)
     {
