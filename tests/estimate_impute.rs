@@ -283,6 +283,8 @@ fn bad_imputation_input_is_refused_naming_the_column_or_option() {
         ),
         (vec!["--missing", "impute", "--bootstrap", "20"], "--bootstrap"),
         (vec!["--missing", "weight"], "--missing"),
+        // A count of imputations without imputation is refused, not ignored.
+        (vec!["--imputations", "5"], "--missing impute"),
     ] {
         let r = estimate(dir.path(), &data, &extra);
         assert_eq!(r.code, 2, "{extra:?}: {}", r.stderr);

@@ -70,9 +70,9 @@ pub struct Args {
     /// Rows with missing values: complete, weight or impute.
     #[arg(long, value_enum, default_value = "complete", value_name = "HOW")]
     missing: super::flags::MissingArg,
-    /// With --missing impute: the number of imputed datasets.
-    #[arg(long, default_value_t = 20, value_name = "M")]
-    imputations: usize,
+    /// With --missing impute: the number of imputed datasets [default: 20].
+    #[arg(long, value_name = "M")]
+    imputations: Option<usize>,
     /// Print no progress bar and no warnings on stderr.
     #[arg(long)]
     quiet: bool,

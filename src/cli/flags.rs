@@ -121,9 +121,9 @@ pub struct EstimateFlags {
     #[arg(long, value_enum, default_value = "complete", value_name = "HOW")]
     pub missing: MissingArg,
     /// With --missing impute: the number of imputed datasets, each analysed
-    /// in full.
-    #[arg(long, default_value_t = 20, value_name = "M")]
-    pub imputations: usize,
+    /// in full [default: 20].
+    #[arg(long, value_name = "M")]
+    pub imputations: Option<usize>,
     /// Seed of the bootstrap's random streams.
     #[arg(long, allow_negative_numbers = true, default_value_t = 1, value_name = "N")]
     pub seed: u64,
@@ -294,6 +294,11 @@ impl EstimateFlags {
                 }
             },
         };
+        if self.imputations.is_some() && !matches!(self.missing, MissingArg::Impute) {
+            return Err(Error::input(
+                "--imputations applies only with --missing impute; add it, or leave --imputations out",
+            ));
+        }
         let threads = super::common::threads(self.threads, self.quiet);
         let methods = self.method.as_ref().map(|m| split_list(m));
         if let Some(ms) = &methods {
@@ -321,7 +326,7 @@ impl EstimateFlags {
                 cluster: self.cluster.clone(),
                 weights: self.weights.clone(),
                 missing: self.missing.into(),
-                imputations: self.imputations,
+                imputations: self.imputations.unwrap_or(causeway::problem::DEFAULT_IMPUTATIONS),
                 ..Spec::default()
             },
             bootstrap: self.bootstrap,
