@@ -456,7 +456,11 @@ pub fn run(plan: &Plan, data: &Dataset, opts: &Options) -> Result<Analysis> {
             directed_path: plan.identification.exposure_is_ancestor,
             reason: plan.reason.clone(),
         },
-        sample: problem.sample.clone(),
+        sample: {
+            let mut s = problem.sample.clone();
+            s.missing.observation_weights = fits.observed().ok().flatten().map(|o| o.summary(&problem));
+            s
+        },
         design: (problem.clusters.is_some() || problem.weights.is_some()).then(|| StudyDesign {
             weights: problem.weights.as_ref().map(|w| w.variable.clone()),
             effective_sample_size: problem.weights.as_ref().map(|w| w.effective_n),
@@ -763,7 +767,7 @@ fn evalue_for(
     }
     let sd = match inputs {
         Some(s) => s.outcome_sd,
-        None => estimate::sample_sd(p.y()),
+        None => estimate::sample_sd(&p.observed_y()),
     };
     evalue::continuous(e.estimate, e.std_error, sd, opts.model.level)
 }

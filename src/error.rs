@@ -136,6 +136,8 @@ pub enum Setting {
     Cluster,
     /// The column of sampling weights.
     Weights,
+    /// How missing values are handled.
+    Missing,
 }
 
 impl Setting {
@@ -178,6 +180,7 @@ impl Setting {
             Setting::Draws => "the number of Monte Carlo draws",
             Setting::Cluster => "the cluster column",
             Setting::Weights => "the sampling-weight column",
+            Setting::Missing => "the handling of missing values",
         }
     }
 }

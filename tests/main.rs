@@ -19,6 +19,7 @@ mod estimate_cases;
 mod estimate_cluster;
 mod estimate_exposures;
 mod estimate_frontdoor;
+mod estimate_missing;
 mod estimate_nhefs;
 mod estimate_sim;
 mod estimate_weights;

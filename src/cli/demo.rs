@@ -67,6 +67,10 @@ pub struct Args {
     /// numbers): weighted fits, averages and diagnostics.
     #[arg(long, value_name = "COLUMN")]
     weights: Option<String>,
+    /// Missing values: complete, weight (inverse probability of the
+    /// outcome being observed) or impute.
+    #[arg(long, value_enum, default_value = "complete", value_name = "HOW")]
+    missing: super::flags::MissingArg,
     /// Print no progress bar and no warnings on stderr.
     #[arg(long)]
     quiet: bool,
@@ -95,6 +99,7 @@ fn flags(a: &Args) -> EstimateFlags {
         latent: None,
         cluster: a.cluster.clone(),
         weights: a.weights.clone(),
+        missing: a.missing,
         seed: a.seed,
         threads: a.threads,
         check: a.check,

@@ -7,7 +7,7 @@ use causeway::analysis::Options;
 use causeway::check::CheckOptions;
 use causeway::data::{Dataset, Delimiter, ReadOptions, Shape};
 use causeway::error::Setting;
-use causeway::estimate::{Estimand, Scale, Spec};
+use causeway::estimate::{Estimand, Missing, Scale, Spec};
 use causeway::graph::Graph;
 use causeway::infer::bootstrap::IntervalKind;
 use causeway::plan::{AdjustChoice, Plan, Roles, split_list};
@@ -115,6 +115,12 @@ pub struct EstimateFlags {
     /// the effective sample size is reported.
     #[arg(long, value_name = "COLUMN")]
     pub weights: Option<String>,
+    /// Missing values: complete (rows missing a used column are dropped),
+    /// weight (rows missing only the outcome are kept and the observed
+    /// rows weighted by the inverse probability of being observed), or
+    /// impute.
+    #[arg(long, value_enum, default_value = "complete", value_name = "HOW")]
+    pub missing: MissingArg,
     /// Seed of the bootstrap's random streams.
     #[arg(long, allow_negative_numbers = true, default_value_t = 1, value_name = "N")]
     pub seed: u64,
@@ -202,6 +208,18 @@ value_enum!(
         Quadratic => Shape::Quadratic,
         /// A restricted cubic spline with 4 knots.
         Spline => Shape::Spline,
+    }
+);
+
+value_enum!(
+    /// The `--missing` flag's values.
+    MissingArg => Missing {
+        /// Complete cases.
+        Complete => Missing::Complete,
+        /// Inverse probability of the outcome being observed.
+        Weight => Missing::Weight,
+        /// Multiple imputation.
+        Impute => Missing::Impute,
     }
 );
 
@@ -299,6 +317,7 @@ impl EstimateFlags {
                 reference: self.reference.clone(),
                 cluster: self.cluster.clone(),
                 weights: self.weights.clone(),
+                missing: self.missing.into(),
                 ..Spec::default()
             },
             bootstrap: self.bootstrap,

@@ -294,6 +294,21 @@ pub fn diagnostics(graph: &str, a: &Analysis) -> DataTable {
     t
 }
 
+/// Missing-data patterns: one row per combination of used columns missing
+/// together (columns joined by `;`), with the handling.
+pub fn missing(graph: &str, a: &Analysis) -> DataTable {
+    let mut t = DataTable::new("missing", &["graph", "handling", "columns", "rows"]);
+    for p in &a.sample.missing.patterns {
+        t.row(vec![
+            text(graph),
+            text(a.sample.missing.handling),
+            text(p.columns.join(";")),
+            Cell::Count(p.rows),
+        ]);
+    }
+    t
+}
+
 /// Covariate balance: one row per model term.
 pub fn balance(graph: &str, a: &Analysis) -> DataTable {
     let mut t = DataTable::new("balance", &["graph", "term", "smd_before", "smd_after"]);
@@ -418,6 +433,7 @@ pub fn analysis_tables(graph: &str, a: &Analysis) -> Vec<DataTable> {
         estimates(graph, a),
         diagnostics(graph, a),
         balance(graph, a),
+        missing(graph, a),
         sensitivity(graph, a),
         benchmarks(graph, a),
     ];

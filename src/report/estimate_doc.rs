@@ -265,6 +265,7 @@ pub fn sample_text(a: &Analysis) -> String {
         t.push_str(", none dropped");
     }
     t.push('.');
+    t.push_str(&missing_text(&s.missing, &a.outcome));
     if let Some(d) = &a.design
         && let (Some(w), Some(ess)) = (&d.weights, d.effective_sample_size)
     {
@@ -279,6 +280,36 @@ pub fn sample_text(a: &Analysis) -> String {
              cluster-robust.",
             c.count, c.variable, c.min_size, c.max_size
         ));
+    }
+    t
+}
+
+/// How missing values were handled and their patterns, as sentences
+/// (empty when no used cell is missing).
+pub fn missing_text(m: &crate::data::MissingData, outcome: &str) -> String {
+    if m.patterns.is_empty() {
+        return String::new();
+    }
+    let total = m.patterns.len();
+    let shown: Vec<String> = m
+        .patterns
+        .iter()
+        .take(crate::data::PATTERNS_SHOWN)
+        .map(|p| format!("{} ({})", p.columns.join(" and "), p.rows))
+        .collect();
+    let mut t = format!(
+        " Columns missing together, with the rows that miss exactly them ({}): {}.",
+        super::doc::shown_of(shown.len(), total, true),
+        shown.join("; ")
+    );
+    match m.outcome_missing {
+        Some(k) if k > 0 => t.push_str(&format!(
+            " The {k} rows missing only {outcome} are kept: the models of the exposure and of being observed \
+             use them, and the rows with {outcome} observed are weighted by the inverse probability of being \
+             observed given the exposure and the adjustment set (Hernán & Robins 2020, section 12.6); this \
+             assumes that, given those, whether {outcome} is missing does not depend on its value."
+        )),
+        _ => t.push_str(" Rows with a missing value in a used column were left out (complete cases)."),
     }
     t
 }
@@ -384,6 +415,21 @@ fn other_diagnostics(a: &Analysis) -> Vec<Block> {
 
 /// Diagnostics: propensity ranges, weights and the balance table.
 pub fn diagnostics_blocks(a: &Analysis) -> Vec<Block> {
+    let observation = a.sample.missing.observation_weights.map(|w| {
+        Block::Para(format!(
+            "Stabilized weights of being observed (rows with {} observed): mean {}, min {}, max {}.",
+            a.outcome,
+            num(w.mean),
+            num(w.min),
+            num(w.max)
+        ))
+    });
+    let mut b = diagnostics_without_observation(a);
+    b.extend(observation);
+    b
+}
+
+fn diagnostics_without_observation(a: &Analysis) -> Vec<Block> {
     let Some(d) = &a.diagnostics else {
         return other_diagnostics(a);
     };
