@@ -321,14 +321,7 @@ pub fn run(plan: &Plan, data: &Dataset, opts: &Options) -> Result<Analysis> {
         return Err(Error::NotIdentified(plan.not_identified_reason()));
     }
     match opts.model.missing {
-        Missing::Complete => {}
-        Missing::Weight => {
-            return Err(Error::option(
-                Setting::Missing,
-                "weighting observed outcomes by their probability of being observed is not available \
-                 here; choose complete or impute",
-            ));
-        }
+        Missing::Complete | Missing::Weight => {}
         Missing::Impute => return imputed::run(plan, data, opts),
     }
     for name in &opts.model.interact {
@@ -474,7 +467,11 @@ pub fn run(plan: &Plan, data: &Dataset, opts: &Options) -> Result<Analysis> {
             directed_path: plan.identification.exposure_is_ancestor,
             reason: plan.reason.clone(),
         },
-        sample: problem.sample.clone(),
+        sample: {
+            let mut s = problem.sample.clone();
+            s.missing.observation_weights = fits.observed().ok().flatten().map(|o| o.summary(&problem));
+            s
+        },
         design: (problem.clusters.is_some() || problem.weights.is_some()).then(|| StudyDesign {
             weights: problem.weights.as_ref().map(|w| w.variable.clone()),
             effective_sample_size: problem.weights.as_ref().map(|w| w.effective_n),
@@ -782,7 +779,7 @@ fn evalue_for(
     }
     let sd = match inputs {
         Some(s) => s.outcome_sd,
-        None => estimate::sample_sd(p.y()),
+        None => estimate::sample_sd(&p.observed_y()),
     };
     evalue::continuous(e.estimate, e.std_error, sd, opts.model.level)
 }

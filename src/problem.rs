@@ -65,6 +65,33 @@ impl std::fmt::Display for Scale {
     }
 }
 
+/// How rows with missing values in the used columns are handled.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, Default)]
+#[serde(rename_all = "lowercase")]
+pub enum Missing {
+    /// Complete cases: a row missing any used column is dropped.
+    #[default]
+    Complete,
+    /// Rows missing only the outcome are kept, and the rows with an
+    /// observed outcome are weighted by the inverse probability of being
+    /// observed (Hernán & Robins, *What If*, 2020, section 12.6).
+    Weight,
+    /// Multiple imputation by chained equations, pooled by Rubin's rules
+    /// (see [`crate::impute`]).
+    Impute,
+}
+
+impl Missing {
+    /// The word of the JSON `sample.missing.handling`.
+    pub fn word(self) -> &'static str {
+        match self {
+            Missing::Complete => "complete",
+            Missing::Weight => "weight",
+            Missing::Impute => "impute",
+        }
+    }
+}
+
 /// What to estimate, from the analysis plan.
 #[derive(Debug, Clone)]
 pub struct Spec {
@@ -112,21 +139,6 @@ pub struct Spec {
     pub missing: Missing,
     /// With [`Missing::Impute`]: the number of imputed datasets.
     pub imputations: usize,
-}
-
-/// How rows missing a used column are handled.
-#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, Default)]
-#[serde(rename_all = "lowercase")]
-pub enum Missing {
-    /// Rows missing a used column are dropped (complete cases).
-    #[default]
-    Complete,
-    /// Observed outcomes weighted by the inverse probability of being
-    /// observed.
-    Weight,
-    /// Multiple imputation by chained equations, pooled by Rubin's rules
-    /// (see [`crate::impute`]).
-    Impute,
 }
 
 /// The default number of imputed datasets (van Buuren 2018, *Flexible
@@ -262,6 +274,39 @@ impl Clusters {
     }
 }
 
+/// The rows used when a missing outcome is weighted for
+/// ([`Missing::Weight`]): complete in every used column but the outcome.
+/// Refused when no outcome is observed; when every outcome is observed a
+/// warning says the analysis is that of the complete cases.
+fn observed_sample(data: &Dataset, used: &[&str], spec: &Spec, warnings: &mut Vec<String>) -> Result<Sample> {
+    let mut sample = data.cases_keeping(used, Some(&spec.outcome))?;
+    let y = &spec.outcome;
+    let missing = sample.present.iter().filter(|&&o| !o).count();
+    if sample.used > 0 && missing == sample.used {
+        return Err(Error::input(format!(
+            "{}: the outcome '{y}' is missing in every one of the {} rows otherwise complete: there is no \
+             observed outcome to weight",
+            data.source(),
+            sample.used
+        )));
+    }
+    if missing == 0 {
+        warnings.push(format!(
+            "weighting for a missing outcome was asked for, but no used row misses the outcome '{y}': the \
+             analysis is that of the complete cases"
+        ));
+    } else if sample.dropped > 0 {
+        warnings.push(format!(
+            "weighting for a missing outcome keeps the {missing} rows missing only '{y}'; the {} rows missing \
+             the exposure or a covariate are still dropped (complete cases for those columns)",
+            sample.dropped
+        ));
+    }
+    sample.missing.handling = Missing::Weight.word();
+    sample.missing.outcome_missing = Some(missing);
+    Ok(sample)
+}
+
 /// Doses on the default dose-response grid (common practice, no source).
 pub const CURVE_POINTS: usize = 9;
 
@@ -331,6 +376,11 @@ pub struct Problem {
     pub clusters: Option<Clusters>,
     /// The sampling weights of the used rows (`None`: equal weights).
     pub weights: Option<Weights>,
+    /// Under [`Missing::Weight`] with some outcomes missing: 1 where the
+    /// used row's outcome is observed, 0 where it is missing (its outcome
+    /// value is then a placeholder, 0, that a zero weight keeps out of
+    /// every sum); `None`: every used row's outcome is observed.
+    pub observed: Option<Vec<f64>>,
     /// The propensity design's rows, kept when they fit in memory.
     propensity_store: Option<Store>,
     /// The outcome design's rows (exposure as observed), likewise.
@@ -381,8 +431,18 @@ impl Problem {
                 used.push(c);
             }
         }
-        let sample = data.complete_cases(&used)?;
         let mut warnings = Vec::new();
+        let sample = match spec.missing {
+            Missing::Complete => data.complete_cases(&used)?,
+            Missing::Weight => observed_sample(data, &used, spec, &mut warnings)?,
+            Missing::Impute => {
+                return Err(Error::option(
+                    Opt::Missing,
+                    "impute: one problem is not imputed on its own; multiple imputation runs through the \
+                     whole analysis, which imputes the data and builds a problem per imputed dataset",
+                ));
+            }
+        };
         if sample.used == 0 {
             let empty: Vec<String> = used
                 .iter()
@@ -415,6 +475,14 @@ impl Problem {
         };
         let mut frame = Frame::new(sample.used);
         let outcome = frame.push_from(data, &sample, &spec.outcome, Role::Number)?;
+        let observed = (!sample.present.is_empty()).then(|| {
+            frame.fill_missing(outcome, 0.0);
+            sample
+                .present
+                .iter()
+                .map(|&o| f64::from(u8::from(o)))
+                .collect::<Vec<f64>>()
+        });
         let choice = ExposureChoice {
             exposed: spec.exposed.clone(),
             reference: spec.reference.clone(),
@@ -437,7 +505,7 @@ impl Problem {
         for m in &spec.mediators {
             mediators.push(frame.push_from(data, &sample, m, role(m))?);
         }
-        check_kinds(&frame, spec, outcome, exposure)?;
+        check_kinds(&frame, spec, outcome, exposure, observed.as_deref())?;
         check_groups(&frame, spec, exposure)?;
         warnings.extend(few_valued_exposure(&frame, spec, exposure));
         warnings.extend(doses_outside(&frame, spec, exposure)?);
@@ -505,6 +573,7 @@ impl Problem {
             outcome,
             &propensity,
             &outcome_design,
+            observed.as_deref(),
         ));
         let curve = match &kind {
             ExposureKind::Dose => match &spec.at {
@@ -532,6 +601,7 @@ impl Problem {
             warnings,
             clusters,
             weights,
+            observed,
             propensity_store,
             outcome_store,
         })
@@ -571,6 +641,35 @@ impl Problem {
     /// Row `i`'s sampling weight (1 when none are given).
     pub fn weight(&self, i: usize) -> f64 {
         self.weights.as_ref().map_or(1.0, |w| w.values[i])
+    }
+
+    /// The weights of a fit of the outcome on the rows where it is
+    /// observed, without observation weights (the sensitivity analysis's
+    /// plain regressions): the sampling weights times the observation
+    /// indicator; `None` when both are absent.
+    pub fn outcome_weights(&self) -> Option<std::borrow::Cow<'_, [f64]>> {
+        use std::borrow::Cow;
+        match (&self.observed, self.sampling()) {
+            (None, w) => w.map(Cow::Borrowed),
+            (Some(r), None) => Some(Cow::Borrowed(r)),
+            (Some(r), Some(w)) => Some(Cow::Owned(r.iter().zip(w).map(|(a, b)| a * b).collect())),
+        }
+    }
+
+    /// The observed outcome values (all of them when none is missing).
+    pub fn observed_y(&self) -> std::borrow::Cow<'_, [f64]> {
+        use std::borrow::Cow;
+        match &self.observed {
+            None => Cow::Borrowed(self.y()),
+            Some(r) => Cow::Owned(
+                self.y()
+                    .iter()
+                    .zip(r)
+                    .filter(|(_, r)| **r == 1.0)
+                    .map(|(y, _)| *y)
+                    .collect(),
+            ),
+        }
     }
 
     /// The weights every fit and average is made under: the sampling
@@ -930,9 +1029,12 @@ fn small_sample(
     outcome: usize,
     propensity: &Design,
     outcome_design: &Design,
+    observed: Option<&[f64]>,
 ) -> Vec<String> {
     let mut out = Vec::new();
-    let n = frame.nrows();
+    // The outcome model sees the rows whose outcome is observed (the
+    // placeholder of the others is 0, so the count of ones is theirs).
+    let n = observed.map_or(frame.nrows(), |o| o.iter().filter(|&&r| r == 1.0).count());
     let ones = |j: usize| frame.col(j).iter().filter(|&&v| v == 1.0).count();
     let mut check = |what: &str, rows: usize, model: &str, terms: usize| {
         if rows >= ROWS_PER_TERM * terms.max(1) {
@@ -972,11 +1074,21 @@ fn small_sample(
     out
 }
 
-fn check_kinds(frame: &Frame, spec: &Spec, outcome: usize, exposure: usize) -> Result<()> {
+fn check_kinds(
+    frame: &Frame,
+    spec: &Spec,
+    outcome: usize,
+    exposure: usize,
+    observed: Option<&[f64]>,
+) -> Result<()> {
     let binary = |j: usize| matches!(frame.kind(j), Kind::Binary { .. });
     let constant = |j: usize| {
+        // The outcome's placeholders (unobserved rows) are not values.
+        let seen = |i: usize| j != outcome || observed.is_none_or(|o| o[i] == 1.0);
         let v = frame.col(j);
-        v.iter().all(|&x| x == v[0])
+        let mut values = (0..v.len()).filter(|&i| seen(i)).map(|i| v[i]);
+        let first = values.next();
+        values.all(|x| Some(x) == first)
     };
     if constant(exposure) {
         return Err(Error::input(format!(

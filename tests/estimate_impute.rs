@@ -282,7 +282,6 @@ fn bad_imputation_input_is_refused_naming_the_column_or_option() {
             "--imputations",
         ),
         (vec!["--missing", "impute", "--bootstrap", "20"], "--bootstrap"),
-        (vec!["--missing", "weight"], "--missing"),
         // A count of imputations without imputation is refused, not ignored.
         (vec!["--imputations", "5"], "--missing impute"),
     ] {

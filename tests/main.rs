@@ -21,6 +21,7 @@ mod estimate_cluster;
 mod estimate_exposures;
 mod estimate_frontdoor;
 mod estimate_impute;
+mod estimate_missing;
 mod estimate_nhefs;
 mod estimate_sim;
 mod estimate_weights;

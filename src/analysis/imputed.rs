@@ -10,7 +10,7 @@
 //! sandwich variance.
 
 use super::{Analysis, Options, check_summary};
-use crate::data::Dataset;
+use crate::data::{Dataset, MissingData};
 use crate::estimate::Scale;
 use crate::impute::{self, Settings};
 use crate::infer::pool::{Pooled, rubin};
@@ -105,7 +105,15 @@ pub(super) fn run(plan: &Plan, data: &Dataset, opts: &Options) -> Result<Analysi
          the results were combined by Rubin's rules.",
         summary.iterations
     ));
-    out.sample.missing = Some(summary);
+    // The pooled sample is the whole file; its missing-data patterns are
+    // those of the data before imputation.
+    let before = data.complete_cases(&settings.columns)?;
+    out.sample.missing = MissingData {
+        handling: Missing::Impute.word(),
+        imputations: Some(m),
+        imputed: Some(summary),
+        ..before.missing
+    };
     if let Some(c) = &opts.check {
         let sum = check_summary(plan, data, c)?;
         if sum.rejected > 0 {

@@ -67,7 +67,8 @@ pub struct Args {
     /// numbers): weighted fits, averages and diagnostics.
     #[arg(long, value_name = "COLUMN")]
     weights: Option<String>,
-    /// Rows with missing values: complete, weight or impute.
+    /// Missing values: complete, weight (inverse probability of the
+    /// outcome being observed) or impute.
     #[arg(long, value_enum, default_value = "complete", value_name = "HOW")]
     missing: super::flags::MissingArg,
     /// With --missing impute: the number of imputed datasets [default: 20].

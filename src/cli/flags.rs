@@ -7,11 +7,10 @@ use causeway::analysis::Options;
 use causeway::check::CheckOptions;
 use causeway::data::{Dataset, Delimiter, ReadOptions, Shape};
 use causeway::error::Setting;
-use causeway::estimate::{Estimand, Scale, Spec};
+use causeway::estimate::{Estimand, Missing, Scale, Spec};
 use causeway::graph::Graph;
 use causeway::infer::bootstrap::IntervalKind;
 use causeway::plan::{AdjustChoice, Plan, Roles, split_list};
-use causeway::problem::Missing;
 use causeway::report::doc::{FileStamp, Stamp, ToolInfo};
 use causeway::sensitivity::robustness::{BenchmarkChoice, check_multiples};
 use causeway::{Error, Result};
@@ -116,8 +115,10 @@ pub struct EstimateFlags {
     /// the effective sample size is reported.
     #[arg(long, value_name = "COLUMN")]
     pub weights: Option<String>,
-    /// Rows with missing values: complete (drop them), weight, or impute
-    /// (multiple imputation by chained equations, pooled by Rubin's rules).
+    /// Missing values: complete (rows missing a used column are dropped),
+    /// weight (rows missing only the outcome are kept and the observed
+    /// rows weighted by the inverse probability of being observed), or
+    /// impute.
     #[arg(long, value_enum, default_value = "complete", value_name = "HOW")]
     pub missing: MissingArg,
     /// With --missing impute: the number of imputed datasets, each analysed

@@ -392,17 +392,28 @@ impl Frame {
         &self.cols[j]
     }
 
+    /// Replaces the missing cells (NaN) of column `j` by `value`: a
+    /// placeholder that a zero weight keeps out of every sum.
+    pub fn fill_missing(&mut self, j: usize, value: f64) {
+        self.cols[j]
+            .iter_mut()
+            .filter(|x| x.is_nan())
+            .for_each(|x| *x = value);
+    }
+
     /// Number of columns.
     pub fn ncols(&self) -> usize {
         self.cols.len()
     }
 }
 
-/// Binary columns become 0/1; others stay as they are.
+/// Binary columns become 0/1; others stay as they are. Missing cells
+/// (NaN, kept only in an outcome weighted for being observed) are not a
+/// value and stay missing.
 fn code_numeric(mut v: Vec<f64>) -> (Vec<f64>, Kind) {
     let mut distinct: Vec<f64> = Vec::with_capacity(3);
     for &x in &v {
-        if !distinct.contains(&x) {
+        if !x.is_nan() && !distinct.contains(&x) {
             distinct.push(x);
             if distinct.len() > 2 {
                 return (v, Kind::Numeric);
@@ -413,7 +424,7 @@ fn code_numeric(mut v: Vec<f64>) -> (Vec<f64>, Kind) {
         return (v, Kind::Numeric);
     }
     let (low, high) = (distinct[0].min(distinct[1]), distinct[0].max(distinct[1]));
-    for x in v.iter_mut() {
+    for x in v.iter_mut().filter(|x| !x.is_nan()) {
         *x = if *x == high { 1.0 } else { 0.0 };
     }
     (

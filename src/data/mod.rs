@@ -47,7 +47,10 @@ pub use frame::{
 pub(crate) use kernel::{expit_into, gram_lower_add};
 pub use pass::{BLOCK, Block, DenseRows, Rows, map_rows, reduce, reduce_into, with_buffer};
 pub use read::{Delimiter, ReadOptions, compressed, not_text};
-pub use sample::{Imputed, ImputedColumn, Sample, tokens_note};
+pub use sample::{
+    DROPPED_SHARE_NOTE, Imputed, ImputedColumn, MissingData, PATTERNS_SHOWN, Pattern, Sample, WeightRange,
+    tokens_note,
+};
 pub use spline::{rcs_basis, rcs_knots};
 pub use store::Store;
 

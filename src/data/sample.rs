@@ -24,21 +24,22 @@ pub struct Sample {
     /// made missing, in order of first appearance.
     #[serde(skip)]
     pub tokens_by_column: BTreeMap<String, Vec<(String, usize)>>,
+    /// How missing values were handled and their pattern (the JSON
+    /// `sample.missing` block).
+    pub missing: MissingData,
     /// Row indices kept, in file order.
     #[serde(skip)]
     pub keep: Vec<usize>,
-    /// How missing values were handled, when not by dropping rows.
-    #[serde(skip_serializing_if = "Option::is_none")]
-    pub missing: Option<Imputed>,
+    /// For each kept row, whether the column kept despite missing cells
+    /// (see [`Dataset::cases_keeping`]) has a value there; empty when every
+    /// kept row is complete.
+    #[serde(skip)]
+    pub present: Vec<bool>,
 }
 
-/// The JSON `sample.missing` block of an analysis by multiple imputation.
+/// What an analysis by multiple imputation adds to `sample.missing`.
 #[derive(Debug, Clone, Serialize)]
 pub struct Imputed {
-    /// `impute`.
-    pub handling: &'static str,
-    /// Imputed datasets, each analysed in full.
-    pub imputations: usize,
     /// Rounds of the chained equations.
     pub iterations: usize,
     /// The largest change, between the last two rounds, of an imputed
@@ -62,40 +63,139 @@ pub struct ImputedColumn {
     pub model: String,
 }
 
+/// How missing values were handled, and which columns rows miss together.
+#[derive(Debug, Clone, Serialize)]
+pub struct MissingData {
+    /// `complete` (complete cases), `weight` or `impute`; set by the
+    /// problem, `complete` here.
+    pub handling: &'static str,
+    /// Number of imputed datasets (`None` without imputation).
+    pub imputations: Option<usize>,
+    /// Each combination of used columns that rows miss together, with the
+    /// number of rows, most frequent first (rows with no missing cell are
+    /// not listed).
+    pub patterns: Vec<Pattern>,
+    /// Rows kept with their outcome missing (weighting for a missing
+    /// outcome only).
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub outcome_missing: Option<usize>,
+    /// The stabilised observation weights of the rows with an observed
+    /// outcome (weighting for a missing outcome only).
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub observation_weights: Option<WeightRange>,
+    /// The imputation's rounds, stability and imputed columns (multiple
+    /// imputation only).
+    #[serde(flatten, skip_serializing_if = "Option::is_none")]
+    pub imputed: Option<Imputed>,
+}
+
+/// Mean, smallest and largest of a set of weights.
+#[derive(Debug, Clone, Copy, Serialize, PartialEq)]
+pub struct WeightRange {
+    /// Mean (weighted by the sampling weights, when given).
+    pub mean: f64,
+    /// Smallest.
+    pub min: f64,
+    /// Largest.
+    pub max: f64,
+}
+
+/// Missing-data patterns shown in a report before the list is cut (the
+/// JSON and CSV keep every one).
+pub const PATTERNS_SHOWN: usize = 8;
+
+/// One missing-data pattern: the columns missing together in some rows.
+#[derive(Debug, Clone, Serialize, PartialEq, Eq)]
+pub struct Pattern {
+    /// The used columns missing, in the order they were named.
+    pub columns: Vec<String>,
+    /// Rows with exactly these columns missing.
+    pub rows: usize,
+}
+
+/// Share of dropped rows above which the dropped-rows warning adds that
+/// complete cases may be biased (a choice, no source).
+pub const DROPPED_SHARE_NOTE: f64 = 0.05;
+
 impl Dataset {
     /// The rows complete for every column in `names` (each must be kept).
     pub fn complete_cases(&self, names: &[&str]) -> Result<Sample> {
+        self.cases_keeping(names, None)
+    }
+
+    /// The rows complete for every column in `names` except `kept`, whose
+    /// missing cells do not drop a row ([`Sample::present`] says where it
+    /// has a value); with `None`, the complete cases.
+    pub fn cases_keeping(&self, names: &[&str], kept: Option<&str>) -> Result<Sample> {
         let cols = names
             .iter()
             .map(|n| self.require(n))
             .collect::<Result<Vec<_>>>()?;
         let mut complete = vec![true; self.nrows];
+        let mut present = Vec::new();
         let mut by_column = BTreeMap::new();
         let mut tokens = BTreeMap::new();
-        for (name, c) in names.iter().zip(&cols) {
+        // Each row's missing columns, as indices into `names`.
+        let mut misses: Vec<Vec<u32>> = vec![Vec::new(); self.nrows];
+        for (j, (name, c)) in names.iter().zip(&cols).enumerate() {
             if !c.missing_tokens.is_empty() {
                 tokens.insert(name.to_string(), c.missing_tokens.clone());
             }
+            let spared = kept == Some(*name);
             let mut k = 0usize;
             for (i, ok) in complete.iter_mut().enumerate() {
                 if c.is_missing(i) {
-                    *ok = false;
-                    k += 1;
+                    misses[i].push(j as u32);
+                    if !spared {
+                        *ok = false;
+                        k += 1;
+                    }
                 }
             }
             if k > 0 {
                 by_column.insert(name.to_string(), k);
             }
+            if spared {
+                present = (0..self.nrows).map(|i| !c.is_missing(i)).collect();
+            }
         }
         let keep: Vec<usize> = (0..self.nrows).filter(|&i| complete[i]).collect();
+        if !present.is_empty() {
+            present = keep.iter().map(|&i| present[i]).collect();
+            if present.iter().all(|&p| p) {
+                present.clear();
+            }
+        }
+        let mut count: BTreeMap<Vec<u32>, usize> = BTreeMap::new();
+        for m in misses.into_iter().filter(|m| !m.is_empty()) {
+            *count.entry(m).or_insert(0) += 1;
+        }
+        let mut patterns: Vec<(Vec<u32>, usize)> = count.into_iter().collect();
+        // Most frequent first; ties in the order of the columns named.
+        patterns.sort_by(|a, b| b.1.cmp(&a.1).then_with(|| a.0.cmp(&b.0)));
+        let patterns = patterns
+            .into_iter()
+            .map(|(m, rows)| Pattern {
+                columns: m.iter().map(|&j| names[j as usize].to_string()).collect(),
+                rows,
+            })
+            .collect();
         Ok(Sample {
             rows: self.nrows,
             used: keep.len(),
             dropped: self.nrows - keep.len(),
             dropped_by_column: by_column,
             tokens_by_column: tokens,
+            missing: MissingData {
+                handling: "complete",
+                imputations: None,
+                patterns,
+                outcome_missing: None,
+                observation_weights: None,
+                imputed: None,
+            },
             keep,
-            missing: None,
+            present,
         })
     }
 }
@@ -115,8 +215,19 @@ impl Sample {
         let tokens = tokens_note(&self.tokens_by_column)
             .map(|t| format!("; {t}"))
             .unwrap_or_default();
+        let share = self.dropped as f64 / self.rows as f64;
+        let bias = if share > DROPPED_SHARE_NOTE {
+            format!(
+                "; that is {:.1}% of the rows: complete-case estimates describe the complete rows and can be \
+                 biased for the whole sample when whether a value is missing depends on the covariates or the \
+                 outcome; weighting for a missing outcome or multiple imputation may be preferable",
+                100.0 * share
+            )
+        } else {
+            String::new()
+        };
         Some(format!(
-            "{} of {} rows dropped for missing values (by column: {}){tokens}",
+            "{} of {} rows dropped for missing values (by column: {}){tokens}{bias}",
             self.dropped,
             self.rows,
             by.join(", "),

@@ -14,7 +14,7 @@ use super::{About, Estimator, ExposureKind, Points, Serves, Target, Targets};
 use crate::Result;
 use crate::data::Setting;
 use crate::identify::Strategy;
-use crate::learn::{Fits, Needs, OutcomeFit};
+use crate::learn::{Fits, Needs, Observed, OutcomeFit};
 use crate::model::weighted_sum;
 use crate::problem::{Estimand, Problem};
 
@@ -60,21 +60,42 @@ impl Scores<'_> {
     }
 }
 
-/// Row i's augmented term at level `k`: m + 1{A=k} (Y - m) / q (no
-/// branch on the exposure: the indicator multiplies).
+/// Row i's augmented term at level `k`: m + c 1{A=k} (Y - m) / q (no
+/// branch on the exposure: the indicator multiplies), `c` the row's plain
+/// inverse probability of an observed outcome (1 when every outcome is
+/// observed). The plain weight `R / P(R = 1 | A, L)`, not the stabilised
+/// one, keeps the augmentation unbiased when the outcome model is wrong
+/// (its conditional mean given A and L is 1); a stabilised weight would
+/// scale the correction by P(R = 1 | A).
 #[inline]
-fn term(a: f64, k: usize, y: f64, m: f64, q: f64) -> f64 {
+fn term(a: f64, k: usize, y: f64, m: f64, q: f64, c: f64) -> f64 {
     let r = f64::from(u8::from(a as usize == k));
-    m + r * (y - m) / q
+    m + c * r * (y - m) / q
+}
+
+/// Row i's plain observation weight (1 when every outcome is observed).
+fn plain(obs: Option<&Observed>, i: usize) -> f64 {
+    obs.map_or(1.0, |o| o.plain[i])
 }
 
 /// `sum_i f_i term_i` at level `k`, with `q(i)` = P(A = k | L_i).
 #[inline]
-fn weighted_terms(p: &Problem, k: usize, m: &[f64], freq: Option<&[f64]>, q: impl Fn(usize) -> f64) -> f64 {
+fn weighted_terms(
+    p: &Problem,
+    k: usize,
+    m: &[f64],
+    freq: Option<&[f64]>,
+    obs: Option<&Observed>,
+    q: impl Fn(usize) -> f64,
+) -> f64 {
     let (a, y) = (p.a(), p.y());
     match freq {
-        Some(f) => (0..p.n()).map(|i| f[i] * term(a[i], k, y[i], m[i], q(i))).sum(),
-        None => (0..p.n()).map(|i| term(a[i], k, y[i], m[i], q(i))).sum(),
+        Some(f) => (0..p.n())
+            .map(|i| f[i] * term(a[i], k, y[i], m[i], q(i), plain(obs, i)))
+            .sum(),
+        None => (0..p.n())
+            .map(|i| term(a[i], k, y[i], m[i], q(i), plain(obs, i)))
+            .sum(),
     }
 }
 
@@ -98,6 +119,7 @@ impl Estimator for Aipw {
         // The propensity model first: its failure is the reason reported.
         let q = Scores::of(p, fits)?;
         let om = fits.outcome()?;
+        let obs = fits.observed()?;
         let mut out = Points::default();
         let sw: f64 = match freq {
             Some(f) => f.iter().sum(),
@@ -107,9 +129,9 @@ impl Estimator for Aipw {
             let Target::Level(k) = t else { continue };
             let m = om.at(p, t);
             let s = match &q {
-                Scores::Binary(e) if k == 1 => weighted_terms(p, k, &m, freq, |i| e[i]),
-                Scores::Binary(e) => weighted_terms(p, k, &m, freq, |i| 1.0 - e[i]),
-                Scores::Levels(prob) => weighted_terms(p, k, &m, freq, |i| prob[k][i]),
+                Scores::Binary(e) if k == 1 => weighted_terms(p, k, &m, freq, obs, |i| e[i]),
+                Scores::Binary(e) => weighted_terms(p, k, &m, freq, obs, |i| 1.0 - e[i]),
+                Scores::Levels(prob) => weighted_terms(p, k, &m, freq, obs, |i| prob[k][i]),
             };
             out.targets.push(t);
             out.values.push(s / sw);
@@ -121,6 +143,8 @@ impl Estimator for Aipw {
         // The propensity model first: its failure is the reason reported.
         let q = Scores::of(p, fits)?;
         let om = fits.outcome()?;
+        let obs = fits.observed()?;
+        let c = |i: usize| plain(obs, i);
         // Under sampling weights w_i the mean is sum_i w_i term_i / sum_i w_i,
         // and each row's part of every estimating equation carries w_i
         // (the models' own scores take it inside their influence).
@@ -135,22 +159,32 @@ impl Estimator for Aipw {
             let Target::Level(k) = t else { continue };
             let m = om.at(p, t);
             let mu = (0..n)
-                .map(|i| w(i) * term(a[i], k, y[i], m[i], q.q(k, i)))
+                .map(|i| w(i) * term(a[i], k, y[i], m[i], q.q(k, i), c(i)))
                 .sum::<f64>()
                 / nf;
             let r = |i: usize| f64::from(u8::from(a[i] as usize == k));
-            // d/d beta = (1 - R/q) dm.
-            let u: Vec<f64> = (0..n).map(|i| w(i) * (1.0 - r(i) / q.q(k, i)) / nf).collect();
+            // d/d beta = (1 - c R/q) dm.
+            let u: Vec<f64> = (0..n)
+                .map(|i| w(i) * (1.0 - c(i) * r(i) / q.q(k, i)) / nf)
+                .collect();
             let kb = om.gradient(p, t.setting(), &m, &u);
             drop(u);
-            let mut phi = om.influence(p, &kb, &observed);
-            // d/d q = -R (Y - m) / q^2, through the propensity model.
+            let mut phi = om.influence(p, &kb, &observed, obs);
+            // d/d q = -c R (Y - m) / q^2, through the propensity model.
             let dq: Vec<f64> = (0..n)
-                .map(|i| -w(i) * r(i) * (y[i] - m[i]) / (q.q(k, i) * q.q(k, i)) / nf)
+                .map(|i| -w(i) * c(i) * r(i) * (y[i] - m[i]) / (q.q(k, i) * q.q(k, i)) / nf)
                 .collect();
             let ig = propensity_influence(p, fits, k, &dq, &prop_rows)?;
+            // d/d c = R (Y - m) / q, through the models of being observed.
+            if let Some(o) = obs {
+                let g: Vec<f64> = (0..n)
+                    .map(|i| w(i) * r(i) * (y[i] - m[i]) / q.q(k, i) / nf)
+                    .collect();
+                let io = o.influence(p, &g, false);
+                phi.iter_mut().zip(io).for_each(|(v, x)| *v += x);
+            }
             for (i, v) in phi.iter_mut().enumerate() {
-                *v += w(i) * (term(a[i], k, y[i], m[i], q.q(k, i)) - mu) / nf + ig[i];
+                *v += w(i) * (term(a[i], k, y[i], m[i], q.q(k, i), c(i)) - mu) / nf + ig[i];
             }
             out.push(t, mu, phi);
         }

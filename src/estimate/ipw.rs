@@ -29,7 +29,7 @@
 use super::{About, Estimator, ExposureKind, Points, Serves, Target, Targets};
 use crate::data::{Design, Rows, Setting};
 use crate::identify::Strategy;
-use crate::learn::{Fits, Needs, Propensity};
+use crate::learn::{Fits, Needs, Observed, Propensity};
 use crate::model::{Ols, linear_predictor, weighted_sum};
 use crate::problem::{Estimand, Problem};
 use crate::{Error, Result};
@@ -80,6 +80,23 @@ pub(crate) fn arm_weights(estimand: Estimand, a: f64, e: f64) -> (f64, f64, f64,
     }
 }
 
+impl Ipw {
+    /// Row i's observation weight (1 when every outcome is observed): the
+    /// stabilised one for the normalized form, where its numerator, a
+    /// function of the exposure, cancels within each arm; the plain one
+    /// for the Horvitz-Thompson form, whose total is not normalized (the
+    /// stabilised weight averages P(R = 1 | A), not 1, given A and L).
+    fn observation(&self, obs: Option<&Observed>, i: usize) -> f64 {
+        obs.map_or(1.0, |o| {
+            if self.horvitz_thompson {
+                o.plain[i]
+            } else {
+                o.stabilised[i]
+            }
+        })
+    }
+}
+
 /// The row's weight in the population total of the Horvitz-Thompson form.
 fn population(estimand: Estimand, a: f64) -> f64 {
     match estimand {
@@ -124,7 +141,7 @@ impl Estimator for Ipw {
         match &p.kind {
             ExposureKind::Binary => {
                 let ps = fits.propensity()?;
-                let (mu1, mu0) = self.means(p, ps, freq)?;
+                let (mu1, mu0) = self.means(p, ps, fits.observed()?, freq)?;
                 Ok(Points {
                     targets: vec![Target::Level(1), Target::Level(0)],
                     values: vec![mu1, mu0],
@@ -136,7 +153,7 @@ impl Estimator for Ipw {
                 let mut values = Vec::new();
                 for (k, pk) in prob.iter().enumerate() {
                     targets.push(Target::Level(k));
-                    values.push(self.level_mean(p, pk, k, freq)?);
+                    values.push(self.level_mean(p, pk, k, fits.observed()?, freq)?);
                 }
                 Ok(Points { targets, values })
             }
@@ -151,7 +168,7 @@ impl Estimator for Ipw {
 
     fn targets(&self, p: &Problem, fits: &Fits) -> Result<Targets> {
         match &p.kind {
-            ExposureKind::Binary => self.binary_targets(p, fits.propensity()?),
+            ExposureKind::Binary => self.binary_targets(p, fits.propensity()?, fits.observed()?),
             ExposureKind::Levels(_) => self.level_targets(p, fits),
             ExposureKind::Dose => dose_targets(p, fits),
         }
@@ -159,13 +176,22 @@ impl Estimator for Ipw {
 }
 
 impl Ipw {
-    /// The two weighted means of a binary exposure.
-    fn means(&self, p: &Problem, ps: &Propensity, freq: Option<&[f64]>) -> Result<(f64, f64)> {
+    /// The two weighted means of a binary exposure; with some outcomes
+    /// missing, each row's weight times its stabilised observation weight
+    /// (What If, section 12.6), the population total over every row.
+    fn means(
+        &self,
+        p: &Problem,
+        ps: &Propensity,
+        obs: Option<&Observed>,
+        freq: Option<&[f64]>,
+    ) -> Result<(f64, f64)> {
         let (a, y, est) = (p.a(), p.y(), p.spec.estimand);
         let mut s = [0.0; 5];
         for i in 0..p.n() {
             let f = freq.map_or(1.0, |f| f[i]);
             let (h1, h0, _, _) = arm_weights(est, a[i], ps.e[i]);
+            let (h1, h0) = (h1 * self.observation(obs, i), h0 * self.observation(obs, i));
             s[0] += f * h1 * y[i];
             s[1] += f * h1;
             s[2] += f * h0 * y[i];
@@ -184,18 +210,19 @@ impl Ipw {
         })
     }
 
-    fn binary_targets(&self, p: &Problem, ps: &Propensity) -> Result<Targets> {
+    fn binary_targets(&self, p: &Problem, ps: &Propensity, obs: Option<&Observed>) -> Result<Targets> {
         // Under sampling weights w_i every row's weight and its derivative
         // carry w_i (the weighted estimating equations
         // sum_i w_i h_i (Y_i - mu) = 0 stacked with the weighted propensity
         // score equations), and so does its population share.
-        let (mu1, mu0) = self.means(p, ps, p.sampling())?;
+        let (mu1, mu0) = self.means(p, ps, obs, p.sampling())?;
         let (a, y, est, n) = (p.a(), p.y(), p.spec.estimand, p.n());
         let ht = self.horvitz_thompson;
         let share = |i: usize| p.weight(i) * population(est, a[i]);
         let pop: f64 = (0..n).map(share).sum();
         let arm = |arm: usize, mu: f64| -> Vec<f64> {
-            // Row i's weight in this arm and its derivative in the score.
+            // Row i's weight in this arm and its derivative in the score,
+            // before the observation weight (`h`) and with it (`hc`).
             let h = |i: usize| {
                 let (h1, h0, d1, d0) = arm_weights(est, a[i], ps.e[i]);
                 let w = p.weight(i);
@@ -205,22 +232,29 @@ impl Ipw {
                     (w * h0, w * d0)
                 }
             };
-            let s = if ht { pop } else { (0..n).map(|i| h(i).0).sum() };
+            let hc = |i: usize| {
+                let (v, d) = h(i);
+                let c = self.observation(obs, i);
+                (v * c, d * c)
+            };
+            let s = if ht { pop } else { (0..n).map(|i| hc(i).0).sum() };
+            let r = |i: usize| if ht { y[i] } else { y[i] - mu };
             // Derivative of the estimating function in the coefficients.
-            let k_rows: Vec<f64> = (0..n)
-                .map(|i| {
-                    let r = if ht { y[i] } else { y[i] - mu };
-                    h(i).1 * ps.slope(i) * r
-                })
-                .collect();
+            let k_rows: Vec<f64> = (0..n).map(|i| hc(i).1 * ps.slope(i) * r(i)).collect();
             let k = weighted_sum(&p.propensity_rows(), &k_rows);
             drop(k_rows);
             let mut phi = ps.influence(p, &k);
+            // And in the models of being observed, through c_i.
+            if let Some(o) = obs {
+                let g: Vec<f64> = (0..n).map(|i| h(i).0 * r(i)).collect();
+                let io = o.influence(p, &g, !ht);
+                phi.iter_mut().zip(io).for_each(|(f, x)| *f += x);
+            }
             for (i, f) in phi.iter_mut().enumerate() {
                 let u = if ht {
-                    h(i).0 * y[i] - share(i) * mu
+                    hc(i).0 * y[i] - share(i) * mu
                 } else {
-                    h(i).0 * (y[i] - mu)
+                    hc(i).0 * (y[i] - mu)
                 };
                 *f = (u + *f) / s;
             }
@@ -248,16 +282,26 @@ impl Ipw {
         }
     }
 
-    /// The weighted mean outcome at level `k`, from its probabilities `pk`.
-    fn level_mean(&self, p: &Problem, pk: &[f64], k: usize, freq: Option<&[f64]>) -> Result<f64> {
+    /// The weighted mean outcome at level `k`, from its probabilities `pk`
+    /// (and each row's stabilised observation weight, when some outcomes
+    /// are missing).
+    fn level_mean(
+        &self,
+        p: &Problem,
+        pk: &[f64],
+        k: usize,
+        obs: Option<&Observed>,
+        freq: Option<&[f64]>,
+    ) -> Result<f64> {
         let (a, y) = (p.a(), p.y());
         let mut s = [0.0; 3];
         for i in 0..p.n() {
             let f = freq.map_or(1.0, |f| f[i]);
             s[2] += f;
             if a[i] as usize == k {
-                s[0] += f * y[i] / pk[i];
-                s[1] += f / pk[i];
+                let c = self.observation(obs, i);
+                s[0] += f * c * y[i] / pk[i];
+                s[1] += f * c / pk[i];
             }
         }
         if s[1] <= 0.0 {
@@ -275,6 +319,7 @@ impl Ipw {
 
     fn level_targets(&self, p: &Problem, fits: &Fits) -> Result<Targets> {
         let lp = fits.levels()?;
+        let obs = fits.observed()?;
         let (a, y, n) = (p.a(), p.y(), p.n());
         let ht = self.horvitz_thompson;
         let levels = lp.prob.len();
@@ -282,9 +327,10 @@ impl Ipw {
         let mut t = Targets::default();
         for k in 0..levels {
             let pk = &lp.prob[k];
-            let mu = self.level_mean(p, pk, k, p.sampling())?;
-            // Each row's weight, its sampling weight w_i included.
-            let h: Vec<f64> = (0..n)
+            let mu = self.level_mean(p, pk, k, obs, p.sampling())?;
+            // Each row's weight, its sampling weight w_i included, before
+            // the observation weight c_i (`h0`) and with it (`h`).
+            let h0: Vec<f64> = (0..n)
                 .map(|i| {
                     if a[i] as usize == k {
                         p.weight(i) / pk[i]
@@ -293,11 +339,17 @@ impl Ipw {
                     }
                 })
                 .collect();
+            let h: Vec<f64> = (0..n).map(|i| h0[i] * self.observation(obs, i)).collect();
             let s = if ht { total } else { h.iter().sum() };
             let r = |i: usize| if ht { y[i] } else { y[i] - mu };
             // h_i = 1{A_i = k} / p_ik, so d h_i = -(h_i / p_ik) d p_ik.
             let g: Vec<f64> = (0..n).map(|i| -h[i] / pk[i] * r(i)).collect();
             let mut phi = lp.influence(p, &lp.gradient(p, k, &g));
+            if let Some(o) = obs {
+                let g: Vec<f64> = (0..n).map(|i| h0[i] * r(i)).collect();
+                let io = o.influence(p, &g, !ht);
+                phi.iter_mut().zip(io).for_each(|(f, x)| *f += x);
+            }
             for (i, f) in phi.iter_mut().enumerate() {
                 let u = if ht {
                     h[i] * y[i] - p.weight(i) * mu

@@ -43,7 +43,7 @@ pub use result::{Estimate, Means, z_value};
 pub use sensitivity::{SensitivityInputs, TermStat, level_coefficients, sample_sd, sensitivity_inputs};
 pub use targets::{ExposureKind, Points, Serves, Target, Targets};
 
-pub use crate::problem::{Estimand, Problem, Scale, Spec};
+pub use crate::problem::{Estimand, Missing, Problem, Scale, Spec};
 
 use crate::identify::Strategy;
 use crate::learn::{Fits, Needs};
@@ -60,7 +60,9 @@ pub struct About {
     pub strategies: &'static [Strategy],
     /// The exposure kinds it serves.
     pub serves: &'static [Serves],
-    /// The exposure kinds for which it takes sampling weights.
+    /// The exposure kinds for which it takes row weights: sampling
+    /// weights, and the inverse probability weights of an observed outcome
+    /// (rows whose outcome is missing).
     pub weighted: &'static [Serves],
     /// The estimands it forms.
     pub estimands: &'static [Estimand],
@@ -151,6 +153,15 @@ pub fn refusal(e: &dyn Estimator, p: &Problem, strategy: Strategy) -> Option<Err
     } else if p.weights.is_some() && !a.weighted.iter().any(|s| s.covers(&p.kind)) {
         format!(
             "'{}' does not take sampling weights for a {} exposure such as '{}' (with sampling weights: {})",
+            a.name,
+            p.kind.words(),
+            p.spec.exposure,
+            others(&|x| fits_strategy(x) && x.weighted.iter().any(|s| s.covers(&p.kind)))
+        )
+    } else if p.observed.is_some() && !a.weighted.iter().any(|s| s.covers(&p.kind)) {
+        format!(
+            "'{}' does not weight for a missing outcome with a {} exposure such as '{}' (when weighting for \
+             it: {})",
             a.name,
             p.kind.words(),
             p.spec.exposure,

@@ -10,7 +10,7 @@
 use super::{About, Estimator, ExposureKind, Points, Serves, Target, Targets};
 use crate::data::Setting;
 use crate::identify::Strategy;
-use crate::learn::{Fits, Needs, OutcomeFit};
+use crate::learn::{Fits, Needs, Observed, OutcomeFit};
 use crate::problem::{Estimand, Problem};
 use crate::{Error, Result};
 
@@ -84,9 +84,10 @@ impl Estimator for Regression {
             )));
         }
         let observed = m.predict(p, Setting::Observed);
+        let obs = fits.observed()?;
         let mut out = Targets::default();
         for t in p.targets() {
-            let (mu, phi) = arm(p, m, t, &u, total, &observed);
+            let (mu, phi) = arm(p, m, obs, t, &u, total, &observed);
             out.push(t, mu, phi);
         }
         if let Some(s) = &m.separation {
@@ -129,13 +130,21 @@ impl Estimator for Regression {
 
 /// The mean under target `t` and its influence: the averaging over the
 /// estimand's population stacked with the outcome model's score equations.
-fn arm(p: &Problem, m: &OutcomeFit, t: Target, u: &[f64], total: f64, observed: &[f64]) -> (f64, Vec<f64>) {
+fn arm(
+    p: &Problem,
+    m: &OutcomeFit,
+    obs: Option<&Observed>,
+    t: Target,
+    u: &[f64],
+    total: f64,
+    observed: &[f64],
+) -> (f64, Vec<f64>) {
     let s = t.setting();
     let pred = m.at(p, t);
     let mu = mean(&pred, u);
     let scaled: Vec<f64> = u.iter().map(|g| g / total).collect();
     let k = m.gradient(p, s, &pred, &scaled);
-    let infl = m.influence(p, &k, observed);
+    let infl = m.influence(p, &k, observed, obs);
     let phi: Vec<f64> = (0..p.n())
         .map(|i| u[i] * (pred[i] - mu) / total + infl[i])
         .collect();

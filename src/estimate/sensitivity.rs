@@ -51,7 +51,11 @@ pub fn sensitivity_inputs(p: &Problem) -> Result<Option<SensitivityInputs>> {
     if p.binary_outcome() || p.adjusted.exposure_terms().len() != 1 {
         return Ok(None);
     }
-    let out = Ols::fit(&p.adjusted.rows(&p.frame, Setting::Observed), p.y(), p.sampling())?;
+    let out = Ols::fit(
+        &p.adjusted.rows(&p.frame, Setting::Observed),
+        p.y(),
+        p.outcome_weights().as_deref(),
+    )?;
     let exp = Ols::fit(&p.propensity_rows(), p.a(), p.sampling())?;
     let ja = p
         .adjusted
@@ -74,7 +78,7 @@ pub fn sensitivity_inputs(p: &Problem) -> Result<Option<SensitivityInputs>> {
             t_exposure: te[j],
         })
         .collect();
-    let sd = sample_sd(p.y());
+    let sd = sample_sd(&p.observed_y());
     // On the raw values (the design works in scaled units).
     let g = p.adjusted.term_scale(ja);
     Ok(Some(SensitivityInputs {
@@ -95,7 +99,11 @@ pub fn level_coefficients(p: &Problem) -> Result<Vec<(f64, f64, f64)>> {
     if p.binary_outcome() {
         return Ok(Vec::new());
     }
-    let out = Ols::fit(&p.adjusted.rows(&p.frame, Setting::Observed), p.y(), p.sampling())?;
+    let out = Ols::fit(
+        &p.adjusted.rows(&p.frame, Setting::Observed),
+        p.y(),
+        p.outcome_weights().as_deref(),
+    )?;
     let se = out.se();
     Ok(p.adjusted
         .exposure_terms()

@@ -291,8 +291,6 @@ pub fn impute(data: &Dataset, settings: &Settings<'_>) -> Result<(Vec<Dataset>, 
         datasets.push(d);
     }
     let imputed = Imputed {
-        handling: "impute",
-        imputations: m,
         iterations: ITERATIONS,
         largest_change: largest_change(&rounds),
         columns: vars

@@ -12,6 +12,9 @@
 //! - [`DoseDensity`]: a normal linear model of a continuous exposure (the
 //!   conditional density) and its marginal normal density.
 //!
+//! - [`Observed`]: logistic models of a row remaining observed (its
+//!   outcome not missing), for inverse probability of observation weights.
+//!
 //! [`Fits`] holds the models one weight vector (the full sample or one
 //! bootstrap resample) needs, fitted once and passed to every estimator
 //! evaluated on it: nothing is cached anywhere else. A model that failed
@@ -19,11 +22,13 @@
 
 mod dose;
 mod levels;
+mod observed;
 mod outcome;
 mod propensity;
 
 pub use dose::DoseDensity;
 pub use levels::LevelPropensity;
+pub use observed::Observed;
 pub use outcome::OutcomeFit;
 pub use propensity::{Propensity, separating_terms};
 
@@ -96,19 +101,46 @@ impl Nuisance for ExposureModel {
 pub struct Fits {
     outcome: Option<Result<OutcomeFit>>,
     exposure: Option<Result<ExposureModel>>,
+    observed: Option<Result<Observed>>,
 }
 
 impl Fits {
     /// Fits what `needs` asks for under frequency weights `w`, each model
     /// starting from its fit in `full` when given.
+    ///
+    /// When some outcomes are missing and weighted for, the models of being
+    /// observed are fitted first, on every row, and the outcome model on
+    /// the observed rows under `w` times their stabilised weights.
     pub fn fit(p: &Problem, w: Option<&[f64]>, full: Option<&Fits>, needs: Needs) -> Fits {
+        let observed = p
+            .observed
+            .is_some()
+            .then(|| Observed::fit(p, w, full.and_then(|f| f.observed().ok().flatten())));
+        let outcome = |w: Option<&[f64]>| OutcomeFit::fit(p, w, full.and_then(|f| f.outcome().ok()));
         Fits {
-            outcome: needs
-                .outcome
-                .then(|| OutcomeFit::fit(p, w, full.and_then(|f| f.outcome().ok()))),
+            outcome: needs.outcome.then(|| match &observed {
+                None => outcome(w),
+                Some(Err(_)) => available(&observed, "observation").map(|_| unreachable_fit()),
+                Some(Ok(o)) => {
+                    let cw: Vec<f64> = (0..p.n())
+                        .map(|i| w.map_or(1.0, |w| w[i]) * o.stabilised[i])
+                        .collect();
+                    outcome(Some(&cw))
+                }
+            }),
             exposure: needs
                 .exposure
                 .then(|| ExposureModel::fit(p, w, full.and_then(|f| f.exposure().ok()))),
+            observed,
+        }
+    }
+
+    /// The models of being observed (`None`: every outcome is observed),
+    /// or why they failed.
+    pub fn observed(&self) -> Result<Option<&Observed>> {
+        match &self.observed {
+            None => Ok(None),
+            some => available(some, "observation").map(Some),
         }
     }
 
@@ -145,6 +177,11 @@ impl Fits {
             _ => Err(Error::Internal("no exposure density model".into())),
         }
     }
+}
+
+/// Never called: [`available`] of a failed slot is an error.
+fn unreachable_fit() -> OutcomeFit {
+    unreachable!("a failed model gives its error")
 }
 
 /// The fitted model, or its error told again (every estimator that needs

@@ -4,7 +4,7 @@
 //! exposure set to a value; and the coefficients' influence on a linear
 //! functional.
 
-use super::Nuisance;
+use super::{Nuisance, Observed};
 use crate::data::Setting;
 use crate::estimate::{ExposureKind, Target};
 use crate::maths::expit_std as expit;
@@ -175,11 +175,27 @@ impl OutcomeFit {
     /// Row i's influence on `k' (b - beta)`: `x_i' B^-1 k w_i (y_i - mu_i)`,
     /// `w_i` the row's sampling weight (1 when none are given; the bread
     /// `B` is then the weighted `X'WX` or information of the weighted fit).
-    pub fn influence(&self, p: &Problem, k: &DVector<f64>, mu_observed: &[f64]) -> Vec<f64> {
+    /// When the model was fitted on the observed rows under observation
+    /// weights `c_i` (`observed`), each score carries `c_i` too, and the
+    /// influence of the weights' own estimation is added (the models of
+    /// being observed stacked with the outcome model).
+    pub fn influence(
+        &self,
+        p: &Problem,
+        k: &DVector<f64>,
+        mu_observed: &[f64],
+        observed: Option<&Observed>,
+    ) -> Vec<f64> {
         let c = self.chol.solve(k);
         let mut d = linear_predictor(&p.outcome_rows(), &c);
         for (i, ((d, y), m)) in d.iter_mut().zip(p.y()).zip(mu_observed).enumerate() {
             *d *= p.weight(i) * (y - m);
+        }
+        if let Some(o) = observed {
+            let more = o.influence(p, &d, true);
+            for ((d, c), m) in d.iter_mut().zip(&o.stabilised).zip(more) {
+                *d = *d * c + m;
+            }
         }
         d
     }

@@ -146,7 +146,7 @@ pub fn estimates(graph: &str, a: &Analysis) -> DataTable {
             "cluster_max_size",
         ]);
     }
-    let imputed = a.sample.missing.as_ref();
+    let imputed = a.sample.missing.imputed.as_ref();
     if imputed.is_some() {
         columns.extend(["imputations", "fraction_missing_information", "df"]);
     }
@@ -219,9 +219,9 @@ pub fn estimates(graph: &str, a: &Analysis) -> DataTable {
                 Cell::Count(c.max_size),
             ]);
         }
-        if let Some(m) = imputed {
+        if imputed.is_some() {
             row.extend([
-                Cell::Count(m.imputations),
+                Cell::Count(a.sample.missing.imputations.unwrap_or(0)),
                 Cell::opt(e.fraction_missing_information),
                 Cell::opt(e.df),
             ]);
@@ -300,6 +300,21 @@ pub fn diagnostics(graph: &str, a: &Analysis) -> DataTable {
             Cell::opt(s.map(|s| s.mean)),
             Cell::opt(s.map(|s| s.min)),
             Cell::opt(s.map(|s| s.max)),
+        ]);
+    }
+    t
+}
+
+/// Missing-data patterns: one row per combination of used columns missing
+/// together (columns joined by `;`), with the handling.
+pub fn missing(graph: &str, a: &Analysis) -> DataTable {
+    let mut t = DataTable::new("missing", &["graph", "handling", "columns", "rows"]);
+    for p in &a.sample.missing.patterns {
+        t.row(vec![
+            text(graph),
+            text(a.sample.missing.handling),
+            text(p.columns.join(";")),
+            Cell::Count(p.rows),
         ]);
     }
     t
@@ -429,6 +444,7 @@ pub fn analysis_tables(graph: &str, a: &Analysis) -> Vec<DataTable> {
         estimates(graph, a),
         diagnostics(graph, a),
         balance(graph, a),
+        missing(graph, a),
         sensitivity(graph, a),
         benchmarks(graph, a),
     ];

@@ -128,7 +128,7 @@ pub fn estimates_table(a: &Analysis) -> Table {
     let level = a.estimates.first().map_or(0.95, |e| e.estimate.level);
     let pct = format!("{:.0}%", 100.0 * level);
     let boot = a.estimates.iter().find_map(|e| e.bootstrap.as_ref());
-    let imputed = a.sample.missing.as_ref();
+    let imputed = a.sample.missing.imputed.as_ref();
     let analytic_head = match imputed {
         Some(_) => format!("{pct} interval (pooled)"),
         None => format!("{pct} interval (analytic)"),
@@ -189,13 +189,13 @@ pub fn estimates_table(a: &Analysis) -> Table {
         }
         t.row(row);
     }
-    if let Some(m) = imputed {
+    if imputed.is_some() {
         t.notes.push(format!(
             "Pooled over {} imputed datasets by Rubin's rules: each dataset's sandwich standard error \
              within, the spread of the estimates between; intervals from the t distribution with the \
              Barnard-Rubin degrees of freedom (df); missing information is the share of the estimate's \
              variance due to the missing values.",
-            m.imputations
+            a.sample.missing.imputations.unwrap_or(0)
         ));
     }
     if let Some(w) = a.design.as_ref().and_then(|d| d.weights.as_ref()) {
@@ -292,26 +292,7 @@ pub fn sample_text(a: &Analysis) -> String {
         t.push_str(", none dropped");
     }
     t.push('.');
-    if let Some(m) = &s.missing {
-        let cols: Vec<String> = m
-            .columns
-            .iter()
-            .map(|c| format!("{} {} ({})", c.column, c.missing, c.model))
-            .collect();
-        t.push_str(&format!(
-            " Missing cells were imputed by chained equations, {} imputations of {} rounds each \
-             (imputed cells by column: {}); the largest change of an imputed column's mean or level \
-             share between the last two rounds was {:.3}.",
-            m.imputations,
-            m.iterations,
-            if cols.is_empty() {
-                "none".to_string()
-            } else {
-                cols.join(", ")
-            },
-            m.largest_change
-        ));
-    }
+    t.push_str(&missing_text(&s.missing, &a.outcome));
     if let Some(d) = &a.design
         && let (Some(w), Some(ess)) = (&d.weights, d.effective_sample_size)
     {
@@ -326,6 +307,57 @@ pub fn sample_text(a: &Analysis) -> String {
              cluster-robust.",
             c.count, c.variable, c.min_size, c.max_size
         ));
+    }
+    t
+}
+
+/// How missing values were handled and their patterns, as sentences
+/// (empty when no used cell is missing).
+pub fn missing_text(m: &crate::data::MissingData, outcome: &str) -> String {
+    if m.patterns.is_empty() {
+        return String::new();
+    }
+    let total = m.patterns.len();
+    let shown: Vec<String> = m
+        .patterns
+        .iter()
+        .take(crate::data::PATTERNS_SHOWN)
+        .map(|p| format!("{} ({})", p.columns.join(" and "), p.rows))
+        .collect();
+    let mut t = format!(
+        " Columns missing together, with the rows that miss exactly them ({}): {}.",
+        super::doc::shown_of(shown.len(), total, true),
+        shown.join("; ")
+    );
+    if let Some(imp) = &m.imputed {
+        let cols: Vec<String> = imp
+            .columns
+            .iter()
+            .map(|c| format!("{} {} ({})", c.column, c.missing, c.model))
+            .collect();
+        t.push_str(&format!(
+            " Missing cells were imputed by chained equations, {} imputations of {} rounds each \
+             (imputed cells by column: {}); the largest change of an imputed column's mean or level \
+             share between the last two rounds was {:.3}.",
+            m.imputations.unwrap_or(0),
+            imp.iterations,
+            if cols.is_empty() {
+                "none".to_string()
+            } else {
+                cols.join(", ")
+            },
+            imp.largest_change
+        ));
+        return t;
+    }
+    match m.outcome_missing {
+        Some(k) if k > 0 => t.push_str(&format!(
+            " The {k} rows missing only {outcome} are kept: the models of the exposure and of being observed \
+             use them, and the rows with {outcome} observed are weighted by the inverse probability of being \
+             observed given the exposure and the adjustment set (Hernán & Robins 2020, section 12.6); this \
+             assumes that, given those, whether {outcome} is missing does not depend on its value."
+        )),
+        _ => t.push_str(" Rows with a missing value in a used column were left out (complete cases)."),
     }
     t
 }
@@ -431,6 +463,21 @@ fn other_diagnostics(a: &Analysis) -> Vec<Block> {
 
 /// Diagnostics: propensity ranges, weights and the balance table.
 pub fn diagnostics_blocks(a: &Analysis) -> Vec<Block> {
+    let observation = a.sample.missing.observation_weights.map(|w| {
+        Block::Para(format!(
+            "Stabilized weights of being observed (rows with {} observed): mean {}, min {}, max {}.",
+            a.outcome,
+            num(w.mean),
+            num(w.min),
+            num(w.max)
+        ))
+    });
+    let mut b = diagnostics_without_observation(a);
+    b.extend(observation);
+    b
+}
+
+fn diagnostics_without_observation(a: &Analysis) -> Vec<Block> {
     let Some(d) = &a.diagnostics else {
         return other_diagnostics(a);
     };
