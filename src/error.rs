@@ -136,6 +136,8 @@ pub enum Setting {
     Cluster,
     /// The column of sampling weights.
     Weights,
+    /// The column whose levels define subgroups (an effect modifier).
+    Subgroup,
 }
 
 impl Setting {
@@ -178,6 +180,7 @@ impl Setting {
             Setting::Draws => "the number of Monte Carlo draws",
             Setting::Cluster => "the cluster column",
             Setting::Weights => "the sampling-weight column",
+            Setting::Subgroup => "the subgroup column",
         }
     }
 }

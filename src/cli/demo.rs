@@ -67,6 +67,10 @@ pub struct Args {
     /// numbers): weighted fits, averages and diagnostics.
     #[arg(long, value_name = "COLUMN")]
     weights: Option<String>,
+    /// A column of the demo data whose levels define subgroups: the
+    /// effect within each level and a test that they differ.
+    #[arg(long, value_name = "COLUMN")]
+    subgroup: Option<String>,
     /// Print no progress bar and no warnings on stderr.
     #[arg(long)]
     quiet: bool,
@@ -95,6 +99,7 @@ fn flags(a: &Args) -> EstimateFlags {
         latent: None,
         cluster: a.cluster.clone(),
         weights: a.weights.clone(),
+        subgroup: a.subgroup.clone(),
         seed: a.seed,
         threads: a.threads,
         check: a.check,

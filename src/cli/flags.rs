@@ -115,6 +115,12 @@ pub struct EstimateFlags {
     /// the effective sample size is reported.
     #[arg(long, value_name = "COLUMN")]
     pub weights: Option<String>,
+    /// A binary or categorical column (a few numeric values count as
+    /// levels; need not be a graph node, but must not be affected by the
+    /// exposure): the effect within each of its levels, a test that they
+    /// differ, and a forest plot in the bundle.
+    #[arg(long, value_name = "COLUMN")]
+    pub subgroup: Option<String>,
     /// Seed of the bootstrap's random streams.
     #[arg(long, allow_negative_numbers = true, default_value_t = 1, value_name = "N")]
     pub seed: u64,
@@ -299,6 +305,7 @@ impl EstimateFlags {
                 reference: self.reference.clone(),
                 cluster: self.cluster.clone(),
                 weights: self.weights.clone(),
+                subgroup: self.subgroup.clone(),
                 ..Spec::default()
             },
             bootstrap: self.bootstrap,

@@ -152,6 +152,7 @@ pub fn flag(setting: Setting) -> &'static str {
         Setting::Draws => "--mc-draws",
         Setting::Cluster => "--cluster",
         Setting::Weights => "--weights",
+        Setting::Subgroup => "--subgroup",
     }
 }
 
@@ -162,7 +163,7 @@ mod tests {
     use clap::CommandFactory;
 
     /// Every setting, so that each is checked against the flags below.
-    const SETTINGS: [Setting; 36] = [
+    const SETTINGS: [Setting; 37] = [
         Setting::Method,
         Setting::Estimand,
         Setting::Scale,
@@ -199,6 +200,7 @@ mod tests {
         Setting::Draws,
         Setting::Cluster,
         Setting::Weights,
+        Setting::Subgroup,
     ];
 
     #[test]

@@ -73,8 +73,12 @@ fn term(a: f64, k: usize, y: f64, m: f64, q: f64) -> f64 {
 fn weighted_terms(p: &Problem, k: usize, m: &[f64], freq: Option<&[f64]>, q: impl Fn(usize) -> f64) -> f64 {
     let (a, y) = (p.a(), p.y());
     match freq {
-        Some(f) => (0..p.n()).map(|i| f[i] * term(a[i], k, y[i], m[i], q(i))).sum(),
-        None => (0..p.n()).map(|i| term(a[i], k, y[i], m[i], q(i))).sum(),
+        Some(f) => (0..p.n())
+            .map(|i| f[i] * p.member(i) * term(a[i], k, y[i], m[i], q(i)))
+            .sum(),
+        None => (0..p.n())
+            .map(|i| p.member(i) * term(a[i], k, y[i], m[i], q(i)))
+            .sum(),
     }
 }
 
@@ -100,8 +104,8 @@ impl Estimator for Aipw {
         let om = fits.outcome()?;
         let mut out = Points::default();
         let sw: f64 = match freq {
-            Some(f) => f.iter().sum(),
-            None => p.n() as f64,
+            Some(f) => f.iter().enumerate().map(|(i, f)| f * p.member(i)).sum(),
+            None => (0..p.n()).map(|i| p.member(i)).sum(),
         };
         for t in p.targets() {
             let Target::Level(k) = t else { continue };
@@ -125,7 +129,8 @@ impl Estimator for Aipw {
         // and each row's part of every estimating equation carries w_i
         // (the models' own scores take it inside their influence).
         let n = p.n();
-        let w = |i: usize| p.weight(i);
+        // Within a subgroup the mean is over its rows alone.
+        let w = |i: usize| p.average_weight(i);
         let nf: f64 = (0..n).map(w).sum();
         let observed = om.predict(p, Setting::Observed);
         let (a, y) = (p.a(), p.y());
