@@ -102,7 +102,7 @@ pub fn forest_svg(p: &ForestPlot) -> String {
     let (mut lo, mut hi) = values.fold((f64::INFINITY, f64::NEG_INFINITY), |(a, b), v| {
         (a.min(v), b.max(v))
     });
-    if !(hi > lo) {
+    if hi <= lo {
         lo -= 1.0;
         hi += 1.0;
     }
