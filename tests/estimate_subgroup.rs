@@ -236,8 +236,8 @@ fn stratum_intervals_cover_their_own_effects() {
         }
     }
     for (k, m) in methods.iter().enumerate() {
-        for s in 0..2 {
-            let c = cover[k][s] as f64 / reps as f64;
+        for (s, hits) in cover[k].iter().enumerate() {
+            let c = *hits as f64 / reps as f64;
             eprintln!("{m} stratum {s}: coverage {c}");
             assert!((0.95 - c).abs() <= 0.046, "{m} stratum {s}: coverage {c}");
         }
