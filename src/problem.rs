@@ -283,7 +283,7 @@ impl Subgroup {
             return Err(Error::option(
                 Opt::Subgroup,
                 format!(
-                    "'{name}' takes a single value ('{}') in the {n} complete rows: subgroups need at least                      two levels",
+                    "'{name}' takes a single value ('{}') in the {n} complete rows: subgroups need at least two levels",
                     levels[0]
                 ),
             ));
@@ -292,7 +292,7 @@ impl Subgroup {
             return Err(Error::option(
                 Opt::Subgroup,
                 format!(
-                    "'{name}' has {} levels in the {n} complete rows; a subgroup column may have at most                      {MAX_SUBGROUP_LEVELS} (each level is a stratum with its own contrasts and model                      products): group its values into fewer levels",
+                    "'{name}' has {} levels in the {n} complete rows; a subgroup column may have at most {MAX_SUBGROUP_LEVELS} (each level is a stratum with its own contrasts and model products): group its values into fewer levels",
                     levels.len()
                 ),
             ));
@@ -303,10 +303,10 @@ impl Subgroup {
             sizes[s as usize] += 1;
         }
         let groups: Vec<String> = match frame.kind(exposure) {
-            Kind::Binary { .. } => vec!["unexposed".into(), "exposed".into()],
+            Kind::Binary { .. } => vec!["unexposed rows".into(), "exposed rows".into()],
             Kind::Categorical { levels } => levels
                 .iter()
-                .map(|l| format!("at exposure level '{l}'"))
+                .map(|l| format!("rows at exposure level '{l}'"))
                 .collect(),
             Kind::Numeric => Vec::new(),
         };
@@ -324,8 +324,7 @@ impl Subgroup {
                         return Err(Error::option(
                             Opt::Subgroup,
                             format!(
-                                "level '{level}' of '{name}' has {k} {group} row{} among its {rows} complete                                  rows: each subgroup needs at least 2 rows in every exposure group for an                                  effect with a standard error; merge this level with another or leave the                                  subgroups out",
-                                if *k == 1 { "" } else { "s" }
+                                "level '{level}' of '{name}' has {k} {group} among its {rows} complete rows: each subgroup needs at least 2 rows in every exposure group for an effect with a standard error; merge this level with another or leave the subgroups out"
                             ),
                         ));
                     }
@@ -335,7 +334,7 @@ impl Subgroup {
                 return Err(Error::option(
                     Opt::Subgroup,
                     format!(
-                        "level '{level}' of '{name}' has only {rows} complete rows for the {terms} terms of                          the outcome model: too few for an effect within it; merge this level with another                          or leave the subgroups out"
+                        "level '{level}' of '{name}' has only {rows} complete rows for the {terms} terms of the outcome model: too few for an effect within it; merge this level with another or leave the subgroups out"
                     ),
                 ));
             }
@@ -347,14 +346,6 @@ impl Subgroup {
             sizes,
             column,
         })
-    }
-
-    /// The sentence every report repeats about the modifier.
-    pub fn timing_sentence(&self) -> String {
-        format!(
-            "Effects within the levels of '{}' are only meaningful if '{}' was measured before the              exposure (a variable the exposure can change is not a modifier, and splitting by it              reintroduces bias).",
-            self.variable, self.variable
-        )
     }
 }
 

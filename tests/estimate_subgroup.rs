@@ -403,3 +403,56 @@ fn bad_subgroup_columns_are_refused_naming_them() {
     assert_eq!(v["sample"]["dropped_by_column"]["g"], 90);
     assert_eq!(v["sample"]["used"], 810);
 }
+
+// A continuous exposure: each level gets its own one-unit effect and its
+// own dose-response curves (`curves[].subgroup`). Simulated (seed 31):
+// effects 1 (g = 0) and 2 (g = 1) per unit.
+#[test]
+fn continuous_exposure_gets_an_effect_and_curves_per_level() {
+    let mut r = rng(31);
+    let (mut rows, n) = (String::from("x,g,a,y\n"), 800);
+    for _ in 0..n {
+        let x = normal(&mut r);
+        let g = if r.random::<f64>() < 0.5 { 1.0 } else { 0.0 };
+        let a = 1.0 + 0.5 * x + normal(&mut r);
+        let y = a * (1.0 + g) + x + normal(&mut r);
+        rows.push_str(&format!("{x},{g},{a},{y}\n"));
+    }
+    let dir = tempfile::tempdir().unwrap();
+    let data = write(dir.path(), "d.csv", &rows);
+    let graph = write(dir.path(), "g.graph", "x -> a\nx -> y\na -> y\n");
+    let r = run_in(
+        dir.path(),
+        &[
+            "estimate",
+            "--graph",
+            &graph,
+            "--data",
+            &data,
+            "--exposure",
+            "a",
+            "--outcome",
+            "y",
+            "--subgroup",
+            "g",
+            "--format",
+            "json",
+            "--quiet",
+        ],
+    );
+    assert_eq!(r.code, 0, "{}", r.stderr);
+    let v: Value = serde_json::from_str(&r.stdout).unwrap();
+    for (level, truth) in [("0", 1.0), ("1", 2.0)] {
+        let e = within(&v, "regression", level);
+        let ci = e["ci"].as_array().unwrap();
+        assert!(num(&ci[0]) < truth && truth < num(&ci[1]), "{e}");
+    }
+    let curves = v["curves"].as_array().unwrap();
+    assert_eq!(curves.len(), 6, "two methods, overall and two levels");
+    assert!(
+        curves
+            .iter()
+            .any(|c| c["method"] == "ipw" && c["subgroup"]["level"] == "1")
+    );
+    assert_eq!(test_of(&v, "regression")["df"], 1);
+}
