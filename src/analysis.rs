@@ -102,6 +102,31 @@ pub struct Item {
     /// The analytic (sandwich) interval, kept when the bootstrap replaced it.
     #[serde(skip)]
     pub analytic_ci: [f64; 2],
+    /// The E-value of a subgroup's row (the whole sample's is in the
+    /// `sensitivity` block).
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub evalue: Option<EValue>,
+}
+
+/// The JSON `subgroups` block: the modifier's levels and their rows.
+#[derive(Debug, Clone, Serialize)]
+pub struct Subgroups {
+    /// The subgroup column.
+    pub variable: String,
+    /// Each level and its rows.
+    pub levels: Vec<SubgroupRows>,
+    /// Why a method's test of equal effects is missing.
+    #[serde(skip)]
+    pub notes: Vec<String>,
+}
+
+/// One level of the subgroup column.
+#[derive(Debug, Clone, Serialize)]
+pub struct SubgroupRows {
+    /// Its label.
+    pub level: String,
+    /// Used rows at this level.
+    pub rows: usize,
 }
 
 /// The JSON `design` block: how the rows were sampled.
@@ -178,9 +203,17 @@ pub struct Analysis {
     /// The graph's implications tested on the data (with `--check`).
     #[serde(skip_serializing_if = "Option::is_none")]
     pub check: Option<CheckSummary>,
-    /// Dose-response curves (continuous exposure), one per method.
+    /// Dose-response curves (continuous exposure), one per method (and,
+    /// with subgroups, per method and level).
     #[serde(skip_serializing_if = "Vec::is_empty")]
     pub curves: Vec<Curve>,
+    /// The subgroup column's levels (with `subgroup`).
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub subgroups: Option<Subgroups>,
+    /// Per method, the test that the effect is the same in every
+    /// subgroup.
+    #[serde(skip_serializing_if = "Vec::is_empty")]
+    pub heterogeneity: Vec<estimate::Heterogeneity>,
     /// How each method was described for a methods paragraph, in order.
     #[serde(skip)]
     pub methods_sentences: Vec<String>,
@@ -200,7 +233,7 @@ pub struct Curve {
     /// The exposure level (survival curves only; null here).
     pub level: Option<String>,
     /// The subgroup (null: everyone).
-    pub subgroup: Option<String>,
+    pub subgroup: Option<estimate::SubgroupLevel>,
     /// The points, in dose order.
     pub points: Vec<CurvePoint>,
 }
@@ -300,7 +333,10 @@ pub fn columns(plan: &Plan, opts: &Options) -> Vec<String> {
     ];
     c.extend(plan.adjustment_set.iter().flatten().cloned());
     c.extend(plan.frontdoor_set.iter().flatten().cloned());
-    for k in [&opts.model.cluster, &opts.model.weights].into_iter().flatten() {
+    for k in [&opts.model.cluster, &opts.model.weights, &opts.model.subgroup]
+        .into_iter()
+        .flatten()
+    {
         if !c.contains(k) {
             c.push(k.clone());
         }
@@ -341,6 +377,9 @@ pub fn run(plan: &Plan, data: &Dataset, opts: &Options) -> Result<Analysis> {
                 ),
             ));
         }
+    }
+    if let Some(s) = &opts.model.subgroup {
+        check_subgroup(plan, s)?;
     }
     let problem = Problem::build(data, &spec(plan, opts))?;
     let methods: Vec<&'static dyn Estimator> = match &opts.methods {
@@ -388,11 +427,7 @@ pub fn run(plan: &Plan, data: &Dataset, opts: &Options) -> Result<Analysis> {
         let name = m.about().name;
         warnings.extend(t.warnings.iter().map(|w| format!("{name}: {w}")));
         notes.extend(t.notes.iter().map(|n| format!("{name}: {n}")));
-        estimates.extend(rows.into_iter().map(|e| Item {
-            analytic_ci: e.ci,
-            estimate: e,
-            bootstrap: None,
-        }));
+        estimates.extend(rows.into_iter().map(Item::of));
         if let Some(c) = curve(&problem, name, &t) {
             let values: Vec<f64> = c
                 .points
@@ -404,9 +439,38 @@ pub fn run(plan: &Plan, data: &Dataset, opts: &Options) -> Result<Analysis> {
         }
         targets.push(t);
     }
+    // The same methods within each level of the subgroup column, from the
+    // same fits.
+    let strata: Vec<Problem> = match &problem.subgroup {
+        Some(g) => (0..g.levels.len()).map(|s| problem.within(s)).collect(),
+        None => Vec::new(),
+    };
+    let mut strata_targets: Vec<Vec<Targets>> = Vec::new();
+    let mut heterogeneity = Vec::new();
+    let mut subgroup_notes = Vec::new();
+    for (m, overall) in methods.iter().zip(&targets) {
+        let name = m.about().name;
+        let mut by = Vec::new();
+        for ps in &strata {
+            let (rows, t) = estimate::rows(*m, ps, &fits)?;
+            estimates.extend(rows.into_iter().map(Item::of));
+            curves.extend(curve(ps, name, &t));
+            by.push(t);
+        }
+        if !strata.is_empty() {
+            let variance = estimate::contrast::Variance::of(&problem, overall);
+            match estimate::heterogeneity(&problem, name, &by, &variance) {
+                Ok(h) => heterogeneity.push(h),
+                Err(e @ Error::Numerical(_)) => subgroup_notes.push(format!("no test of equal effects: {e}")),
+                Err(e) => return Err(e),
+            }
+        }
+        strata_targets.push(by);
+    }
     if opts.bootstrap > 0 {
         warnings.extend(run_bootstrap(
             &problem,
+            &strata,
             &methods,
             &fits,
             needs,
@@ -442,6 +506,39 @@ pub fn run(plan: &Plan, data: &Dataset, opts: &Options) -> Result<Analysis> {
         }
     }
     let (sensitivity, details) = sensitivity(&problem, &targets, &estimates, opts)?;
+    // Each subgroup row's E-value, from its own targets.
+    if !strata.is_empty() {
+        let inputs = if !problem.binary_outcome() {
+            estimate::sensitivity_inputs(&problem)?
+        } else {
+            None
+        };
+        for item in estimates.iter_mut() {
+            let Some(s) = stratum_of(&problem, &item.estimate) else {
+                continue;
+            };
+            let Some(k) = methods
+                .iter()
+                .position(|m| m.about().name == item.estimate.method)
+            else {
+                continue;
+            };
+            item.evalue = evalue_for(&strata[s], &strata_targets[k][s], item, inputs.as_ref(), opts).ok();
+        }
+    }
+    let subgroups = problem.subgroup.as_ref().map(|g| Subgroups {
+        variable: g.variable.clone(),
+        levels: g
+            .levels
+            .iter()
+            .zip(&g.sizes)
+            .map(|(l, &rows)| SubgroupRows {
+                level: l.clone(),
+                rows,
+            })
+            .collect(),
+        notes: subgroup_notes,
+    });
     let methods_sentences = methods
         .iter()
         .map(|m| m.methods_sentence(&problem.kind))
@@ -490,9 +587,61 @@ pub fn run(plan: &Plan, data: &Dataset, opts: &Options) -> Result<Analysis> {
         notes,
         check,
         curves,
+        subgroups,
+        heterogeneity,
         methods_sentences,
         model_terms: problem.outcome_design.ncols(),
     })
+}
+
+impl Item {
+    /// An estimate row before any bootstrap.
+    fn of(e: Estimate) -> Item {
+        Item {
+            analytic_ci: e.ci,
+            estimate: e,
+            bootstrap: None,
+            evalue: None,
+        }
+    }
+}
+
+/// The level code of the stratum an estimate row is within, if any.
+fn stratum_of(p: &Problem, e: &Estimate) -> Option<usize> {
+    let (s, g) = (e.subgroup.as_ref()?, p.subgroup.as_ref()?);
+    g.levels.iter().position(|l| *l == s.level)
+}
+
+/// A subgroup column must not be affected by the exposure (a descendant
+/// of it in the graph), and subgroups are formed under the backdoor
+/// strategy only.
+fn check_subgroup(plan: &Plan, name: &str) -> Result<()> {
+    let g = &plan.roles.graph;
+    if plan.strategy != Strategy::Backdoor {
+        return Err(Error::option(
+            Setting::Subgroup,
+            format!(
+                "'{name}': effects within subgroups are formed under the backdoor strategy only (this graph \
+                 uses the {} strategy)",
+                plan.strategy.name()
+            ),
+        ));
+    }
+    if let Some(v) = g.node(name)
+        && v != plan.roles.exposure
+        && g.is_ancestor(plan.roles.exposure, v)
+    {
+        return Err(Error::option(
+            Setting::Subgroup,
+            format!(
+                "'{name}' is a descendant of the exposure '{}' in the graph: the exposure can change it, so \
+                 it does not define subgroups of people as they were before exposure; choose a variable \
+                 measured before the exposure",
+                g.name(plan.roles.exposure)
+            ),
+        ));
+    }
+    Ok(())
 }
 
 /// The dose-response curve of a method's targets (continuous exposure,
@@ -520,15 +669,17 @@ fn curve(p: &Problem, method: &str, t: &Targets) -> Option<Curve> {
         method: method.to_string(),
         kind: "dose-response",
         level: None,
-        subgroup: None,
+        subgroup: p.subgroup_level(),
         points,
     })
 }
 
 /// Refits every method in each bootstrap replicate and puts the chosen
 /// interval into `ci` of every row and curve point; returns warnings.
+#[allow(clippy::too_many_arguments)]
 fn run_bootstrap(
     p: &Problem,
+    strata: &[Problem],
     methods: &[&'static dyn Estimator],
     full: &Fits,
     needs: Needs,
@@ -544,22 +695,27 @@ fn run_bootstrap(
         progress: opts.progress.clone(),
         bca: opts.interval == IntervalKind::Bca,
     };
-    // The statistics of each method: its rows' contrasts, then its curve's
-    // doses.
-    let layout: Vec<(Vec<ContrastSpec>, Vec<Target>)> = methods
+    // The statistics of each method: its rows' contrasts, then its curves'
+    // doses, each for the whole sample (view 0) and then each subgroup
+    // (view s + 1), in the order they were formed.
+    let views: Vec<&Problem> = std::iter::once(p).chain(strata).collect();
+    let view = |s: Option<&estimate::SubgroupLevel>| {
+        s.and_then(|s| p.subgroup.as_ref()?.levels.iter().position(|l| *l == s.level))
+            .map_or(0, |k| k + 1)
+    };
+    type Layout = (Vec<Vec<ContrastSpec>>, Vec<Vec<Target>>);
+    let layout: Vec<Layout> = methods
         .iter()
         .map(|m| {
             let name = m.about().name;
-            let rows = estimates
-                .iter()
-                .filter(|e| e.estimate.method == name)
-                .map(|e| e.estimate.spec.clone())
-                .collect();
-            let doses = curves
-                .iter()
-                .filter(|c| c.method == name)
-                .flat_map(|c| c.points.iter().map(|q| Target::Dose(q.x)))
-                .collect();
+            let mut rows = vec![Vec::new(); views.len()];
+            for e in estimates.iter().filter(|e| e.estimate.method == name) {
+                rows[view(e.estimate.subgroup.as_ref())].push(e.estimate.spec.clone());
+            }
+            let mut doses = vec![Vec::new(); views.len()];
+            for c in curves.iter().filter(|c| c.method == name) {
+                doses[view(c.subgroup.as_ref())].extend(c.points.iter().map(|q| Target::Dose(q.x)));
+            }
             (rows, doses)
         })
         .collect();
@@ -582,14 +738,22 @@ fn run_bootstrap(
         let fits = Fits::fit(p, w, Some(full), needs);
         let mut out = Vec::new();
         for ((m, (rows, doses)), tally) in methods.iter().zip(&layout).zip(&reasons) {
-            match m.point(p, &fits, w) {
-                Ok(points) => out.extend(estimate::replicate(&points, p, rows, doses)),
-                Err(e) => {
-                    let mut t = tally.lock().unwrap_or_else(|poisoned| poisoned.into_inner());
-                    *t.entry(e.to_string()).or_default() += 1;
-                    out.extend(std::iter::repeat_n(f64::NAN, rows.len() + doses.len()));
+            let mut curve_part = Vec::new();
+            for ((v, rows), doses) in views.iter().zip(rows).zip(doses) {
+                match m.point(v, &fits, w) {
+                    Ok(points) => {
+                        out.extend(estimate::replicate(&points, v, rows, &[]));
+                        curve_part.extend(estimate::replicate(&points, v, &[], doses));
+                    }
+                    Err(e) => {
+                        let mut t = tally.lock().unwrap_or_else(|poisoned| poisoned.into_inner());
+                        *t.entry(e.to_string()).or_default() += 1;
+                        out.extend(std::iter::repeat_n(f64::NAN, rows.len()));
+                        curve_part.extend(std::iter::repeat_n(f64::NAN, doses.len()));
+                    }
                 }
             }
+            out.extend(curve_part);
         }
         Ok(out)
     })?;
@@ -732,7 +896,7 @@ fn sensitivity(
     let mut by_contrast = Vec::new();
     let rows: Vec<&Item> = estimates
         .iter()
-        .filter(|e| e.estimate.method == first.estimate.method)
+        .filter(|e| e.estimate.method == first.estimate.method && e.estimate.subgroup.is_none())
         .collect();
     if rows.len() > 1 {
         for (k, item) in rows.iter().enumerate() {

@@ -140,6 +140,8 @@ pub enum Setting {
     Missing,
     /// The number of imputed datasets.
     Imputations,
+    /// The column whose levels define subgroups (an effect modifier).
+    Subgroup,
 }
 
 impl Setting {
@@ -184,6 +186,7 @@ impl Setting {
             Setting::Weights => "the sampling-weight column",
             Setting::Missing => "the handling of missing values",
             Setting::Imputations => "the number of imputations",
+            Setting::Subgroup => "the subgroup column",
         }
     }
 }

@@ -139,6 +139,8 @@ pub struct Spec {
     pub missing: Missing,
     /// With [`Missing::Impute`]: the number of imputed datasets.
     pub imputations: usize,
+    /// The column whose levels define subgroups (`None`: no subgroups).
+    pub subgroup: Option<String>,
 }
 
 /// The default number of imputed datasets (van Buuren 2018, *Flexible
@@ -307,6 +309,115 @@ fn observed_sample(data: &Dataset, used: &[&str], spec: &Spec, warnings: &mut Ve
     Ok(sample)
 }
 
+/// Most levels a subgroup column may have: each level is a stratum with
+/// its own rows, contrasts and exposure-by-level products in the outcome
+/// model (the cap of a categorical exposure, for the same reason).
+pub const MAX_SUBGROUP_LEVELS: usize = crate::data::MAX_EXPOSURE_LEVELS;
+
+/// The levels of an effect modifier over the used rows: the JSON rows'
+/// `subgroup` and the heterogeneity test come from these strata.
+#[derive(Debug, Clone)]
+pub struct Subgroup {
+    /// The column.
+    pub variable: String,
+    /// Level labels in code order.
+    pub levels: Vec<String>,
+    /// Each used row's level code.
+    pub of: Vec<u32>,
+    /// Rows per level.
+    pub sizes: Vec<usize>,
+    /// The frame column whose indicators enter both models.
+    pub column: usize,
+}
+
+impl Subgroup {
+    /// The modifier's column of `frame` (binary or categorical), checked:
+    /// at least two levels, at most [`MAX_SUBGROUP_LEVELS`], and in every
+    /// level at least two rows in each exposure group (binary or
+    /// categorical exposure) and more rows than the outcome model has
+    /// terms.
+    fn of(frame: &Frame, spec: &Spec, column: usize, exposure: usize, terms: usize) -> Result<Subgroup> {
+        let name = spec.subgroup.clone().unwrap_or_default();
+        let levels: Vec<String> = match frame.kind(column) {
+            Kind::Binary { low, high } => vec![low.clone(), high.clone()],
+            Kind::Categorical { levels } => levels.clone(),
+            Kind::Numeric => {
+                // A single value is coded numeric.
+                let v = frame.col(column);
+                vec![short_number(v.first().copied().unwrap_or(0.0))]
+            }
+        };
+        let n = frame.nrows();
+        if levels.len() < 2 || frame.kind(column) == &Kind::Numeric {
+            return Err(Error::option(
+                Opt::Subgroup,
+                format!(
+                    "'{name}' takes a single value ('{}') in the {n} complete rows: subgroups need at least two levels",
+                    levels[0]
+                ),
+            ));
+        }
+        if levels.len() > MAX_SUBGROUP_LEVELS {
+            return Err(Error::option(
+                Opt::Subgroup,
+                format!(
+                    "'{name}' has {} levels in the {n} complete rows; a subgroup column may have at most {MAX_SUBGROUP_LEVELS} (each level is a stratum with its own contrasts and model products): group its values into fewer levels",
+                    levels.len()
+                ),
+            ));
+        }
+        let of: Vec<u32> = frame.col(column).iter().map(|&v| v as u32).collect();
+        let mut sizes = vec![0usize; levels.len()];
+        for &s in &of {
+            sizes[s as usize] += 1;
+        }
+        let groups: Vec<String> = match frame.kind(exposure) {
+            Kind::Binary { .. } => vec!["unexposed rows".into(), "exposed rows".into()],
+            Kind::Categorical { levels } => levels
+                .iter()
+                .map(|l| format!("rows at exposure level '{l}'"))
+                .collect(),
+            Kind::Numeric => Vec::new(),
+        };
+        for (s, level) in levels.iter().enumerate() {
+            let rows = sizes[s];
+            if !groups.is_empty() {
+                let mut count = vec![0usize; groups.len()];
+                for (i, &a) in frame.col(exposure).iter().enumerate() {
+                    if of[i] as usize == s {
+                        count[a as usize] += 1;
+                    }
+                }
+                for (k, group) in count.iter().zip(&groups).rev() {
+                    if *k < 2 {
+                        return Err(Error::option(
+                            Opt::Subgroup,
+                            format!(
+                                "level '{level}' of '{name}' has {k} {group} among its {rows} complete rows: each subgroup needs at least 2 rows in every exposure group for an effect with a standard error; merge this level with another or leave the subgroups out"
+                            ),
+                        ));
+                    }
+                }
+            }
+            if rows <= terms {
+                return Err(Error::option(
+                    Opt::Subgroup,
+                    format!(
+                        "level '{level}' of '{name}' has only {rows} complete rows for the {terms} terms of the outcome model: too few for an effect within it; merge this level with another or leave the subgroups out"
+                    ),
+                ));
+            }
+        }
+        Ok(Subgroup {
+            variable: name,
+            levels,
+            of,
+            sizes,
+            column,
+        })
+    }
+}
+
 /// Doses on the default dose-response grid (common practice, no source).
 pub const CURVE_POINTS: usize = 9;
 
@@ -337,6 +448,7 @@ impl Default for Spec {
             weights: None,
             missing: Missing::Complete,
             imputations: DEFAULT_IMPUTATIONS,
+            subgroup: None,
         }
     }
 }
@@ -381,6 +493,12 @@ pub struct Problem {
     /// value is then a placeholder, 0, that a zero weight keeps out of
     /// every sum); `None`: every used row's outcome is observed.
     pub observed: Option<Vec<f64>>,
+    /// The levels of the effect modifier (`None`: no subgroups).
+    pub subgroup: Option<Subgroup>,
+    /// The stratum every average is restricted to (a level code of
+    /// `subgroup`; `None`: every used row). Set by [`Problem::within`]
+    /// only; the models are always those of the whole sample.
+    pub stratum: Option<usize>,
     /// The propensity design's rows, kept when they fit in memory.
     propensity_store: Option<Store>,
     /// The outcome design's rows (exposure as observed), likewise.
@@ -426,7 +544,10 @@ impl Problem {
         let mut used: Vec<&str> = vec![&spec.outcome, &spec.exposure];
         used.extend(spec.covariates.iter().map(String::as_str));
         used.extend(spec.mediators.iter().map(String::as_str));
-        for c in [&spec.cluster, &spec.weights].into_iter().flatten() {
+        for c in [&spec.cluster, &spec.weights, &spec.subgroup]
+            .into_iter()
+            .flatten()
+        {
             if !used.contains(&c.as_str()) {
                 used.push(c);
             }
@@ -509,11 +630,38 @@ impl Problem {
         check_groups(&frame, spec, exposure)?;
         warnings.extend(few_valued_exposure(&frame, spec, exposure));
         warnings.extend(doses_outside(&frame, spec, exposure)?);
-        let interact: Vec<usize> = spec
+        let mut interact: Vec<usize> = spec
             .interact
             .iter()
             .map(|n| covariates[spec.covariates.iter().position(|c| c == n).unwrap_or(0)])
             .collect();
+        // The modifier enters both models (among the propensity terms, and
+        // by its indicators times the exposure in the outcome model): an
+        // adjustment covariate that is already binary or categorical is
+        // reused, anything else is coded by its levels and added.
+        let modifier = match &spec.subgroup {
+            Some(name) => {
+                let known = spec
+                    .covariates
+                    .iter()
+                    .position(|c| c == name)
+                    .map(|k| covariates[k]);
+                let column = match known {
+                    Some(c) if frame.kind(c) != &Kind::Numeric => c,
+                    _ => {
+                        let c =
+                            frame.push_from(data, &sample, name, Role::Covariate { categorical: true })?;
+                        covariates.push(c);
+                        c
+                    }
+                };
+                if !interact.contains(&column) {
+                    interact.push(column);
+                }
+                Some(column)
+            }
+            None => None,
+        };
         // One design, centred and checked once; the others are its subsets.
         let full = Design::build(&frame, Some(exposure), &covariates, spec.shape, &interact);
         let drop = aliased(&full, &frame, None);
@@ -558,6 +706,10 @@ impl Problem {
         let propensity = outcome_design.without_exposure();
         let adjusted = outcome_design.without_products();
         let terms = outcome_design.ncols();
+        let subgroup = match modifier {
+            Some(c) => Some(Subgroup::of(&frame, spec, c, exposure, terms)?),
+            None => None,
+        };
         if sample.used <= terms {
             return Err(Error::input(format!(
                 "only {} complete rows for the {terms} terms of the outcome model ({}): at least {} \
@@ -602,9 +754,46 @@ impl Problem {
             clusters,
             weights,
             observed,
+            subgroup,
+            stratum: None,
             propensity_store,
             outcome_store,
         })
+    }
+
+    /// The same problem with every average restricted to the rows at
+    /// level code `s` of the subgroup column (the models, their fits and
+    /// their influence stay those of the whole sample).
+    pub fn within(&self, s: usize) -> Problem {
+        Problem {
+            stratum: Some(s),
+            ..self.clone()
+        }
+    }
+
+    /// The stratum averaged over, as the rows name it (`None`: everyone).
+    pub fn subgroup_level(&self) -> Option<crate::estimate::SubgroupLevel> {
+        let (s, g) = (self.stratum?, self.subgroup.as_ref()?);
+        Some(crate::estimate::SubgroupLevel {
+            variable: g.variable.clone(),
+            level: g.levels[s].clone(),
+        })
+    }
+
+    /// Row `i`'s membership of the stratum averaged over (1 or 0; 1
+    /// without a stratum).
+    pub fn member(&self, i: usize) -> f64 {
+        match (self.stratum, &self.subgroup) {
+            (Some(s), Some(g)) => f64::from(u8::from(g.of[i] as usize == s)),
+            _ => 1.0,
+        }
+    }
+
+    /// Row `i`'s weight in an estimator's averages: its sampling weight
+    /// times its membership of the stratum (the models' own estimating
+    /// equations take [`Problem::weight`] alone).
+    pub fn average_weight(&self, i: usize) -> f64 {
+        self.weight(i) * self.member(i)
     }
 
     /// The rows of the propensity design, read from memory when kept.
@@ -764,13 +953,15 @@ impl Problem {
         }
     }
 
-    /// Row `i`'s membership of the estimand's population (1 or 0).
+    /// Row `i`'s membership of the estimand's population within the
+    /// stratum averaged over (1 or 0).
     pub fn group(&self, i: usize) -> f64 {
-        match self.spec.estimand {
-            Estimand::Ate => 1.0,
-            Estimand::Att => self.a()[i],
-            Estimand::Atc => 1.0 - self.a()[i],
-        }
+        self.member(i)
+            * match self.spec.estimand {
+                Estimand::Ate => 1.0,
+                Estimand::Att => self.a()[i],
+                Estimand::Atc => 1.0 - self.a()[i],
+            }
     }
 }
 
@@ -808,6 +999,16 @@ fn check_spec(spec: &Spec) -> Result<()> {
     }
     if spec.exposure == spec.outcome {
         return Err(Error::input("the exposure and the outcome are the same column"));
+    }
+    if let Some(s) = &spec.subgroup
+        && (s == &spec.exposure || s == &spec.outcome || spec.mediators.contains(s))
+    {
+        return Err(Error::option(
+            Opt::Subgroup,
+            format!(
+                "'{s}' is the exposure, the outcome or a mediator; a subgroup column must be measured before the exposure"
+            ),
+        ));
     }
     for i in &spec.interact {
         if !spec.covariates.contains(i) {

@@ -24,6 +24,7 @@ mod estimate_impute;
 mod estimate_missing;
 mod estimate_nhefs;
 mod estimate_sim;
+mod estimate_subgroup;
 mod estimate_weights;
 mod fuzz_pipeline;
 mod graph_parse;

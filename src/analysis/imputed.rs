@@ -30,6 +30,13 @@ pub(super) fn run(plan: &Plan, data: &Dataset, opts: &Options) -> Result<Analysi
              handle missing values by complete cases",
         ));
     }
+    if opts.model.subgroup.is_some() {
+        return Err(Error::option(
+            Setting::Subgroup,
+            "effects within subgroups are not pooled across imputed datasets yet; leave the subgroups out, \
+             or handle missing values by complete cases or by weighting for a missing outcome",
+        ));
+    }
     let spec = super::spec(plan, opts);
     let mut columns: Vec<&str> = vec![&spec.exposure, &spec.outcome];
     columns.extend(spec.covariates.iter().map(String::as_str));

@@ -303,7 +303,7 @@ impl Comparison {
                     figures.extend(bundle::figures(plan, Some(a), &prefix)?);
                 }
                 RunResult::Stopped { reason, .. } => {
-                    let [graph_svg, _, _, _] = estimate_doc::figure_paths(&prefix);
+                    let [graph_svg, ..] = estimate_doc::figure_paths(&prefix);
                     blocks.push(Block::Figure {
                         path: graph_svg,
                         caption: format!("The graph {}", run.graph),

@@ -74,6 +74,10 @@ pub struct Args {
     /// With --missing impute: the number of imputed datasets [default: 20].
     #[arg(long, value_name = "M")]
     imputations: Option<usize>,
+    /// A column of the demo data whose levels define subgroups: the
+    /// effect within each level and a test that they differ.
+    #[arg(long, value_name = "COLUMN")]
+    subgroup: Option<String>,
     /// Print no progress bar and no warnings on stderr.
     #[arg(long)]
     quiet: bool,
@@ -104,6 +108,7 @@ fn flags(a: &Args) -> EstimateFlags {
         weights: a.weights.clone(),
         missing: a.missing,
         imputations: a.imputations,
+        subgroup: a.subgroup.clone(),
         seed: a.seed,
         threads: a.threads,
         check: a.check,

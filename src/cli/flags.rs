@@ -125,6 +125,12 @@ pub struct EstimateFlags {
     /// in full [default: 20].
     #[arg(long, value_name = "M")]
     pub imputations: Option<usize>,
+    /// A binary or categorical column (a few numeric values count as
+    /// levels; need not be a graph node, but must not be affected by the
+    /// exposure): the effect within each of its levels, a test that they
+    /// differ, and a forest plot in the bundle.
+    #[arg(long, value_name = "COLUMN")]
+    pub subgroup: Option<String>,
     /// Seed of the bootstrap's random streams.
     #[arg(long, allow_negative_numbers = true, default_value_t = 1, value_name = "N")]
     pub seed: u64,
@@ -328,6 +334,7 @@ impl EstimateFlags {
                 weights: self.weights.clone(),
                 missing: self.missing.into(),
                 imputations: self.imputations.unwrap_or(causeway::problem::DEFAULT_IMPUTATIONS),
+                subgroup: self.subgroup.clone(),
                 ..Spec::default()
             },
             bootstrap: self.bootstrap,

@@ -154,6 +154,7 @@ pub fn flag(setting: Setting) -> &'static str {
         Setting::Weights => "--weights",
         Setting::Missing => "--missing",
         Setting::Imputations => "--imputations",
+        Setting::Subgroup => "--subgroup",
     }
 }
 
@@ -164,7 +165,7 @@ mod tests {
     use clap::CommandFactory;
 
     /// Every setting, so that each is checked against the flags below.
-    const SETTINGS: [Setting; 38] = [
+    const SETTINGS: [Setting; 39] = [
         Setting::Method,
         Setting::Estimand,
         Setting::Scale,
@@ -203,6 +204,7 @@ mod tests {
         Setting::Weights,
         Setting::Missing,
         Setting::Imputations,
+        Setting::Subgroup,
     ];
 
     #[test]

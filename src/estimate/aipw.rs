@@ -91,10 +91,10 @@ fn weighted_terms(
     let (a, y) = (p.a(), p.y());
     match freq {
         Some(f) => (0..p.n())
-            .map(|i| f[i] * term(a[i], k, y[i], m[i], q(i), plain(obs, i)))
+            .map(|i| f[i] * p.member(i) * term(a[i], k, y[i], m[i], q(i), plain(obs, i)))
             .sum(),
         None => (0..p.n())
-            .map(|i| term(a[i], k, y[i], m[i], q(i), plain(obs, i)))
+            .map(|i| p.member(i) * term(a[i], k, y[i], m[i], q(i), plain(obs, i)))
             .sum(),
     }
 }
@@ -122,8 +122,8 @@ impl Estimator for Aipw {
         let obs = fits.observed()?;
         let mut out = Points::default();
         let sw: f64 = match freq {
-            Some(f) => f.iter().sum(),
-            None => p.n() as f64,
+            Some(f) => f.iter().enumerate().map(|(i, f)| f * p.member(i)).sum(),
+            None => (0..p.n()).map(|i| p.member(i)).sum(),
         };
         for t in p.targets() {
             let Target::Level(k) = t else { continue };
@@ -149,7 +149,8 @@ impl Estimator for Aipw {
         // and each row's part of every estimating equation carries w_i
         // (the models' own scores take it inside their influence).
         let n = p.n();
-        let w = |i: usize| p.weight(i);
+        // Within a subgroup the mean is over its rows alone.
+        let w = |i: usize| p.average_weight(i);
         let nf: f64 = (0..n).map(w).sum();
         let observed = om.predict(p, Setting::Observed);
         let (a, y) = (p.a(), p.y());

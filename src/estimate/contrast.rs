@@ -150,6 +150,23 @@ impl<'a> Variance<'a> {
         }
     }
 
+    /// The covariance of two estimates from their per-row influence
+    /// values `a` and `b` (summed within clusters first, with the same
+    /// factor as [`Variance::std_error`]).
+    pub fn covariance(&self, a: &[f64], b: &[f64]) -> f64 {
+        match self.clusters {
+            None => a.iter().zip(b).map(|(x, y)| x * y).sum(),
+            Some(c) => {
+                let (mut sa, mut sb) = (vec![0.0; c.count], vec![0.0; c.count]);
+                for ((&g, x), y) in c.of.iter().zip(a).zip(b) {
+                    sa[g as usize] += x;
+                    sb[g as usize] += y;
+                }
+                self.factor * sa.iter().zip(&sb).map(|(x, y)| x * y).sum::<f64>()
+            }
+        }
+    }
+
     /// Cluster-robust (summed within clusters)?
     pub fn clustered(&self) -> bool {
         self.clusters.is_some()
@@ -255,6 +272,34 @@ pub fn root_sum_squares(x: impl Iterator<Item = f64> + Clone) -> f64 {
     m * x.map(|v| (v / m) * (v / m)).sum::<f64>().sqrt()
 }
 
+/// The derivatives of the contrast on its interval's scale (the
+/// difference; the log ratio; the log odds ratio) in the two means.
+fn derivatives(scale: Scale, mu1: f64, mu0: f64) -> (f64, f64) {
+    match scale {
+        Scale::Difference => (1.0, 1.0),
+        Scale::Ratio => (1.0 / mu1, 1.0 / mu0),
+        Scale::Odds => (1.0 / (mu1 * (1.0 - mu1)), 1.0 / (mu0 * (1.0 - mu0))),
+    }
+}
+
+/// The contrast `c` of `t` on its interval's scale (the difference, the
+/// log ratio or the log odds ratio) and its per-row influence values;
+/// `None` when the estimator did not form one of its targets.
+pub fn linearised(t: &Targets, c: &ContrastSpec, scale: Scale) -> Option<Result<(f64, Vec<f64>)>> {
+    let (i1, i0) = (t.position(c.level)?, t.position(c.reference)?);
+    let (mu1, mu0) = (t.values[i1], t.values[i0]);
+    Some(effect(scale, mu1, mu0).map(|e| {
+        let (d1, d0) = derivatives(scale, mu1, mu0);
+        let phi = t.influence[i1]
+            .iter()
+            .zip(&t.influence[i0])
+            .map(|(a, b)| d1 * a - d0 * b)
+            .collect();
+        let value = if scale == Scale::Difference { e } else { e.ln() };
+        (value, phi)
+    }))
+}
+
 pub(crate) fn interval(
     scale: Scale,
     arms: &Arms<'_>,
@@ -262,14 +307,7 @@ pub(crate) fn interval(
     variance: &Variance<'_>,
 ) -> Result<(f64, f64, [f64; 2])> {
     let est = effect(scale, arms.mu1, arms.mu0)?;
-    let (d1, d0) = match scale {
-        Scale::Difference => (1.0, 1.0),
-        Scale::Ratio => (1.0 / arms.mu1, 1.0 / arms.mu0),
-        Scale::Odds => (
-            1.0 / (arms.mu1 * (1.0 - arms.mu1)),
-            1.0 / (arms.mu0 * (1.0 - arms.mu0)),
-        ),
-    };
+    let (d1, d0) = derivatives(scale, arms.mu1, arms.mu0);
     let se = variance.std_error(arms.phi1.iter().zip(arms.phi0).map(|(a, b)| d1 * a - d0 * b));
     if !se.is_finite() {
         return Err(Error::Numerical("the standard error is not finite".into()));

@@ -189,7 +189,7 @@ impl Ipw {
         let (a, y, est) = (p.a(), p.y(), p.spec.estimand);
         let mut s = [0.0; 5];
         for i in 0..p.n() {
-            let f = freq.map_or(1.0, |f| f[i]);
+            let f = freq.map_or(1.0, |f| f[i]) * p.member(i);
             let (h1, h0, _, _) = arm_weights(est, a[i], ps.e[i]);
             let (h1, h0) = (h1 * self.observation(obs, i), h0 * self.observation(obs, i));
             s[0] += f * h1 * y[i];
@@ -218,14 +218,17 @@ impl Ipw {
         let (mu1, mu0) = self.means(p, ps, obs, p.sampling())?;
         let (a, y, est, n) = (p.a(), p.y(), p.spec.estimand, p.n());
         let ht = self.horvitz_thompson;
-        let share = |i: usize| p.weight(i) * population(est, a[i]);
+        // Within a subgroup every average is over its rows
+        // (`Problem::average_weight`); the propensity model's own score
+        // stays that of the whole sample.
+        let share = |i: usize| p.average_weight(i) * population(est, a[i]);
         let pop: f64 = (0..n).map(share).sum();
         let arm = |arm: usize, mu: f64| -> Vec<f64> {
             // Row i's weight in this arm and its derivative in the score,
             // before the observation weight (`h`) and with it (`hc`).
             let h = |i: usize| {
                 let (h1, h0, d1, d0) = arm_weights(est, a[i], ps.e[i]);
-                let w = p.weight(i);
+                let w = p.average_weight(i);
                 if arm == 1 {
                     (w * h1, w * d1)
                 } else {
@@ -296,7 +299,7 @@ impl Ipw {
         let (a, y) = (p.a(), p.y());
         let mut s = [0.0; 3];
         for i in 0..p.n() {
-            let f = freq.map_or(1.0, |f| f[i]);
+            let f = freq.map_or(1.0, |f| f[i]) * p.member(i);
             s[2] += f;
             if a[i] as usize == k {
                 let c = self.observation(obs, i);
@@ -323,7 +326,7 @@ impl Ipw {
         let (a, y, n) = (p.a(), p.y(), p.n());
         let ht = self.horvitz_thompson;
         let levels = lp.prob.len();
-        let total: f64 = (0..n).map(|i| p.weight(i)).sum();
+        let total: f64 = (0..n).map(|i| p.average_weight(i)).sum();
         let mut t = Targets::default();
         for k in 0..levels {
             let pk = &lp.prob[k];
@@ -333,7 +336,7 @@ impl Ipw {
             let h0: Vec<f64> = (0..n)
                 .map(|i| {
                     if a[i] as usize == k {
-                        p.weight(i) / pk[i]
+                        p.average_weight(i) / pk[i]
                     } else {
                         0.0
                     }
@@ -352,7 +355,7 @@ impl Ipw {
             }
             for (i, f) in phi.iter_mut().enumerate() {
                 let u = if ht {
-                    h[i] * y[i] - p.weight(i) * mu
+                    h[i] * y[i] - p.average_weight(i) * mu
                 } else {
                     h[i] * (y[i] - mu)
                 };
@@ -391,7 +394,9 @@ struct Msm {
 impl Msm {
     fn fit(p: &Problem, sw: &[f64], freq: Option<&[f64]>) -> Result<Msm> {
         let design = Design::build(&p.frame, Some(p.exposure), &[], p.spec.shape, &[]);
-        let w: Vec<f64> = (0..p.n()).map(|i| freq.map_or(1.0, |f| f[i]) * sw[i]).collect();
+        let w: Vec<f64> = (0..p.n())
+            .map(|i| freq.map_or(1.0, |f| f[i]) * p.member(i) * sw[i])
+            .collect();
         let (coef, chol) = Ols::coefficients(&design.rows(&p.frame, Setting::Observed), p.y(), Some(&w))?;
         Ok(Msm {
             design,

@@ -24,6 +24,7 @@ mod aipw;
 pub mod contrast;
 mod diagnostics;
 mod frontdoor;
+mod heterogeneity;
 mod ipw;
 mod regression;
 mod result;
@@ -37,9 +38,10 @@ pub use diagnostics::{
     WeightDiagnostics, diagnostics, dose_diagnostics, level_diagnostics,
 };
 pub use frontdoor::FrontDoor;
+pub use heterogeneity::{Heterogeneity, heterogeneity};
 pub use ipw::Ipw;
 pub use regression::Regression;
-pub use result::{Estimate, Means, z_value};
+pub use result::{Estimate, Means, SubgroupLevel, z_value};
 pub use sensitivity::{SensitivityInputs, TermStat, level_coefficients, sample_sd, sensitivity_inputs};
 pub use targets::{ExposureKind, Points, Serves, Target, Targets};
 
@@ -205,17 +207,21 @@ pub fn needs(estimators: &[&dyn Estimator]) -> Needs {
 pub fn rows(e: &dyn Estimator, p: &Problem, fits: &Fits) -> Result<(Vec<Estimate>, Targets)> {
     let t = e.targets(p, fits)?;
     let variance = contrast::Variance::of(p, &t);
+    let subgroup = p.subgroup_level();
     let mut out = Vec::new();
     for c in p.contrasts() {
         let Some(formed) = contrast::form(&t, &c, p.spec.scale, p.spec.level, &variance) else {
             continue;
         };
         let f = formed?;
+        let within = subgroup
+            .as_ref()
+            .map_or(String::new(), |s| format!(" in {} = {}", s.variable, s.level));
         finite_result(
             &[f.estimate, f.std_error, f.ci[0], f.ci[1]],
             &match &c.label {
-                Some(l) => format!("the {} estimate ({})", e.about().name, l.words()),
-                None => format!("the {} estimate", e.about().name),
+                Some(l) => format!("the {} estimate ({}){within}", e.about().name, l.words()),
+                None => format!("the {} estimate{within}", e.about().name),
             },
         )?;
         out.push(Estimate {
@@ -239,6 +245,7 @@ pub fn rows(e: &dyn Estimator, p: &Problem, fits: &Fits) -> Result<(Vec<Estimate
             notes: t.notes.clone(),
             warnings: t.warnings.clone(),
             spec: c,
+            subgroup: subgroup.clone(),
         });
     }
     Ok((out, t))

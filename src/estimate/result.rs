@@ -48,6 +48,16 @@ impl Serialize for Means {
     }
 }
 
+/// The level of the subgroup column an estimate is within (the JSON
+/// rows' and curves' `subgroup`).
+#[derive(Debug, Clone, PartialEq, Eq, Serialize)]
+pub struct SubgroupLevel {
+    /// The subgroup column.
+    pub variable: String,
+    /// The level's label.
+    pub level: String,
+}
+
 /// One method's estimate, with its analytic interval.
 #[derive(Debug, Clone, Serialize)]
 pub struct Estimate {
@@ -65,6 +75,9 @@ pub struct Estimate {
         serialize_with = "serialize_label"
     )]
     pub spec: ContrastSpec,
+    /// The subgroup the effect is within (absent: everyone).
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub subgroup: Option<SubgroupLevel>,
     /// Point estimate on `scale`.
     pub estimate: f64,
     /// Standard error on `scale` (delta method; for ratio and odds the

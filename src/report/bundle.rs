@@ -10,7 +10,7 @@ use super::doc::{Block, DataTable, Doc, Exporter, Table};
 use super::estimate_doc::{self, figure_paths};
 use super::graph_figure::{self, Marks};
 use super::sensitivity_figure::{self, benchmark_yardsticks};
-use super::{balance_figure, curve_figure, markdown::Markdown};
+use super::{balance_figure, curve_figure, forest_figure, markdown::Markdown};
 use super::{csv, latex};
 use crate::Result;
 use crate::analysis::Analysis;
@@ -50,7 +50,7 @@ pub fn marks(plan: &Plan) -> Marks {
 /// The figures of one analysis, named with `prefix` (see
 /// [`estimate_doc::figure_paths`]); figures that do not apply are left out.
 pub fn figures(plan: &Plan, a: Option<&Analysis>, prefix: &str) -> Result<Vec<File>> {
-    let [graph, balance, tipping, curve] = figure_paths(prefix);
+    let [graph, balance, tipping, curve, forest] = figure_paths(prefix);
     let mut out = vec![file(&graph, graph_figure::svg(&plan.roles.graph, &marks(plan)))];
     let Some(a) = a else { return Ok(out) };
     if let Some(d) = &a.diagnostics
@@ -60,6 +60,9 @@ pub fn figures(plan: &Plan, a: Option<&Analysis>, prefix: &str) -> Result<Vec<Fi
     }
     if !a.curves.is_empty() {
         out.push(file(&curve, curve_figure::curve_svg(&curve_plot(a))));
+    }
+    if let Some(plot) = forest_plot(a) {
+        out.push(file(&forest, forest_figure::forest_svg(&plot)));
     }
     let s = &a.sensitivity;
     let r2 = s.robustness_value.as_ref().map(|rv| {
@@ -118,6 +121,66 @@ fn curve_plot(a: &Analysis) -> curve_figure::CurvePlot {
             .collect(),
         marks,
     }
+}
+
+/// The subgroup figure's content: a band per method and contrast with
+/// the overall row and each level's row (`None` without subgroups).
+fn forest_plot(a: &Analysis) -> Option<forest_figure::ForestPlot> {
+    let g = a.subgroups.as_ref()?;
+    let first = a.estimates.first()?;
+    let scale = first.estimate.scale;
+    let level = first.estimate.level;
+    let mut groups: Vec<forest_figure::ForestGroup> = Vec::new();
+    for it in &a.estimates {
+        let e = &it.estimate;
+        let title = match e.contrast() {
+            Some(c) => format!("{} ({})", estimate_doc::method_label(&e.method), c.words()),
+            None => estimate_doc::method_label(&e.method).to_string(),
+        };
+        let row = forest_figure::ForestRow {
+            label: e.subgroup.as_ref().map_or("overall".into(), |s| {
+                super::subgroup_doc::level_words(&s.variable, &s.level)
+            }),
+            estimate: estimate_doc::shown(a, e.scale, e.estimate),
+            lower: estimate_doc::shown(a, e.scale, e.ci[0]),
+            upper: estimate_doc::shown(a, e.scale, e.ci[1]),
+            overall: e.subgroup.is_none(),
+        };
+        match groups.iter_mut().find(|x| x.title == title) {
+            Some(x) => x.rows.push(row),
+            None => {
+                let note = a.heterogeneity.iter().find(|h| h.method == e.method).map(|h| {
+                    format!(
+                        "equal effects across levels: chi-square {} on {} df, p = {:.3}",
+                        estimate_doc::num(h.statistic),
+                        h.df,
+                        h.p_value
+                    )
+                });
+                groups.push(forest_figure::ForestGroup {
+                    title,
+                    note,
+                    rows: vec![row],
+                });
+            }
+        }
+    }
+    let ratio = scale != crate::estimate::Scale::Difference;
+    Some(forest_figure::ForestPlot {
+        title: format!(
+            "Effect of {} on {} overall and within levels of {}",
+            a.exposure, a.outcome, g.variable
+        ),
+        x_label: format!(
+            "{} with {:.0}% interval{}",
+            estimate_doc::scale_label(a, scale),
+            100.0 * level,
+            if ratio { " (log axis)" } else { "" }
+        ),
+        null: if ratio { 1.0 } else { 0.0 },
+        log: ratio,
+        groups,
+    })
 }
 
 /// The tables of a document's blocks, in order.

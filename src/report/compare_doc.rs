@@ -159,10 +159,17 @@ pub fn comparison_table(runs: &[Run], level: f64) -> Table {
                         r.graph.clone(),
                         strategy.into(),
                         set_text(&set),
-                        match e.contrast() {
-                            Some(c) => format!("{} ({})", e.method, c.words()),
-                            None => e.method.clone(),
-                        },
+                        format!(
+                            "{}{}",
+                            match e.contrast() {
+                                Some(c) => format!("{} ({})", e.method, c.words()),
+                                None => e.method.clone(),
+                            },
+                            e.subgroup.as_ref().map_or(String::new(), |s| format!(
+                                " in {}",
+                                super::subgroup_doc::level_words(&s.variable, &s.level)
+                            ))
+                        ),
                         scale_label(a, e.scale).into(),
                         num(shown(a, e.scale, e.estimate)),
                         shown_interval(a, e.scale, e.ci),

@@ -150,6 +150,10 @@ pub fn estimates(graph: &str, a: &Analysis) -> DataTable {
     if imputed.is_some() {
         columns.extend(["imputations", "fraction_missing_information", "df"]);
     }
+    let subgroups = a.subgroups.is_some();
+    if subgroups {
+        columns.extend(["subgroup_variable", "subgroup_level"]);
+    }
     let mut t = DataTable::new("estimates", &columns);
     let [strategy, set] = strategy_cells(a);
     let note = if a.identification.directed_path {
@@ -172,6 +176,12 @@ pub fn estimates(graph: &str, a: &Analysis) -> DataTable {
                 .filter(|_| a.details.evalue_method.as_deref() == Some(e.method.as_str()))
                 .filter(|_| a.sensitivity.by_contrast.is_empty())
         });
+        // A subgroup row's E-value is its own.
+        let ev = if e.subgroup.is_some() {
+            it.evalue.as_ref()
+        } else {
+            ev
+        };
         let b = it.bootstrap.as_ref();
         let mut row = vec![
             text(graph),
@@ -224,6 +234,13 @@ pub fn estimates(graph: &str, a: &Analysis) -> DataTable {
                 Cell::Count(a.sample.missing.imputations.unwrap_or(0)),
                 Cell::opt(e.fraction_missing_information),
                 Cell::opt(e.df),
+            ]);
+        }
+        if subgroups {
+            let s = e.subgroup.as_ref();
+            row.extend([
+                s.map_or(Cell::Empty, |s| text(&s.variable)),
+                s.map_or(Cell::Empty, |s| text(&s.level)),
             ]);
         }
         t.row(row);
@@ -448,10 +465,33 @@ pub fn analysis_tables(graph: &str, a: &Analysis) -> Vec<DataTable> {
         sensitivity(graph, a),
         benchmarks(graph, a),
     ];
+    if !a.heterogeneity.is_empty() {
+        v.push(heterogeneity(graph, a));
+    }
     if let Some(c) = &a.check {
         v.push(check(graph, c));
     }
     v
+}
+
+/// The tests that the effect is the same in every subgroup: one row per
+/// method.
+pub fn heterogeneity(graph: &str, a: &Analysis) -> DataTable {
+    let mut t = DataTable::new(
+        "heterogeneity",
+        &["graph", "method", "variable", "statistic", "df", "p_value"],
+    );
+    for h in &a.heterogeneity {
+        t.row(vec![
+            text(graph),
+            text(&h.method),
+            text(&h.variable),
+            Cell::Num(h.statistic),
+            Cell::Count(h.df),
+            Cell::Num(h.p_value),
+        ]);
+    }
+    t
 }
 
 /// Tables of the same name stacked into one (in first-seen order); tables

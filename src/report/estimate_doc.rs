@@ -160,7 +160,7 @@ pub fn estimates_table(a: &Analysis) -> Table {
     if contrasts {
         t = t.align(3, Align::Left);
     }
-    for it in &a.estimates {
+    for it in a.estimates.iter().filter(|e| e.estimate.subgroup.is_none()) {
         let e = &it.estimate;
         let sh = |v: f64| num(shown(a, e.scale, v));
         let mut row = vec![method_label(&e.method).into()];
@@ -368,7 +368,14 @@ pub fn curves_table(a: &Analysis) -> Option<Table> {
     let first = a.curves.first()?;
     let level = a.estimates.first().map_or(0.95, |e| e.estimate.level);
     let heads: Vec<String> = std::iter::once(format!("dose of {}", a.exposure))
-        .chain(a.curves.iter().map(|c| method_label(&c.method).to_string()))
+        .chain(a.curves.iter().map(|c| match &c.subgroup {
+            Some(s) => format!(
+                "{}, {}",
+                method_label(&c.method),
+                super::subgroup_doc::level_words(&s.variable, &s.level)
+            ),
+            None => method_label(&c.method).to_string(),
+        }))
         .collect();
     let heads: Vec<&str> = heads.iter().map(String::as_str).collect();
     let mut t = Table::new(
@@ -531,13 +538,15 @@ fn diagnostics_without_observation(a: &Analysis) -> Vec<Block> {
 
 /// File names of the figures of one analysis in a report bundle, all
 /// starting with `prefix` (e.g. `figures/main-`, see [`figure_prefix`]):
-/// the graph, the balance plot and the sensitivity figure.
-pub fn figure_paths(prefix: &str) -> [String; 4] {
+/// the graph, the balance plot, the sensitivity figure, the dose-response
+/// curves and the subgroup figure.
+pub fn figure_paths(prefix: &str) -> [String; 5] {
     [
         format!("{prefix}graph.svg"),
         format!("{prefix}balance.svg"),
         format!("{prefix}sensitivity.svg"),
         format!("{prefix}curve.svg"),
+        format!("{prefix}subgroups.svg"),
     ]
 }
 
@@ -696,6 +705,10 @@ pub fn analysis_blocks(a: &Analysis, figures: Option<&str>) -> Vec<Block> {
             "The dose-response curve of each method, with its pointwise interval",
         ));
     }
+    b.extend(super::subgroup_doc::subgroup_blocks(
+        a,
+        figs.as_ref().map(|f| f[4].clone()),
+    ));
     let diag = diagnostics_blocks(a);
     if !diag.is_empty() {
         b.push(Block::Heading("Diagnostics".into()));

@@ -13,6 +13,7 @@ pub mod csv;
 pub mod curve_figure;
 pub mod doc;
 pub mod estimate_doc;
+pub mod forest_figure;
 pub mod graph_figure;
 pub mod identify_text;
 pub mod json;
@@ -21,6 +22,7 @@ pub mod markdown;
 pub mod sensitivity_doc;
 pub mod sensitivity_figure;
 pub mod sensitivity_text;
+pub mod subgroup_doc;
 pub mod svg;
 pub mod text;
 
