@@ -22,6 +22,7 @@ mod estimate_frontdoor;
 mod estimate_nhefs;
 mod estimate_sim;
 mod estimate_weights;
+mod formats;
 mod fuzz_pipeline;
 mod graph_parse;
 mod graph_props;

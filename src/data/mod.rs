@@ -33,6 +33,7 @@ mod kernel;
 mod pass;
 mod read;
 mod sample;
+pub mod source;
 mod spline;
 mod store;
 
@@ -48,6 +49,7 @@ pub(crate) use kernel::{expit_into, gram_lower_add};
 pub use pass::{BLOCK, Block, DenseRows, Rows, map_rows, reduce, reduce_into, with_buffer};
 pub use read::{Delimiter, ReadOptions, compressed, not_text};
 pub use sample::{Sample, tokens_note};
+pub use source::{Compression, Format, unreadable};
 pub use spline::{rcs_basis, rcs_knots};
 pub use store::Store;
 
