@@ -341,3 +341,69 @@ pub(crate) fn binary_read(
         (Format::Text(_), _) => Err(Error::Internal("delimited text routed as a binary format".into())),
     }
 }
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::data::Delimiter;
+
+    #[test]
+    fn formats_are_told_by_content_before_name() {
+        let named = |bytes: &[u8], name: &str| Format::detect(bytes, Some(Path::new(name)), name);
+        assert_eq!(named(b"PAR1\x15\x04", "x.csv").unwrap(), Format::Parquet);
+        assert_eq!(named(b"ARROW1\0\0", "x.txt").unwrap(), Format::Arrow);
+        assert_eq!(named(b"<stata_dta><header>", "x").unwrap(), Format::Stata);
+        // Stata 114, little-endian, file type 1.
+        assert_eq!(
+            named(b"\x72\x02\x01\x00\x05\x00", "x.bin").unwrap(),
+            Format::Stata
+        );
+        assert_eq!(
+            named(b"\x1f\x8b\x08\0", "x.csv").unwrap(),
+            Format::Text(Some(Compression::Gzip))
+        );
+        assert_eq!(
+            named(b"\x28\xb5\x2f\xfd", "x").unwrap(),
+            Format::Text(Some(Compression::Zstd))
+        );
+        // Text that starts with a letter in the old Stata versions' range.
+        assert_eq!(named(b"q,r\n1,2\n", "x.csv").unwrap(), Format::Text(None));
+        // An empty file goes by its name (its reader says what is wrong).
+        assert_eq!(named(b"", "x.parquet").unwrap(), Format::Parquet);
+        let e = named(b"a,b\n1,2\n", "x.dta").unwrap_err().to_string();
+        assert_eq!(
+            e,
+            "x.dta: is named as a Stata file but holds delimited text; give it a .csv, .tsv or .txt name"
+        );
+        let e = named(b"a,b\n", "x.csv.zst").unwrap_err().to_string();
+        assert!(e.contains("is named as zstd compressed but is not"), "{e}");
+        assert_eq!(Format::from_name(Path::new("A.FEATHER")), Format::Arrow);
+    }
+
+    #[test]
+    fn compressed_tab_separated_names_imply_tab() {
+        for name in ["a.tsv", "a.tsv.gz", "a.TSV.zst"] {
+            assert_eq!(
+                Delimiter::from_path(Path::new(name)),
+                Some(Delimiter::Tab),
+                "{name}"
+            );
+        }
+        for name in ["a.csv.gz", "a.gz", "tsv.gz", "a.zst"] {
+            assert_eq!(Delimiter::from_path(Path::new(name)), None, "{name}");
+        }
+    }
+
+    #[test]
+    fn binary_names_must_be_distinct_and_present() {
+        let names = |v: &[&str]| v.iter().map(|s| s.to_string()).collect::<Vec<_>>();
+        assert!(check_names("f", &names(&["a", "b"])).is_ok());
+        let e = check_names("f", &names(&["a", "b", "a"]))
+            .unwrap_err()
+            .to_string();
+        assert_eq!(e, "f: duplicate column name 'a' (columns 1 and 3)");
+        let e = check_names("f", &names(&["a", " "])).unwrap_err().to_string();
+        assert_eq!(e, "f: column 2 has no name");
+        assert!(check_names("f", &[]).is_err());
+    }
+}
