@@ -26,6 +26,7 @@ mod estimate_nhefs;
 mod estimate_sim;
 mod estimate_subgroup;
 mod estimate_weights;
+mod formats;
 mod fuzz_pipeline;
 mod graph_parse;
 mod graph_props;

@@ -360,9 +360,10 @@ fn special_files_get_their_own_message() {
     std::fs::write(d.join("image.png"), &png).unwrap();
     std::fs::write(d.join("d.csv.gz"), b"\x1f\x8b\x08\x00\x00\x00\x00\x00\x00\x03abc").unwrap();
     std::fs::write(d.join("d.csv.zst"), b"\x28\xb5\x2f\xfd\x04\x58abc").unwrap();
+    std::fs::write(d.join("d.csv.xz"), b"\xfd7zXZ\x00\x00\x04abc").unwrap();
     // A graph that is binary data is left to the graph parser, which
     // names the line and column of the first byte that is not text.
-    let data_cases: [(&str, &[&str]); 7] = [
+    let data_cases: [(&str, &[&str]); 8] = [
         ("/dev/null", &["/dev/null", "empty"]),
         ("folder", &["--data folder: is a folder, not a data file"]),
         ("empty.csv", &["empty.csv", "the file is empty"]),
@@ -371,8 +372,22 @@ fn special_files_get_their_own_message() {
             "image.png",
             &["--data image.png: is not delimited text", "binary"],
         ),
-        ("d.csv.gz", &["--data d.csv.gz: looks compressed (gzip)"]),
-        ("d.csv.zst", &["--data d.csv.zst: looks compressed (zstd)"]),
+        // gzip and zstd are read: these streams are damaged.
+        (
+            "d.csv.gz",
+            &["d.csv.gz: the gzip stream is", "cannot be decompressed"],
+        ),
+        (
+            "d.csv.zst",
+            &["d.csv.zst: the zstd stream is", "cannot be decompressed"],
+        ),
+        (
+            "d.csv.xz",
+            &[
+                "--data d.csv.xz: looks compressed (xz)",
+                "only gzip and zstd are read",
+            ],
+        ),
     ];
     for (path, words) in data_cases {
         for cmd in ["estimate", "check", "identify"] {

@@ -34,11 +34,12 @@ pub struct Args {
     #[arg(long, value_name = "FILE")]
     graph: PathBuf,
     /// The data: delimited text with a header row (comma, tab or
-    /// semicolon); `-` reads standard input.
+    /// semicolon; also gzip or zstd compressed), Parquet, Arrow IPC or
+    /// Stata .dta, told by content, else by name; `-` reads standard input.
     #[arg(long, value_name = "FILE")]
     data: PathBuf,
-    /// Field separator of the data: comma, tab or semicolon (default: tab
-    /// for a .tsv file, else detected from the header line).
+    /// Field separator of delimited text: comma, tab or semicolon (default:
+    /// tab for a .tsv file, else detected from the header line).
     #[arg(long, value_enum, value_name = "SEP")]
     delimiter: Option<DelimiterArg>,
     /// Level at which an adjusted p-value rejects a claim.

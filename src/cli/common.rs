@@ -46,9 +46,11 @@ pub enum Input {
 
 /// Checks the input file `path` given to `flag` before it is read: each
 /// refusal names the flag and the path and says what is wrong (no such
-/// file, a folder, not readable, compressed, or with `binary` binary rather
-/// than text). `kind` names what the file should be ("data file").
-pub fn open_input(path: &Path, flag: &str, kind: &str, binary: bool) -> Result<Input> {
+/// file, a folder, not readable; for a graph file (`data` false),
+/// compressed; for a data file, neither text nor a format the data stage
+/// reads, by its first bytes). `kind` names what the file should be
+/// ("data file").
+pub fn open_input(path: &Path, flag: &str, kind: &str, data: bool) -> Result<Input> {
     use std::io::{ErrorKind, Read};
     let shown = path.display();
     let refuse = |e: std::io::Error| {
@@ -67,8 +69,10 @@ pub fn open_input(path: &Path, flag: &str, kind: &str, binary: bool) -> Result<I
     let mut head = Vec::with_capacity(8192);
     (&mut f).take(8192).read_to_end(&mut head).map_err(refuse)?;
     // A device or pipe is read whole below: binary data (`/dev/zero`) is
-    // refused first whatever `binary` says, as it may never end.
-    let what = if binary || !meta.is_file() {
+    // refused first, as it may never end.
+    let what = if data {
+        causeway::data::unreadable(&head)
+    } else if !meta.is_file() {
         causeway::data::not_text(&head)
     } else {
         causeway::data::compressed(&head)
@@ -156,7 +160,7 @@ pub fn write_atomic(path: &Path, text: &[u8], inputs: &[&Path]) -> Result<()> {
 pub fn write_atomic_with(
     path: &Path,
     inputs: &[&Path],
-    fill: impl FnOnce(&mut dyn Write) -> Result<()>,
+    fill: impl FnOnce(&mut (dyn Write + Send)) -> Result<()>,
 ) -> Result<()> {
     refuse_inputs(path, inputs)?;
     let dir = match path.parent() {

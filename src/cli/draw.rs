@@ -40,8 +40,8 @@ pub struct Args {
     /// as unobserved (only the header line is read).
     #[arg(long, value_name = "FILE")]
     data: Option<PathBuf>,
-    /// Field separator of the data: comma, tab or semicolon (default: tab
-    /// for a .tsv file, else detected from the header line).
+    /// Field separator of delimited text: comma, tab or semicolon (default:
+    /// tab for a .tsv file, else detected from the header line).
     #[arg(long, value_enum, value_name = "SEP")]
     delimiter: Option<DelimiterArg>,
     /// svg (a figure) or dot (the graph in the DOT language, an export for

@@ -506,10 +506,7 @@ impl DataSource {
     pub fn header(&self) -> Result<Vec<String>> {
         match &self.stdin {
             Some(b) => Dataset::read_header(&b[..], &self.shown, self.delimiter),
-            None => {
-                let f = std::fs::File::open(&self.path).map_err(|e| Error::io(&self.path, e))?;
-                Dataset::read_header(f, &self.shown, self.delimiter)
-            }
+            None => Dataset::open_header(&self.path, self.delimiter),
         }
     }
 

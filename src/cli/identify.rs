@@ -34,13 +34,13 @@ pub struct Args {
     /// The outcome variable.
     #[arg(long, value_name = "NAME")]
     outcome: String,
-    /// The data (delimited text: comma, tab or semicolon); only its header
-    /// line is read. Graph nodes that are not columns are unobserved. `-`
+    /// The data (delimited text, also compressed, Parquet, Arrow IPC or
+    /// Stata .dta); only its header is read. Graph nodes that are not columns are unobserved. `-`
     /// reads standard input.
     #[arg(long, value_name = "FILE")]
     data: Option<PathBuf>,
-    /// Field separator of the data: comma, tab or semicolon (default: tab
-    /// for a .tsv file, else detected from the header line).
+    /// Field separator of delimited text: comma, tab or semicolon (default:
+    /// tab for a .tsv file, else detected from the header line).
     #[arg(long, value_enum, value_name = "SEP")]
     delimiter: Option<DelimiterArg>,
     /// Nodes to treat as unobserved, comma-separated.

@@ -8,7 +8,7 @@ use super::common::{
 use causeway::error::Setting;
 use causeway::progress::Reporter;
 use causeway::resources::{Demand, check_disk};
-use causeway::simulate::{Contrast, Method, Model, Options, ROW_BLOCK, Truth, TruthOptions};
+use causeway::simulate::{Contrast, Method, Model, Options, ParquetSink, ROW_BLOCK, Truth, TruthOptions};
 use causeway::{Error, Result};
 use std::path::PathBuf;
 
@@ -60,7 +60,8 @@ pub struct Args {
     /// Write the true effect to this file as JSON.
     #[arg(long, value_name = "FILE", requires = "exposure")]
     truth: Option<PathBuf>,
-    /// Write the CSV to this file instead of standard output.
+    /// Write the data to this file instead of standard output: Parquet
+    /// when its name ends in .parquet, else CSV.
     #[arg(long, short, value_name = "FILE")]
     output: Option<PathBuf>,
     /// Coefficient for edges written without one (otherwise such an edge is an error).
@@ -177,8 +178,15 @@ pub fn run(a: Args) -> Result<i32> {
                 inputs.push(t.as_path());
             }
             let name = path.display().to_string();
+            let parquet = path
+                .extension()
+                .is_some_and(|e| e.eq_ignore_ascii_case("parquet"));
             write_atomic_with(path, &inputs, |w| {
-                model.write_rows(a.rows, a.seed, w, &name, &progress)
+                if parquet {
+                    model.write_to(a.rows, a.seed, &mut ParquetSink::new(w), &name, &progress)
+                } else {
+                    model.write_rows(a.rows, a.seed, w, &name, &progress)
+                }
             })?
         }
         None => print_with(|w| model.write_rows(a.rows, a.seed, w, "standard output", &progress))?,

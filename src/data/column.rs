@@ -114,16 +114,7 @@ impl Column {
                 self.note_missing(line, column);
                 return self.push_token(raw);
             }
-            Some(v) => {
-                if v.is_infinite() && self.first_infinite.is_none() {
-                    self.first_infinite = Some(cell(raw, line, column));
-                }
-                if v <= 0.0 && self.first_nonpositive.is_none() {
-                    self.first_nonpositive = Some(cell(raw, line, column));
-                }
-                self.numbers += 1;
-                self.values.push(v);
-            }
+            Some(v) => self.note_number(v, raw, line, column),
             None => {
                 self.others += 1;
                 if self.strays.len() < STRAYS_SHOWN {
@@ -138,6 +129,29 @@ impl Column {
         }
         if let Some(t) = &mut self.text {
             let c = t.code(raw);
+            t.codes.push(c);
+        }
+    }
+
+    /// Counts the number `v`, written `raw`, and appends it (no level code).
+    fn note_number(&mut self, v: f64, raw: &[u8], line: u64, column: usize) {
+        if v.is_infinite() && self.first_infinite.is_none() {
+            self.first_infinite = Some(cell(raw, line, column));
+        }
+        if v <= 0.0 && self.first_nonpositive.is_none() {
+            self.first_nonpositive = Some(cell(raw, line, column));
+        }
+        self.numbers += 1;
+        self.values.push(v);
+    }
+
+    /// Appends a cell holding the number `v` (not NaN) of a typed format,
+    /// as [`Column::push`] appends a cell of text that reads as `v`.
+    pub(crate) fn push_number(&mut self, v: f64, line: u64, column: usize) {
+        let raw = value_text(v);
+        self.note_number(v, raw.as_bytes(), line, column);
+        if let Some(t) = &mut self.text {
+            let c = t.code(format!("{v}").as_bytes());
             t.codes.push(c);
         }
     }

@@ -33,6 +33,7 @@ mod kernel;
 mod pass;
 mod read;
 mod sample;
+pub mod source;
 mod spline;
 mod store;
 
@@ -51,6 +52,7 @@ pub use sample::{
     DROPPED_SHARE_NOTE, Imputed, ImputedColumn, MissingData, PATTERNS_SHOWN, Pattern, Sample, WeightRange,
     tokens_note,
 };
+pub use source::{Compression, Format, unreadable};
 pub use spline::{rcs_basis, rcs_knots};
 pub use store::Store;
 

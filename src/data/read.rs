@@ -10,7 +10,8 @@
 //! count only LF and are taken before a CRLF's LF and before skipped blank
 //! lines, so they would name the line before the right one.
 
-use super::{Column, Dataset};
+use super::Dataset;
+use super::source::{self, Builder, Cell, Format, Input, text, text::Routed};
 use crate::{Advice, Error, Remedy, Result, Setting};
 use std::collections::{HashMap, VecDeque};
 use std::io::Read;
@@ -132,10 +133,15 @@ impl Delimiter {
         }
     }
 
-    /// The separator a file name implies: tab for `.tsv`, else none.
+    /// The separator a file name implies: tab for `.tsv` (also `.tsv.gz`
+    /// and `.tsv.zst`), else none.
     pub fn from_path(path: &Path) -> Option<Delimiter> {
-        let ext = path.extension()?.to_str()?.to_ascii_lowercase();
-        (ext == "tsv").then_some(Delimiter::Tab)
+        let ext = |p: &Path| Some(p.extension()?.to_str()?.to_ascii_lowercase());
+        let mut e = ext(path)?;
+        if e == "gz" || e == "zst" {
+            e = ext(Path::new(path.file_stem()?))?;
+        }
+        (e == "tsv").then_some(Delimiter::Tab)
     }
 
     /// The separator of the text that starts with `prefix`: the one of
@@ -266,7 +272,7 @@ pub fn compressed(prefix: &[u8]) -> Option<&'static str> {
 pub fn not_text(prefix: &[u8]) -> Option<String> {
     if let Some(name) = compressed(prefix) {
         return Some(format!(
-            "looks compressed ({name}); decompress it first: compressed input is not read"
+            "looks compressed ({name}); decompress it first: only gzip and zstd are read"
         ));
     }
     if let Some(at) = prefix.iter().position(|&b| b == 0) {
@@ -299,9 +305,23 @@ fn trim(raw: &[u8]) -> &[u8] {
 }
 
 impl Dataset {
-    /// Reads CSV from `reader`; `source` names it in messages (a path, or
-    /// `<stdin>`). Errors name the line and, where there is one, the column.
-    pub fn read<R: Read>(reader: R, source: &str, opts: &ReadOptions) -> Result<Dataset> {
+    /// Reads a dataset from `reader`; `source` names it in messages (a
+    /// path, or `<stdin>`). The format is told by the first bytes: gzip or
+    /// zstd compressed text is decompressed as it is read, Parquet, Arrow
+    /// IPC and Stata files are read whole into memory first (see
+    /// [`super::source`]), anything else is delimited text. Errors name the
+    /// line and, where there is one, the column.
+    pub fn read<'a, R: Read + 'a>(reader: R, source: &str, opts: &ReadOptions) -> Result<Dataset> {
+        match text::route(reader, source)? {
+            Routed::Text(r) => Dataset::read_text(r, source, opts),
+            Routed::Binary(f, bytes) => {
+                source::binary_read(f, &Input::Bytes(bytes.into()), source, opts.keep.as_deref())
+            }
+        }
+    }
+
+    /// Reads delimited text from `reader`.
+    fn read_text<R: Read>(reader: R, source: &str, opts: &ReadOptions) -> Result<Dataset> {
         let (delimiter, reader) = with_delimiter(reader, opts.delimiter, source)?;
         let mut rdr = csv_reader(LineCounter::new(reader), delimiter);
         let mut rec = csv::ByteRecord::new();
@@ -318,15 +338,9 @@ impl Dataset {
         }
         let header_line = line_of(&mut rdr, &rec);
         let names = header(&rec, source, header_line, delimiter, opts.delimiter.is_some())?;
-        let keep: Vec<bool> = match &opts.keep {
-            Some(k) => names.iter().map(|n| k.contains(n)).collect(),
-            None => vec![true; names.len()],
-        };
-        let mut columns: Vec<Option<Column>> = keep
-            .iter()
-            .map(|&k| if k { Some(Column::default()) } else { None })
-            .collect();
-        let width = names.len();
+        let mut columns = Builder::new(source, names, opts.keep.as_deref())?;
+        let kept = columns.kept();
+        let width = columns.names().len();
         let mut nrows = 0usize;
         while rdr.read_byte_record(&mut rec).map_err(fail)? {
             let line = line_of(&mut rdr, &rec);
@@ -338,75 +352,85 @@ impl Dataset {
                     rec.len()
                 )));
             }
-            for (j, col) in columns.iter_mut().enumerate() {
-                if let Some(c) = col {
-                    let raw = trim(&rec[j]);
-                    if missing_token(raw) {
-                        c.note_missing(line, j + 1);
-                        c.push_token(raw);
-                    } else if let Some(why) = super::column::unfit(raw) {
-                        return Err(Error::input(format!(
-                            "{source}:{line}:{}: the cell of column '{}' holds {why}: '{}'",
-                            j + 1,
-                            names[j],
-                            super::column::escaped(raw)
-                        )));
-                    } else {
-                        c.push(raw, line, j + 1);
-                    }
-                }
+            for &j in &kept {
+                columns.push(j, line, Cell::Text(&rec[j]))?;
             }
             nrows += 1;
         }
-        if nrows == 0 {
-            return Err(Error::input(format!(
+        columns.finish(
+            nrows,
+            format!(
                 "{source}:{}: the file has a header but no data rows",
                 header_line + 1
-            )));
-        }
-        for c in columns.iter_mut().flatten() {
-            c.shrink();
-        }
-        Ok(Dataset {
-            source: source.to_string(),
-            names,
-            columns,
-            nrows,
-        })
-    }
-
-    /// Reads the delimited text file at `path`; without a separator in
-    /// `opts`, a `.tsv` file is read as tab-separated and any other is
-    /// detected (the command line maps `-` to stdin and calls
-    /// [`Dataset::read`] itself).
-    pub fn open(path: &Path, opts: &ReadOptions) -> Result<Dataset> {
-        let f = std::fs::File::open(path).map_err(|e| Error::io(path, e))?;
-        let opts = ReadOptions {
-            delimiter: opts.delimiter.or_else(|| Delimiter::from_path(path)),
-            ..opts.clone()
-        };
-        Dataset::read(
-            std::io::BufReader::with_capacity(1 << 16, f),
-            &path.display().to_string(),
-            &opts,
+            ),
         )
     }
 
-    /// The column names of the header line alone, checked as
-    /// [`Dataset::read`] checks them; `delimiter` as in [`ReadOptions`].
-    pub fn read_header<R: Read>(reader: R, source: &str, given: Option<Delimiter>) -> Result<Vec<String>> {
-        let (delimiter, reader) = with_delimiter(reader, given, source)?;
-        let mut rdr = csv_reader(LineCounter::new(reader), delimiter);
-        let mut rec = csv::ByteRecord::new();
-        if !rdr.read_byte_record(&mut rec).map_err(|e| csv_error(source, e))? {
-            return Err(Error::input(format!(
-                "{source}:1: the file is empty; a header row naming the columns is needed"
-            )));
+    /// Reads the data file at `path`, of any format read here: told by its
+    /// first bytes, else by its name (see [`super::source::Format`]).
+    /// Without a separator in `opts`, delimited text named `.tsv` is read
+    /// as tab-separated and any other is detected (the command line maps
+    /// `-` to stdin and calls [`Dataset::read`] itself).
+    pub fn open(path: &Path, opts: &ReadOptions) -> Result<Dataset> {
+        let source = path.display().to_string();
+        match Format::detect(&source::prefix_of(path)?, Some(path), &source)? {
+            Format::Text(c) => {
+                let f = std::fs::File::open(path).map_err(|e| Error::io(path, e))?;
+                let reader = text::decompress(std::io::BufReader::with_capacity(1 << 16, f), c, &source)?;
+                let opts = ReadOptions {
+                    delimiter: opts.delimiter.or_else(|| Delimiter::from_path(path)),
+                    ..opts.clone()
+                };
+                Dataset::read_text(reader, &source, &opts)
+            }
+            f => source::binary_read(f, &Input::File(path), &source, opts.keep.as_deref()),
         }
-        let start = rec.position().map_or(0, |p| p.byte());
-        let line = rdr.get_mut().line_of_record(start);
-        header(&rec, source, line, delimiter, given.is_some())
     }
+
+    /// The column names of the data in `reader` alone, checked as
+    /// [`Dataset::read`] checks them; the format is told as there, and
+    /// `given` is the separator of delimited text as in [`ReadOptions`].
+    pub fn read_header<'a, R: Read + 'a>(
+        reader: R,
+        source: &str,
+        given: Option<Delimiter>,
+    ) -> Result<Vec<String>> {
+        match text::route(reader, source)? {
+            Routed::Text(r) => text_header(r, source, given),
+            Routed::Binary(f, bytes) => source::binary_header(f, &Input::Bytes(bytes.into()), source),
+        }
+    }
+
+    /// The column names of the data file at `path` alone (for Parquet,
+    /// Arrow and Stata files, from their schema without reading the data);
+    /// `given` as in [`Dataset::read_header`], else implied by a `.tsv`
+    /// name or detected.
+    pub fn open_header(path: &Path, given: Option<Delimiter>) -> Result<Vec<String>> {
+        let source = path.display().to_string();
+        match Format::detect(&source::prefix_of(path)?, Some(path), &source)? {
+            Format::Text(c) => {
+                let f = std::fs::File::open(path).map_err(|e| Error::io(path, e))?;
+                let reader = text::decompress(f, c, &source)?;
+                text_header(reader, &source, given.or_else(|| Delimiter::from_path(path)))
+            }
+            f => source::binary_header(f, &Input::File(path), &source),
+        }
+    }
+}
+
+/// The column names of the header line of delimited text.
+fn text_header<R: Read>(reader: R, source: &str, given: Option<Delimiter>) -> Result<Vec<String>> {
+    let (delimiter, reader) = with_delimiter(reader, given, source)?;
+    let mut rdr = csv_reader(LineCounter::new(reader), delimiter);
+    let mut rec = csv::ByteRecord::new();
+    if !rdr.read_byte_record(&mut rec).map_err(|e| csv_error(source, e))? {
+        return Err(Error::input(format!(
+            "{source}:1: the file is empty; a header row naming the columns is needed"
+        )));
+    }
+    let start = rec.position().map_or(0, |p| p.byte());
+    let line = rdr.get_mut().line_of_record(start);
+    header(&rec, source, line, delimiter, given.is_some())
 }
 
 /// The refusal of a header that is one field holding another separator:

@@ -26,14 +26,14 @@ fn io_error(e: ::csv::Error) -> std::io::Error {
 }
 
 /// A CSV writer of simulated rows: the header, then one record at a time.
-pub(super) struct Rows<W: Write> {
+struct Rows<W: Write> {
     out: ::csv::Writer<W>,
     record: Vec<String>,
 }
 
 impl<W: Write> Rows<W> {
     /// Writes the header of `names`.
-    pub(super) fn new<'a>(w: W, names: impl Iterator<Item = &'a str>) -> std::io::Result<Self> {
+    fn new<'a>(w: W, names: impl Iterator<Item = &'a str>) -> std::io::Result<Self> {
         let mut out = ::csv::WriterBuilder::new()
             .terminator(::csv::Terminator::Any(b'\n'))
             .from_writer(w);
@@ -45,15 +45,67 @@ impl<W: Write> Rows<W> {
     }
 
     /// Writes one record.
-    pub(super) fn write(&mut self, fields: impl Iterator<Item = String>) -> std::io::Result<()> {
+    fn write(&mut self, fields: impl Iterator<Item = String>) -> std::io::Result<()> {
         self.record.clear();
         self.record.extend(fields);
         self.out.write_record(&self.record).map_err(io_error)
     }
 
     /// Flushes what is buffered.
-    pub(super) fn finish(mut self) -> std::io::Result<()> {
+    fn finish(mut self) -> std::io::Result<()> {
         self.out.flush()
+    }
+}
+
+/// The CSV output of [`super::Model::write_to`]: numbers by
+/// [`format_number`], categorical cells as their level names.
+pub struct CsvSink<W: Write> {
+    out: Option<W>,
+    rows: Option<Rows<W>>,
+    levels: Vec<Option<Vec<String>>>,
+}
+
+impl<W: Write> CsvSink<W> {
+    /// CSV written to `out`.
+    pub fn new(out: W) -> Self {
+        CsvSink {
+            out: Some(out),
+            rows: None,
+            levels: Vec::new(),
+        }
+    }
+}
+
+impl<W: Write> super::RowSink for CsvSink<W> {
+    fn start(&mut self, columns: &[(&str, Option<&[String]>)]) -> std::io::Result<()> {
+        let out = self
+            .out
+            .take()
+            .ok_or_else(|| std::io::Error::other("CSV output started twice"))?;
+        self.rows = Some(Rows::new(out, columns.iter().map(|c| c.0))?);
+        self.levels = columns.iter().map(|c| c.1.map(<[String]>::to_vec)).collect();
+        Ok(())
+    }
+
+    fn block(&mut self, values: &[f64]) -> std::io::Result<()> {
+        let rows = self
+            .rows
+            .as_mut()
+            .ok_or_else(|| std::io::Error::other("CSV output not started"))?;
+        for row in values.chunks_exact(self.levels.len().max(1)) {
+            rows.write(row.iter().zip(&self.levels).map(|(&x, levels)| match levels {
+                Some(l) => l[x as usize].clone(),
+                None => format_number(x),
+            }))?;
+        }
+        Ok(())
+    }
+
+    fn finish(&mut self) -> std::io::Result<()> {
+        match self.rows.take() {
+            Some(rows) => rows.finish(),
+            None => Ok(()),
+        }
     }
 }
 

@@ -30,11 +30,13 @@
 //! a documented key expansion, normals come from the polar method and the
 //! logarithm and exponential are computed in software ([`crate::maths`]).
 
-mod csv;
+pub mod csv;
+pub mod parquet;
 mod rng;
 mod truth;
 
-pub use csv::{format_number, write_csv};
+pub use csv::{CsvSink, format_number, write_csv};
+pub use parquet::ParquetSink;
 pub use truth::{CHUNK, Contrast, MAX_PATHS, Method, PathTerm, Truth, TruthOptions, true_effect};
 
 use crate::graph::{Coef, Graph, Node};
@@ -590,26 +592,62 @@ impl Model {
         name: &str,
         progress: &Reporter,
     ) -> Result<()> {
+        self.write_to(rows, seed, &mut csv::CsvSink::new(out), name, progress)
+    }
+
+    /// Draws `rows` rows as [`Model::simulate`] does and hands the observed
+    /// columns to `sink` a block of [`ROW_BLOCK`] rows at a time, in
+    /// bounded memory. A write that fails is an [`Error::Io`] on `name`;
+    /// `progress` hears of each block.
+    pub fn write_to(
+        &self,
+        rows: u64,
+        seed: u64,
+        sink: &mut dyn RowSink,
+        name: &str,
+        progress: &Reporter,
+    ) -> Result<()> {
         let n = self.graph.len();
         let observed = self.graph.observed();
         let io = |e: std::io::Error| Error::io(name, e);
-        let mut w = csv::Rows::new(out, observed.iter().map(|&v| self.graph.name(v))).map_err(io)?;
+        let columns: Vec<(&str, Option<&[String]>)> = observed
+            .iter()
+            .map(|&v| {
+                let levels = match &self.eqs[v].kind {
+                    Kind::Categorical { levels, .. } => Some(levels.as_slice()),
+                    _ => None,
+                };
+                (self.graph.name(v), levels)
+            })
+            .collect();
+        sink.start(&columns).map_err(io)?;
         progress.start("simulating rows", rows);
+        let mut out = Vec::with_capacity(ROW_BLOCK.saturating_mul(observed.len()));
         let drawn = self.draw_blocks(rows, seed, |block, _| {
+            out.clear();
             for row in block.chunks_exact(n.max(1)) {
-                w.write(observed.iter().map(|&v| match &self.eqs[v].kind {
-                    Kind::Categorical { levels, .. } => levels[row[v] as usize].clone(),
-                    _ => format_number(row[v]),
-                }))
-                .map_err(io)?;
+                out.extend(observed.iter().map(|&v| row[v]));
             }
+            sink.block(&out).map_err(io)?;
             progress.advance((block.len() / n.max(1)) as u64);
             Ok(())
         });
         progress.finish();
         drawn?;
-        w.finish().map_err(io)
+        sink.finish().map_err(io)
     }
+}
+
+/// Where [`Model::write_to`] puts simulated rows, a block at a time (CSV,
+/// [`csv::CsvSink`]; Parquet, [`parquet::ParquetSink`]).
+pub trait RowSink {
+    /// Starts the output: the observed columns in order, each with its
+    /// level names when categorical (its cells then hold level indices).
+    fn start(&mut self, columns: &[(&str, Option<&[String]>)]) -> std::io::Result<()>;
+    /// A block of rows, row by row over the columns given to `start`.
+    fn block(&mut self, rows: &[f64]) -> std::io::Result<()>;
+    /// Ends the output (the Parquet footer; a flush).
+    fn finish(&mut self) -> std::io::Result<()>;
 }
 
 /// Rounds to the node's decimals, then clips to its range.
