@@ -181,6 +181,9 @@ pub struct Analysis {
     /// How each method was described for a methods paragraph, in order.
     #[serde(skip)]
     pub methods_sentences: Vec<String>,
+    /// The follow-up of a time-to-event outcome.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub survival: Option<crate::survival::Survival>,
 }
 
 /// One method's dose-response curve.
@@ -188,7 +191,7 @@ pub struct Analysis {
 pub struct Curve {
     /// The method.
     pub method: String,
-    /// `dose-response`.
+    /// `dose-response` or `survival`.
     pub kind: &'static str,
     /// The exposure level (survival curves only; null here).
     pub level: Option<String>,
@@ -201,8 +204,11 @@ pub struct Curve {
 /// One point of a curve.
 #[derive(Debug, Clone, Serialize)]
 pub struct CurvePoint {
-    /// The dose.
+    /// The dose, or the time of a survival curve.
     pub x: f64,
+    /// The target behind the point (what a bootstrap replicate forms).
+    #[serde(skip)]
+    pub target: Target,
     /// The mean outcome had everyone received it.
     pub estimate: f64,
     /// Standard error (sandwich).
@@ -293,7 +299,10 @@ pub fn columns(plan: &Plan, opts: &Options) -> Vec<String> {
     ];
     c.extend(plan.adjustment_set.iter().flatten().cloned());
     c.extend(plan.frontdoor_set.iter().flatten().cloned());
-    for k in [&opts.model.cluster, &opts.model.weights].into_iter().flatten() {
+    for k in [&opts.model.cluster, &opts.model.weights, &opts.model.time]
+        .into_iter()
+        .flatten()
+    {
         if !c.contains(k) {
             c.push(k.clone());
         }
@@ -330,6 +339,14 @@ pub fn run(plan: &Plan, data: &Dataset, opts: &Options) -> Result<Analysis> {
                 ),
             ));
         }
+    }
+    if opts.model.time.is_some() && plan.strategy == Strategy::Frontdoor {
+        return Err(Error::NotIdentified(
+            "a time-to-event outcome is not estimated by the front-door formula here: with censoring, the \
+             formula's chain of conditional means does not carry over to survival curves, so this graph \
+             leaves the effect on survival without an estimator in causeway"
+                .into(),
+        ));
     }
     let problem = Problem::build(data, &spec(plan, opts))?;
     let methods: Vec<&'static dyn Estimator> = match &opts.methods {
@@ -382,13 +399,16 @@ pub fn run(plan: &Plan, data: &Dataset, opts: &Options) -> Result<Analysis> {
             estimate: e,
             bootstrap: None,
         }));
-        if let Some(c) = curve(&problem, name, &t) {
+        for c in curve(&problem, name, &t)
+            .into_iter()
+            .chain(survival_curves(&problem, name, &t))
+        {
             let values: Vec<f64> = c
                 .points
                 .iter()
                 .flat_map(|q| [q.x, q.estimate, q.std_error, q.ci[0], q.ci[1]])
                 .collect();
-            estimate::finite_result(&values, &format!("a point of the {name} dose-response curve"))?;
+            estimate::finite_result(&values, &format!("a point of the {name} {} curve", c.kind))?;
             curves.push(c);
         }
         targets.push(t);
@@ -433,8 +453,14 @@ pub fn run(plan: &Plan, data: &Dataset, opts: &Options) -> Result<Analysis> {
     let (sensitivity, details) = sensitivity(&problem, &targets, &estimates, opts)?;
     let methods_sentences = methods
         .iter()
-        .map(|m| m.methods_sentence(&problem.kind))
+        .map(|m| match &problem.survival {
+            Some(_) => crate::survival::methods::sentence(m.about().name),
+            None => m.methods_sentence(&problem.kind),
+        })
         .collect();
+    if let Some(s) = &problem.survival {
+        notes.push(s.sentence());
+    }
     let check = match &opts.check {
         Some(c) => {
             let sum = check_summary(plan, data, c)?;
@@ -476,7 +502,52 @@ pub fn run(plan: &Plan, data: &Dataset, opts: &Options) -> Result<Analysis> {
         check,
         curves,
         methods_sentences,
+        survival: problem.survival.clone(),
     })
+}
+
+/// The survival curves of a method's targets, one per exposure level,
+/// with sandwich intervals.
+fn survival_curves(p: &Problem, method: &str, t: &Targets) -> Vec<Curve> {
+    let Some(s) = &p.survival else {
+        return Vec::new();
+    };
+    let labels: Vec<String> = match &p.kind {
+        ExposureKind::Levels(l) => l.clone(),
+        _ => vec!["unexposed".into(), "exposed".into()],
+    };
+    let variance = estimate::contrast::Variance::of(p, t);
+    let order: Vec<usize> = match &p.kind {
+        ExposureKind::Levels(l) => (0..l.len()).collect(),
+        _ => vec![1, 0],
+    };
+    order
+        .into_iter()
+        .map(|a| Curve {
+            method: method.to_string(),
+            kind: "survival",
+            level: Some(labels[a].clone()),
+            subgroup: None,
+            points: s
+                .grid
+                .iter()
+                .filter_map(|&x| {
+                    let target = Target::Survival(a, x);
+                    let k = t.position(target)?;
+                    let (std_error, ci) =
+                        estimate::contrast::target_interval_by(t, k, p.spec.level, &variance);
+                    Some(CurvePoint {
+                        x,
+                        target,
+                        estimate: t.values[k],
+                        std_error,
+                        ci,
+                    })
+                })
+                .collect(),
+        })
+        .filter(|c| !c.points.is_empty())
+        .collect()
 }
 
 /// The dose-response curve of a method's targets (continuous exposure,
@@ -494,6 +565,7 @@ fn curve(p: &Problem, method: &str, t: &Targets) -> Option<Curve> {
             let (std_error, ci) = estimate::contrast::target_interval_by(t, k, p.spec.level, &variance);
             Some(CurvePoint {
                 x,
+                target: Target::Dose(x),
                 estimate: t.values[k],
                 std_error,
                 ci,
@@ -542,7 +614,7 @@ fn run_bootstrap(
             let doses = curves
                 .iter()
                 .filter(|c| c.method == name)
-                .flat_map(|c| c.points.iter().map(|q| Target::Dose(q.x)))
+                .flat_map(|c| c.points.iter().map(|q| q.target))
                 .collect();
             (rows, doses)
         })
@@ -643,6 +715,7 @@ fn sensitivity(
                 robustness_value: None,
                 benchmarks: None,
                 by_contrast: Vec::new(),
+                by_horizon: Vec::new(),
             },
             details,
         ));
@@ -718,7 +791,7 @@ fn sensitivity(
         .iter()
         .filter(|e| e.estimate.method == first.estimate.method)
         .collect();
-    if rows.len() > 1 {
+    if rows.len() > 1 && p.survival.is_none() {
         for (k, item) in rows.iter().enumerate() {
             let Some(contrast) = item.estimate.contrast().cloned() else {
                 continue;
@@ -731,12 +804,36 @@ fn sensitivity(
             });
         }
     }
+    let by_horizon = estimates
+        .iter()
+        .filter(|e| e.estimate.method == first.estimate.method && e.estimate.scale == Scale::Ratio)
+        .filter_map(|item| {
+            let e = &item.estimate;
+            let horizon = e.horizon?;
+            match evalue::risk_ratio(e.estimate, Some((e.ci[0], e.ci[1]))) {
+                Ok(ev) => Some(crate::sensitivity::HorizonSensitivity {
+                    method: e.method.clone(),
+                    horizon,
+                    contrast: e.contrast().cloned(),
+                    risk_ratio: e.estimate,
+                    evalue: ev,
+                }),
+                Err(err) => {
+                    details
+                        .notes
+                        .push(format!("no E-value at horizon {horizon}: {err}"));
+                    None
+                }
+            }
+        })
+        .collect();
     Ok((
         SensitivityBlock {
             evalue: ev,
             robustness_value: rv,
             benchmarks,
             by_contrast,
+            by_horizon,
         },
         details,
     ))

@@ -136,6 +136,16 @@ pub enum Setting {
     Cluster,
     /// The column of sampling weights.
     Weights,
+    /// The follow-up time column of a time-to-event outcome.
+    Time,
+    /// The outcome value that marks an event.
+    Event,
+    /// The times at which risks are compared.
+    Horizon,
+    /// The width of the periods of the discrete-time hazard models.
+    Period,
+    /// Inverse probability of censoring weights.
+    CensoringWeights,
 }
 
 impl Setting {
@@ -178,6 +188,11 @@ impl Setting {
             Setting::Draws => "the number of Monte Carlo draws",
             Setting::Cluster => "the cluster column",
             Setting::Weights => "the sampling-weight column",
+            Setting::Time => "the follow-up time column",
+            Setting::Event => "the event value",
+            Setting::Horizon => "the horizon list",
+            Setting::Period => "the period width",
+            Setting::CensoringWeights => "the censoring weights",
         }
     }
 }

@@ -21,6 +21,7 @@ mod estimate_exposures;
 mod estimate_frontdoor;
 mod estimate_nhefs;
 mod estimate_sim;
+mod estimate_survival;
 mod estimate_weights;
 mod fuzz_pipeline;
 mod graph_parse;

@@ -152,6 +152,11 @@ pub fn flag(setting: Setting) -> &'static str {
         Setting::Draws => "--mc-draws",
         Setting::Cluster => "--cluster",
         Setting::Weights => "--weights",
+        Setting::Time => "--time",
+        Setting::Event => "--event",
+        Setting::Horizon => "--horizon",
+        Setting::Period => "--period",
+        Setting::CensoringWeights => "--censoring-weights",
     }
 }
 
@@ -162,7 +167,7 @@ mod tests {
     use clap::CommandFactory;
 
     /// Every setting, so that each is checked against the flags below.
-    const SETTINGS: [Setting; 36] = [
+    const SETTINGS: [Setting; 41] = [
         Setting::Method,
         Setting::Estimand,
         Setting::Scale,
@@ -199,6 +204,11 @@ mod tests {
         Setting::Draws,
         Setting::Cluster,
         Setting::Weights,
+        Setting::Time,
+        Setting::Event,
+        Setting::Horizon,
+        Setting::Period,
+        Setting::CensoringWeights,
     ];
 
     #[test]

@@ -29,6 +29,7 @@ pub use propensity::{Propensity, separating_terms};
 
 use crate::estimate::ExposureKind;
 use crate::problem::Problem;
+use crate::survival::hazard::Hazard;
 use crate::{Error, Result};
 
 /// A nuisance model: fitted on the problem's rows under frequency weights
@@ -96,16 +97,22 @@ impl Nuisance for ExposureModel {
 pub struct Fits {
     outcome: Option<Result<OutcomeFit>>,
     exposure: Option<Result<ExposureModel>>,
+    /// A time-to-event outcome's model: the pooled logistic hazard model
+    /// with the adjustment set (in place of the outcome model).
+    hazard: Option<Result<Hazard>>,
 }
 
 impl Fits {
     /// Fits what `needs` asks for under frequency weights `w`, each model
     /// starting from its fit in `full` when given.
     pub fn fit(p: &Problem, w: Option<&[f64]>, full: Option<&Fits>, needs: Needs) -> Fits {
+        let survival = p.survival.is_some();
         Fits {
-            outcome: needs
-                .outcome
+            outcome: (needs.outcome && !survival)
                 .then(|| OutcomeFit::fit(p, w, full.and_then(|f| f.outcome().ok()))),
+            hazard: (needs.outcome && survival).then(|| {
+                crate::survival::methods::standardising_model(p, w, full.and_then(|f| f.hazard().ok()))
+            }),
             exposure: needs
                 .exposure
                 .then(|| ExposureModel::fit(p, w, full.and_then(|f| f.exposure().ok()))),
@@ -115,6 +122,11 @@ impl Fits {
     /// The outcome model, or why it is missing.
     pub fn outcome(&self) -> Result<&OutcomeFit> {
         available(&self.outcome, "outcome")
+    }
+
+    /// The hazard model of a time-to-event outcome, or why it is missing.
+    pub fn hazard(&self) -> Result<&Hazard> {
+        available(&self.hazard, "hazard")
     }
 
     /// The exposure model, or why it is missing.

@@ -146,6 +146,9 @@ pub fn estimates(graph: &str, a: &Analysis) -> DataTable {
             "cluster_max_size",
         ]);
     }
+    if a.survival.is_some() {
+        columns.extend(["horizon", "measure"]);
+    }
     let mut t = DataTable::new("estimates", &columns);
     let [strategy, set] = strategy_cells(a);
     let note = if a.identification.directed_path {
@@ -161,12 +164,27 @@ pub fn estimates(graph: &str, a: &Analysis) -> DataTable {
             .iter()
             .find(|c| Some(&c.contrast) == e.contrast() && c.method == e.method)
             .and_then(|c| c.evalue.as_ref());
-        let ev = own.or_else(|| {
+        // Time to event: each risk ratio's own E-value, none elsewhere.
+        let timed = a.survival.as_ref().map(|_| {
             a.sensitivity
-                .evalue
-                .as_ref()
-                .filter(|_| a.details.evalue_method.as_deref() == Some(e.method.as_str()))
-                .filter(|_| a.sensitivity.by_contrast.is_empty())
+                .by_horizon
+                .iter()
+                .find(|h| {
+                    h.method == e.method
+                        && Some(h.horizon) == e.horizon
+                        && h.contrast.as_ref() == e.contrast()
+                        && e.scale == crate::problem::Scale::Ratio
+                })
+                .map(|h| &h.evalue)
+        });
+        let ev = timed.unwrap_or_else(|| {
+            own.or_else(|| {
+                a.sensitivity
+                    .evalue
+                    .as_ref()
+                    .filter(|_| a.details.evalue_method.as_deref() == Some(e.method.as_str()))
+                    .filter(|_| a.sensitivity.by_contrast.is_empty())
+            })
         });
         let b = it.bootstrap.as_ref();
         let mut row = vec![
@@ -213,6 +231,12 @@ pub fn estimates(graph: &str, a: &Analysis) -> DataTable {
                 Cell::Count(c.count),
                 Cell::Count(c.min_size),
                 Cell::Count(c.max_size),
+            ]);
+        }
+        if a.survival.is_some() {
+            row.extend([
+                Cell::opt(e.horizon),
+                e.measure.map_or(Cell::Empty, |m| text(m.words())),
             ]);
         }
         t.row(row);

@@ -21,6 +21,7 @@ pub mod markdown;
 pub mod sensitivity_doc;
 pub mod sensitivity_figure;
 pub mod sensitivity_text;
+pub mod survival_figure;
 pub mod svg;
 pub mod text;
 
