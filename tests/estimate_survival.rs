@@ -391,3 +391,134 @@ fn front_door_and_doses_are_refused_with_a_reason() {
     assert_eq!(r.code, 2, "{}", r.stderr);
     assert!(r.stderr.contains("'a' is continuous"), "{}", r.stderr);
 }
+
+/// One simulated study: confounder L ~ N(0, 1), exposure A ~ Bernoulli(
+/// expit(0.6 L)), event time exponential with rate 0.08 exp(0.5 A + 0.6 L),
+/// censoring exponential with rate 0.06 exp(0.9 L) (it depends on L, which
+/// also drives the event), follow-up ending at 10.
+fn simulated(seed: u64, n: usize) -> String {
+    use crate::estimate_sim::{normal, rng};
+    use rand::RngExt;
+    let mut r = rng(seed);
+    let mut s = String::from("l,a,event,t\n");
+    for _ in 0..n {
+        let l = normal(&mut r);
+        let a = f64::from(u8::from(r.random::<f64>() < 1.0 / (1.0 + (-0.6 * l).exp())));
+        let rate = 0.08 * (0.5 * a + 0.6 * l).exp();
+        let te = -(1.0 - r.random::<f64>()).ln() / rate;
+        let tc = -(1.0 - r.random::<f64>()).ln() / (0.06 * (0.9 * l).exp());
+        let t = te.min(tc).min(10.0);
+        let e = u8::from(te <= tc.min(10.0));
+        s.push_str(&format!("{l},{a},{e},{:.6}\n", t.max(1e-6)));
+    }
+    s
+}
+
+/// The true survival under each level at `t`: E_L[exp(-0.08 exp(0.5 a +
+/// 0.6 L) t)] over L ~ N(0, 1), by the trapezoid rule on [-10, 10] with
+/// 4001 points (the normal density makes the tails negligible, and the
+/// rule is far below 1e-10 off for this smooth integrand).
+fn true_survival(a: f64, t: f64) -> f64 {
+    let (lo, hi, k) = (-10.0f64, 10.0f64, 4000);
+    let h = (hi - lo) / k as f64;
+    (0..=k)
+        .map(|j| {
+            let l = lo + j as f64 * h;
+            let w = if j == 0 || j == k { 0.5 } else { 1.0 };
+            w * h * (-l * l / 2.0).exp() / (2.0 * std::f64::consts::PI).sqrt()
+                * (-0.08 * (0.5 * a + 0.6 * l).exp() * t).exp()
+        })
+        .sum()
+}
+
+/// A seeded simulation with known survival curves and covariate-dependent
+/// censoring: bias and coverage of every method's survival at two
+/// horizons (4 and 8), with and without censoring weights. With them the
+/// IP-weighted hazard model and the standardised one are close to the truth
+/// and their intervals cover it; without them the IP-weighted methods are
+/// biased (censoring depends on L) while the standardised one, which
+/// conditions on L, is not. 40 replicates of 1500 people; the bounds are
+/// loose for Monte Carlo error (the standard error of a mean of 40
+/// survival estimates is about 0.003 here; coverage of 40 intervals has a
+/// standard error of about 0.035) and for the discrete-time hazard models'
+/// approximation of a continuous hazard (a bias below 0.01).
+#[test]
+fn simulation_bias_and_coverage_with_and_without_censoring_weights() {
+    let dir = tempfile::tempdir().unwrap();
+    let g = write(dir.path(), "s.graph", "l -> a\nl -> event\na -> event\n");
+    let reps = 40;
+    // [with weights?][method][horizon] -> (sum of errors, covered)
+    let methods = ["regression", "ipw", "km"];
+    let mut bias = [[[0.0f64; 2]; 3]; 2];
+    let mut cover = [[[0usize; 2]; 3]; 2];
+    for rep in 0..reps {
+        let d = write(dir.path(), "d.csv", &simulated(9000 + rep, 1500));
+        for (cw, flags) in [(0usize, vec![]), (1, vec!["--censoring-weights"])] {
+            let mut args = vec![
+                "estimate",
+                "--graph",
+                &g,
+                "--data",
+                &d,
+                "--exposure",
+                "a",
+                "--outcome",
+                "event",
+                "--time",
+                "t",
+                "--horizon",
+                "4,8",
+                "--period",
+                "0.5",
+                "--format",
+                "json",
+            ];
+            args.extend(flags.iter().copied());
+            let r = run_in(dir.path(), &args);
+            assert_eq!(r.code, 0, "{}", r.stderr);
+            let v: Value = serde_json::from_str(&r.stdout).unwrap();
+            for (m, method) in methods.iter().enumerate() {
+                if cw == 1 && *method == "km" {
+                    continue;
+                }
+                for (h, t) in [4.0, 8.0].into_iter().enumerate() {
+                    let c = v["curves"]
+                        .as_array()
+                        .unwrap()
+                        .iter()
+                        .find(|c| c["method"] == *method && c["level"] == "exposed")
+                        .unwrap();
+                    let p = c["points"]
+                        .as_array()
+                        .unwrap()
+                        .iter()
+                        .find(|p| p["x"].as_f64().unwrap() == t)
+                        .unwrap();
+                    let truth = true_survival(1.0, t);
+                    let est = p["estimate"].as_f64().unwrap();
+                    bias[cw][m][h] += (est - truth) / reps as f64;
+                    let ci = &p["ci"];
+                    if ci[0].as_f64().unwrap() <= truth && truth <= ci[1].as_f64().unwrap() {
+                        cover[cw][m][h] += 1;
+                    }
+                }
+            }
+        }
+    }
+    for h in 0..2 {
+        // Standardised: unbiased either way.
+        for cw in 0..2 {
+            assert!(bias[cw][0][h].abs() < 0.01, "regression {cw} {h}: {:?}", bias);
+            assert!(cover[cw][0][h] as f64 / reps as f64 >= 0.85, "{:?}", cover);
+        }
+        // IP-weighted hazard with censoring weights.
+        assert!(bias[1][1][h].abs() < 0.01, "ipw with weights {h}: {:?}", bias);
+        assert!(cover[1][1][h] as f64 / reps as f64 >= 0.85, "{:?}", cover);
+    }
+    // Without censoring weights the IP-weighted methods drift at the later
+    // horizon (censoring removes high-L people, who die sooner).
+    for m in [1, 2] {
+        assert!(bias[0][m][1] > 0.015, "{}: {:?}", methods[m], bias);
+    }
+    eprintln!("bias {bias:?}\ncoverage of {reps}: {cover:?}");
+}

@@ -124,8 +124,7 @@ impl Estimator for Ipw {
 
     fn point(&self, p: &Problem, fits: &Fits, freq: Option<&[f64]>) -> Result<Points> {
         if p.survival.is_some() {
-            let w = crate::survival::methods::weights(p, fits, freq)?;
-            let t = crate::survival::methods::ipw_hazard(p, &w, false)?;
+            let t = crate::survival::methods::ipw_hazard(p, fits, freq, false)?;
             return Ok(Points {
                 targets: t.targets,
                 values: t.values,
@@ -161,11 +160,11 @@ impl Estimator for Ipw {
 
     fn targets(&self, p: &Problem, fits: &Fits) -> Result<Targets> {
         if p.survival.is_some() {
-            let w = crate::survival::methods::weights(p, fits, p.sampling())?;
-            let mut t = crate::survival::methods::ipw_hazard(p, &w, true)?;
+            let mut t = crate::survival::methods::ipw_hazard(p, fits, p.sampling(), true)?;
             t.notes.push(
-                "the standard errors are the hazard model's robust sandwich with the IP weights taken as \
-                 known, as for a marginal structural model; a bootstrap interval also counts their estimation"
+                "the standard errors are the hazard model's robust sandwich with the IP weights (and any \
+                 censoring weights) taken as known, as for a marginal structural model; a bootstrap interval \
+                 also counts their estimation"
                     .into(),
             );
             return Ok(t);

@@ -26,7 +26,7 @@ static ABOUT: About = About {
         exposure: true,
     },
     default: true,
-    time_to_event: TimeToEvent::Only,
+    time_to_event: TimeToEvent::OnlyFixedWeights,
 };
 
 impl Estimator for Km {

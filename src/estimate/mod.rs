@@ -83,6 +83,9 @@ pub enum TimeToEvent {
     Also,
     /// Only time-to-event outcomes.
     Only,
+    /// Only time-to-event outcomes, without censoring weights (its weights
+    /// are fixed in time).
+    OnlyFixedWeights,
 }
 
 impl TimeToEvent {
@@ -92,6 +95,7 @@ impl TimeToEvent {
             TimeToEvent::No => p.survival.is_none(),
             TimeToEvent::Also => true,
             TimeToEvent::Only => p.survival.is_some(),
+            TimeToEvent::OnlyFixedWeights => p.survival.as_ref().is_some_and(|s| !s.censoring_weights),
         }
     }
 }
@@ -162,7 +166,14 @@ pub fn refusal(e: &dyn Estimator, p: &Problem, strategy: Strategy) -> Option<Err
     };
     let takes = |x: &About| x.time_to_event.takes(p);
     let message = if !takes(a) {
-        if p.survival.is_some() {
+        if p.survival.as_ref().is_some_and(|s| s.censoring_weights) && a.time_to_event != TimeToEvent::No {
+            format!(
+                "'{}' weights each row the same at every time, so it does not take censoring weights (with \
+                 them: {})",
+                a.name,
+                others(&|x| takes(x) && fits_strategy(x))
+            )
+        } else if p.survival.is_some() {
             format!(
                 "'{}' does not take a time-to-event outcome (for one: {})",
                 a.name,

@@ -80,8 +80,16 @@ impl Estimator for Regression {
     }
 
     fn targets(&self, p: &Problem, fits: &Fits) -> Result<Targets> {
-        if p.survival.is_some() {
-            return crate::survival::methods::standardised(p, fits.hazard()?, p.sampling(), true);
+        if let Some(s) = &p.survival {
+            let mut t = crate::survival::methods::standardised(p, fits.hazard()?, p.sampling(), true)?;
+            if s.censoring_weights {
+                t.notes.push(
+                    "the standardised curves take no censoring weights: their hazard model conditions on the \
+                     adjustment set, which covers censoring that depends on it"
+                        .into(),
+                );
+            }
+            return Ok(t);
         }
         let m = fits.outcome()?;
         // Under sampling weights the averaging is weighted and so is the

@@ -180,6 +180,13 @@ impl Hazard {
         })
     }
 
+    /// The hazard of a unit with covariate row `cov` at level `a` in
+    /// period `k`.
+    pub fn hazard_at(&self, cov: &[f64], a: usize, k: usize) -> f64 {
+        let eta: f64 = cov.iter().zip(self.coef.iter()).map(|(x, b)| x * b).sum();
+        self.hazard(eta, a, k)
+    }
+
     /// The hazard of a unit whose covariate part of the linear predictor
     /// is `eta_cov`, at level `a` in period `k`.
     fn hazard(&self, eta_cov: f64, a: usize, k: usize) -> f64 {

@@ -135,13 +135,23 @@ pub fn km(p: &Problem, w: &[f64], influence: bool) -> Result<Targets> {
     Ok(out)
 }
 
-/// The IP-weighted pooled logistic hazard targets under row weights `w`.
-pub fn ipw_hazard(p: &Problem, w: &[f64], influence: bool) -> Result<Targets> {
+/// The IP-weighted pooled logistic hazard targets under fit weights `fw`
+/// (IP weights from `fits`, times censoring weights when asked for).
+pub fn ipw_hazard(p: &Problem, fits: &Fits, fw: Option<&[f64]>, influence: bool) -> Result<Targets> {
+    let w = &weights(p, fits, fw)?;
     let s = setup(p)?;
     let l = levels(p);
     let (m, ev) = s.person_periods(p.y());
     let a = codes(p);
     let kmax = s.periods;
+    // Censoring weights, row-major per person and period, under the same
+    // frequency weights (the row's weight over its IP weight).
+    let cens = if s.censoring_weights {
+        Some(censoring_weights(p, fw)?)
+    } else {
+        None
+    };
+    let wk = |i: usize, k: usize| w[i] * cens.as_ref().map_or(1.0, |c| c[i * kmax + k]);
     // Weighted people at risk and events per (level, period).
     let mut at_risk = vec![vec![0.0; kmax]; l];
     let mut events = vec![vec![0.0; kmax]; l];
@@ -149,11 +159,11 @@ pub fn ipw_hazard(p: &Problem, w: &[f64], influence: bool) -> Result<Targets> {
         if w[i] == 0.0 {
             continue;
         }
-        for r in at_risk[a[i]].iter_mut().take(m[i]) {
-            *r += w[i];
+        for (k, r) in at_risk[a[i]].iter_mut().take(m[i]).enumerate() {
+            *r += wk(i, k);
         }
         if ev[i] {
-            events[a[i]][m[i] - 1] += w[i];
+            events[a[i]][m[i] - 1] += wk(i, m[i] - 1);
         }
     }
     // Two pseudo-units per level: the events (y = 1) and the rest (y = 0).
@@ -189,14 +199,78 @@ pub fn ipw_hazard(p: &Problem, w: &[f64], influence: bool) -> Result<Targets> {
         avg: &[1.0],
         surv: s,
     };
-    let weight = |i: usize, _k: usize| w[i];
     let people = People {
-        weight: &weight,
+        weight: &wk,
         level: &a,
         at_risk: &m,
         event: &ev,
     };
     targets_of(p, &input, influence.then_some((&people, false)))
+}
+
+/// Stabilised inverse probability of censoring weights, row-major per row
+/// and period: `prod_{j<k} P(uncensored in j | A, t) / P(uncensored in j |
+/// A, t, L)`, both from pooled logistic models of being censored at the end
+/// of a period (after the chance of the event in it) over the periods each
+/// row is followed without the event: the denominator with the exposure,
+/// time, their products and the adjustment terms, the numerator without
+/// the adjustment terms. Both are fitted under the fit weights `fw`
+/// (`None`: all ones).
+pub fn censoring_weights(p: &Problem, fw: Option<&[f64]>) -> Result<Vec<f64>> {
+    let s = setup(p)?;
+    let (m, ev) = s.person_periods(p.y());
+    let a = codes(p);
+    let kmax = s.periods;
+    let (x, q) = covariates(p);
+    // Rows: periods at risk of censoring (the event's own period excluded).
+    let risk: Vec<usize> = m
+        .iter()
+        .zip(&ev)
+        .map(|(&mi, &e)| if e { mi - 1 } else { mi })
+        .collect();
+    let mut offsets = Vec::with_capacity(p.n() + 1);
+    offsets.push(0);
+    for &r in &risk {
+        offsets.push(offsets.last().copied().unwrap_or(0) + r);
+    }
+    let total = *offsets.last().unwrap_or(&0);
+    let mut y = vec![0.0; total];
+    let mut rw = vec![0.0; total];
+    for i in 0..p.n() {
+        rw[offsets[i]..offsets[i + 1]].fill(fw.map_or(1.0, |f| f[i]));
+        // Censored within the periods modelled (not at their end).
+        if !ev[i] && risk[i] > 0 && m[i] < kmax {
+            y[offsets[i + 1] - 1] = 1.0;
+        }
+    }
+    if y.iter().all(|&v| v == 0.0) {
+        return Ok(vec![1.0; p.n() * kmax]);
+    }
+    let one = [1.0];
+    let models = [(x.as_slice(), p.n(), q), (&one[..], 1, 1)];
+    let mut fitted = Vec::new();
+    for (cov, cov_rows, q) in models {
+        let rows = PeriodRows {
+            cov,
+            cov_rows,
+            level: &a,
+            offsets: &offsets,
+            layout: layout(q, levels(p), kmax),
+        };
+        fitted.push(Hazard::fit(&rows, &y, &rw, None, "censoring")?);
+    }
+    let mut out = vec![1.0; p.n() * kmax];
+    for i in 0..p.n() {
+        let row: Vec<f64> = (0..q).map(|j| x[j * p.n() + i]).collect();
+        let mut prod = 1.0;
+        for k in 0..kmax {
+            out[i * kmax + k] = prod;
+            let den = fitted[0].hazard_at(&row, a[i], k);
+            let num = fitted[1].hazard_at(&[1.0], a[i], k);
+            prod *= (1.0 - num) / (1.0 - den);
+        }
+    }
+    Ok(out)
 }
 
 /// The covariate rows of the standardised model: the propensity design's
