@@ -35,7 +35,8 @@ pub struct EstimateFlags {
     /// is compared with it. Default: the lowest level.
     #[arg(long, value_name = "LEVEL")]
     pub reference: Option<String>,
-    /// Methods, comma-separated: regression, ipw, ipw-ht, aipw, frontdoor.
+    /// Methods, comma-separated: regression, ipw, ipw-ht, aipw, frontdoor,
+    /// and km (IP-weighted Kaplan-Meier, with --time).
     /// Default: every method that fits the strategy and the exposure.
     #[arg(long, value_name = "LIST")]
     pub method: Option<String>,
