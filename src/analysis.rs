@@ -221,6 +221,9 @@ pub struct Analysis {
     /// multiple imputation are the used rows minus these).
     #[serde(skip)]
     pub model_terms: usize,
+    /// The follow-up of a time-to-event outcome.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub survival: Option<crate::survival::Survival>,
 }
 
 /// One method's dose-response curve.
@@ -228,7 +231,7 @@ pub struct Analysis {
 pub struct Curve {
     /// The method.
     pub method: String,
-    /// `dose-response`.
+    /// `dose-response` or `survival`.
     pub kind: &'static str,
     /// The exposure level (survival curves only; null here).
     pub level: Option<String>,
@@ -241,8 +244,11 @@ pub struct Curve {
 /// One point of a curve.
 #[derive(Debug, Clone, Serialize)]
 pub struct CurvePoint {
-    /// The dose.
+    /// The dose, or the time of a survival curve.
     pub x: f64,
+    /// The target behind the point (what a bootstrap replicate forms).
+    #[serde(skip)]
+    pub target: Target,
     /// The mean outcome had everyone received it.
     pub estimate: f64,
     /// Standard error (sandwich).
@@ -333,9 +339,14 @@ pub fn columns(plan: &Plan, opts: &Options) -> Vec<String> {
     ];
     c.extend(plan.adjustment_set.iter().flatten().cloned());
     c.extend(plan.frontdoor_set.iter().flatten().cloned());
-    for k in [&opts.model.cluster, &opts.model.weights, &opts.model.subgroup]
-        .into_iter()
-        .flatten()
+    for k in [
+        &opts.model.cluster,
+        &opts.model.weights,
+        &opts.model.subgroup,
+        &opts.model.time,
+    ]
+    .into_iter()
+    .flatten()
     {
         if !c.contains(k) {
             c.push(k.clone());
@@ -355,6 +366,24 @@ pub fn columns(plan: &Plan, opts: &Options) -> Vec<String> {
 pub fn run(plan: &Plan, data: &Dataset, opts: &Options) -> Result<Analysis> {
     if plan.strategy == Strategy::None {
         return Err(Error::NotIdentified(plan.not_identified_reason()));
+    }
+    if opts.model.time.is_some() {
+        if opts.model.subgroup.is_some() {
+            return Err(Error::option(
+                Setting::Subgroup,
+                "with a time-to-event outcome: effects within subgroups are not formed yet; leave the subgroups out",
+            ));
+        }
+        if opts.model.missing != Missing::Complete {
+            return Err(Error::option(
+                Setting::Missing,
+                format!(
+                    "{} with a time-to-event outcome: only complete cases are analysed for now (censoring \
+                     weights handle incomplete follow-up); leave it at complete",
+                    opts.model.missing.word()
+                ),
+            ));
+        }
     }
     match opts.model.missing {
         Missing::Complete | Missing::Weight => {}
@@ -380,6 +409,14 @@ pub fn run(plan: &Plan, data: &Dataset, opts: &Options) -> Result<Analysis> {
     }
     if let Some(s) = &opts.model.subgroup {
         check_subgroup(plan, s)?;
+    }
+    if opts.model.time.is_some() && plan.strategy == Strategy::Frontdoor {
+        return Err(Error::NotIdentified(
+            "a time-to-event outcome is not estimated by the front-door formula here: with censoring, the \
+             formula's chain of conditional means does not carry over to survival curves, so this graph \
+             leaves the effect on survival without an estimator in causeway"
+                .into(),
+        ));
     }
     let problem = Problem::build(data, &spec(plan, opts))?;
     let methods: Vec<&'static dyn Estimator> = match &opts.methods {
@@ -428,13 +465,16 @@ pub fn run(plan: &Plan, data: &Dataset, opts: &Options) -> Result<Analysis> {
         warnings.extend(t.warnings.iter().map(|w| format!("{name}: {w}")));
         notes.extend(t.notes.iter().map(|n| format!("{name}: {n}")));
         estimates.extend(rows.into_iter().map(Item::of));
-        if let Some(c) = curve(&problem, name, &t) {
+        for c in curve(&problem, name, &t)
+            .into_iter()
+            .chain(survival_curves(&problem, name, &t))
+        {
             let values: Vec<f64> = c
                 .points
                 .iter()
                 .flat_map(|q| [q.x, q.estimate, q.std_error, q.ci[0], q.ci[1]])
                 .collect();
-            estimate::finite_result(&values, &format!("a point of the {name} dose-response curve"))?;
+            estimate::finite_result(&values, &format!("a point of the {name} {} curve", c.kind))?;
             curves.push(c);
         }
         targets.push(t);
@@ -541,8 +581,14 @@ pub fn run(plan: &Plan, data: &Dataset, opts: &Options) -> Result<Analysis> {
     });
     let methods_sentences = methods
         .iter()
-        .map(|m| m.methods_sentence(&problem.kind))
+        .map(|m| match &problem.survival {
+            Some(_) => crate::survival::methods::sentence(m.about().name),
+            None => m.methods_sentence(&problem.kind),
+        })
         .collect();
+    if let Some(s) = &problem.survival {
+        notes.push(s.sentence());
+    }
     let check = match &opts.check {
         Some(c) => {
             let sum = check_summary(plan, data, c)?;
@@ -591,6 +637,7 @@ pub fn run(plan: &Plan, data: &Dataset, opts: &Options) -> Result<Analysis> {
         heterogeneity,
         methods_sentences,
         model_terms: problem.outcome_design.ncols(),
+        survival: problem.survival.clone(),
     })
 }
 
@@ -644,6 +691,50 @@ fn check_subgroup(plan: &Plan, name: &str) -> Result<()> {
     Ok(())
 }
 
+/// The survival curves of a method's targets, one per exposure level,
+/// with sandwich intervals.
+fn survival_curves(p: &Problem, method: &str, t: &Targets) -> Vec<Curve> {
+    let Some(s) = &p.survival else {
+        return Vec::new();
+    };
+    let labels: Vec<String> = match &p.kind {
+        ExposureKind::Levels(l) => l.clone(),
+        _ => vec!["unexposed".into(), "exposed".into()],
+    };
+    let variance = estimate::contrast::Variance::of(p, t);
+    let order: Vec<usize> = match &p.kind {
+        ExposureKind::Levels(l) => (0..l.len()).collect(),
+        _ => vec![1, 0],
+    };
+    order
+        .into_iter()
+        .map(|a| Curve {
+            method: method.to_string(),
+            kind: "survival",
+            level: Some(labels[a].clone()),
+            subgroup: None,
+            points: s
+                .grid
+                .iter()
+                .filter_map(|&x| {
+                    let target = Target::Survival(a, x);
+                    let k = t.position(target)?;
+                    let (std_error, ci) =
+                        estimate::contrast::target_interval_by(t, k, p.spec.level, &variance);
+                    Some(CurvePoint {
+                        x,
+                        target,
+                        estimate: t.values[k],
+                        std_error,
+                        ci,
+                    })
+                })
+                .collect(),
+        })
+        .filter(|c| !c.points.is_empty())
+        .collect()
+}
+
 /// The dose-response curve of a method's targets (continuous exposure,
 /// means reported), with sandwich intervals.
 fn curve(p: &Problem, method: &str, t: &Targets) -> Option<Curve> {
@@ -659,6 +750,7 @@ fn curve(p: &Problem, method: &str, t: &Targets) -> Option<Curve> {
             let (std_error, ci) = estimate::contrast::target_interval_by(t, k, p.spec.level, &variance);
             Some(CurvePoint {
                 x,
+                target: Target::Dose(x),
                 estimate: t.values[k],
                 std_error,
                 ci,
@@ -714,7 +806,7 @@ fn run_bootstrap(
             }
             let mut doses = vec![Vec::new(); views.len()];
             for c in curves.iter().filter(|c| c.method == name) {
-                doses[view(c.subgroup.as_ref())].extend(c.points.iter().map(|q| Target::Dose(q.x)));
+                doses[view(c.subgroup.as_ref())].extend(c.points.iter().map(|q| q.target));
             }
             (rows, doses)
         })
@@ -823,6 +915,7 @@ fn sensitivity(
                 robustness_value: None,
                 benchmarks: None,
                 by_contrast: Vec::new(),
+                by_horizon: Vec::new(),
             },
             details,
         ));
@@ -898,7 +991,7 @@ fn sensitivity(
         .iter()
         .filter(|e| e.estimate.method == first.estimate.method && e.estimate.subgroup.is_none())
         .collect();
-    if rows.len() > 1 {
+    if rows.len() > 1 && p.survival.is_none() {
         for (k, item) in rows.iter().enumerate() {
             let Some(contrast) = item.estimate.contrast().cloned() else {
                 continue;
@@ -911,12 +1004,36 @@ fn sensitivity(
             });
         }
     }
+    let by_horizon = estimates
+        .iter()
+        .filter(|e| e.estimate.method == first.estimate.method && e.estimate.scale == Scale::Ratio)
+        .filter_map(|item| {
+            let e = &item.estimate;
+            let horizon = e.horizon?;
+            match evalue::risk_ratio(e.estimate, Some((e.ci[0], e.ci[1]))) {
+                Ok(ev) => Some(crate::sensitivity::HorizonSensitivity {
+                    method: e.method.clone(),
+                    horizon,
+                    contrast: e.contrast().cloned(),
+                    risk_ratio: e.estimate,
+                    evalue: ev,
+                }),
+                Err(err) => {
+                    details
+                        .notes
+                        .push(format!("no E-value at horizon {horizon}: {err}"));
+                    None
+                }
+            }
+        })
+        .collect();
     Ok((
         SensitivityBlock {
             evalue: ev,
             robustness_value: rv,
             benchmarks,
             by_contrast,
+            by_horizon,
         },
         details,
     ))

@@ -142,6 +142,16 @@ pub enum Setting {
     Imputations,
     /// The column whose levels define subgroups (an effect modifier).
     Subgroup,
+    /// The follow-up time column of a time-to-event outcome.
+    Time,
+    /// The outcome value that marks an event.
+    Event,
+    /// The times at which risks are compared.
+    Horizon,
+    /// The width of the periods of the discrete-time hazard models.
+    Period,
+    /// Inverse probability of censoring weights.
+    CensoringWeights,
 }
 
 impl Setting {
@@ -187,6 +197,11 @@ impl Setting {
             Setting::Missing => "the handling of missing values",
             Setting::Imputations => "the number of imputations",
             Setting::Subgroup => "the subgroup column",
+            Setting::Time => "the follow-up time column",
+            Setting::Event => "the event value",
+            Setting::Horizon => "the horizon list",
+            Setting::Period => "the period width",
+            Setting::CensoringWeights => "the censoring weights",
         }
     }
 }

@@ -35,5 +35,6 @@ pub mod report;
 pub mod resources;
 pub mod sensitivity;
 pub mod simulate;
+pub mod survival;
 
 pub use error::{Advice, Error, Phrasing, Remedy, Result, Setting, Words};

@@ -141,6 +141,20 @@ pub struct Spec {
     pub imputations: usize,
     /// The column whose levels define subgroups (`None`: no subgroups).
     pub subgroup: Option<String>,
+    /// A time-to-event outcome: the follow-up time column (`None`: the
+    /// outcome is not time-to-event). The outcome is then the event
+    /// indicator.
+    pub time: Option<String>,
+    /// The outcome value that marks an event (`None`: 1, with 0 censored).
+    pub event: Option<String>,
+    /// The times at which risks are compared (`None`: the default, see
+    /// [`crate::survival`]).
+    pub horizon: Option<Vec<f64>>,
+    /// The period width of the discrete-time hazard models (`None`: the
+    /// default, see [`crate::survival`]).
+    pub period: Option<f64>,
+    /// Weight by the inverse probability of remaining uncensored.
+    pub censoring_weights: bool,
 }
 
 /// The default number of imputed datasets (van Buuren 2018, *Flexible
@@ -449,6 +463,11 @@ impl Default for Spec {
             missing: Missing::Complete,
             imputations: DEFAULT_IMPUTATIONS,
             subgroup: None,
+            time: None,
+            event: None,
+            horizon: None,
+            period: None,
+            censoring_weights: false,
         }
     }
 }
@@ -499,6 +518,8 @@ pub struct Problem {
     /// `subgroup`; `None`: every used row). Set by [`Problem::within`]
     /// only; the models are always those of the whole sample.
     pub stratum: Option<usize>,
+    /// The follow-up of a time-to-event outcome (`None`: not one).
+    pub survival: Option<crate::survival::Survival>,
     /// The propensity design's rows, kept when they fit in memory.
     propensity_store: Option<Store>,
     /// The outcome design's rows (exposure as observed), likewise.
@@ -544,13 +565,17 @@ impl Problem {
         let mut used: Vec<&str> = vec![&spec.outcome, &spec.exposure];
         used.extend(spec.covariates.iter().map(String::as_str));
         used.extend(spec.mediators.iter().map(String::as_str));
-        for c in [&spec.cluster, &spec.weights, &spec.subgroup]
+        for c in [&spec.cluster, &spec.weights, &spec.subgroup, &spec.time]
             .into_iter()
             .flatten()
         {
             if !used.contains(&c.as_str()) {
                 used.push(c);
             }
+        }
+        // A missing or non-positive time is refused, never dropped.
+        if let Some(t) = &spec.time {
+            crate::survival::follow_up(data, &data.complete_cases(&[t.as_str()])?, t)?;
         }
         let mut warnings = Vec::new();
         let sample = match spec.missing {
@@ -595,7 +620,17 @@ impl Problem {
             None => None,
         };
         let mut frame = Frame::new(sample.used);
-        let outcome = frame.push_from(data, &sample, &spec.outcome, Role::Number)?;
+        let (outcome, event_labels) = match &spec.time {
+            Some(_) => {
+                let (v, event, censored) = crate::survival::event_indicator(data, &sample, spec)?;
+                let kind = Kind::Binary {
+                    low: censored.clone(),
+                    high: event.clone(),
+                };
+                (frame.push(&spec.outcome, kind, v), Some((event, censored)))
+            }
+            None => (frame.push_from(data, &sample, &spec.outcome, Role::Number)?, None),
+        };
         let observed = (!sample.present.is_empty()).then(|| {
             frame.fill_missing(outcome, 0.0);
             sample
@@ -734,6 +769,23 @@ impl Problem {
             },
             _ => Vec::new(),
         };
+        let survival = match (&spec.time, event_labels) {
+            (Some(t), Some(labels)) => {
+                let names: Vec<String> = match &kind {
+                    ExposureKind::Levels(l) => l.clone(),
+                    _ => vec!["unexposed".into(), "exposed".into()],
+                };
+                let times = crate::survival::follow_up(data, &sample, t)?;
+                Some(crate::survival::Survival::new(
+                    spec,
+                    times,
+                    frame.col(outcome),
+                    labels,
+                    (frame.col(exposure), names),
+                )?)
+            }
+            _ => None,
+        };
         let propensity_store = Store::of(&propensity.rows(&frame, Setting::Observed));
         let outcome_store = Store::of(&outcome_design.rows(&frame, Setting::Observed));
         Ok(Problem {
@@ -756,6 +808,7 @@ impl Problem {
             observed,
             subgroup,
             stratum: None,
+            survival,
             propensity_store,
             outcome_store,
         })
@@ -899,6 +952,13 @@ impl Problem {
     /// dose, the curve's doses, then the two doses of the contrast or the
     /// one-unit shift and the observed exposure.
     pub fn targets(&self) -> Vec<Target> {
+        if let Some(s) = &self.survival {
+            let levels: Vec<usize> = match &self.kind {
+                ExposureKind::Levels(l) => (0..l.len()).collect(),
+                _ => vec![1, 0],
+            };
+            return levels.into_iter().flat_map(|k| s.targets(k)).collect();
+        }
         match &self.kind {
             ExposureKind::Binary => vec![Target::Level(1), Target::Level(0)],
             ExposureKind::Levels(l) => (0..l.len()).map(Target::Level).collect(),
@@ -922,10 +982,14 @@ impl Problem {
     /// reference; the second dose of the contrast vs the first, or the
     /// one-unit shift vs the observed exposure.
     pub fn contrasts(&self) -> Vec<ContrastSpec> {
+        if let Some(s) = &self.survival {
+            return self.survival_contrasts(s);
+        }
         let plain = |level, reference| ContrastSpec {
             level,
             reference,
             label: None,
+            horizon: None,
         };
         match &self.kind {
             ExposureKind::Binary => vec![plain(Target::Level(1), Target::Level(0))],
@@ -937,6 +1001,7 @@ impl Problem {
                         level: l[k].clone(),
                         reference: l[0].clone(),
                     }),
+                    horizon: None,
                 })
                 .collect(),
             ExposureKind::Dose => match self.spec.contrast {
@@ -947,10 +1012,60 @@ impl Problem {
                         level: b,
                         reference: a,
                     }),
+                    horizon: None,
                 }],
                 None => vec![plain(Target::Shifted, Target::Observed)],
             },
         }
+    }
+
+    /// Time to event: for each level against the reference (exposed
+    /// against unexposed), the risk difference and ratio at each horizon,
+    /// then the difference in restricted mean survival time to the last.
+    fn survival_contrasts(&self, s: &crate::survival::Survival) -> Vec<ContrastSpec> {
+        use crate::estimate::Horizon;
+        use crate::survival::Measure;
+        let pairs: Vec<(usize, Option<ContrastLabel>)> = match &self.kind {
+            ExposureKind::Levels(l) => (1..l.len())
+                .map(|k| {
+                    let label = ContrastLabel::Levels {
+                        level: l[k].clone(),
+                        reference: l[0].clone(),
+                    };
+                    (k, Some(label))
+                })
+                .collect(),
+            _ => vec![(1, None)],
+        };
+        let mut out = Vec::new();
+        for (k, label) in pairs {
+            let spec = |level, reference, time, measure, scale| ContrastSpec {
+                level,
+                reference,
+                label: label.clone(),
+                horizon: Some(Horizon { time, measure, scale }),
+            };
+            for &h in &s.horizons {
+                for scale in [Scale::Difference, Scale::Ratio] {
+                    out.push(spec(
+                        Target::Risk(k, h),
+                        Target::Risk(0, h),
+                        h,
+                        Measure::Risk,
+                        scale,
+                    ));
+                }
+            }
+            let tau = s.last();
+            out.push(spec(
+                Target::Rmst(k, tau),
+                Target::Rmst(0, tau),
+                tau,
+                Measure::RestrictedMean,
+                Scale::Difference,
+            ));
+        }
+        out
     }
 
     /// Row `i`'s membership of the estimand's population within the
@@ -1024,6 +1139,7 @@ fn check_spec(spec: &Spec) -> Result<()> {
     let mut all: Vec<&String> = spec.covariates.iter().chain(&spec.mediators).collect();
     all.push(&spec.exposure);
     all.push(&spec.outcome);
+    all.extend(spec.time.iter());
     for (k, a) in all.iter().enumerate() {
         if all[..k].contains(a) {
             return Err(Error::input(format!("column '{a}' is named in two roles")));
@@ -1297,11 +1413,38 @@ fn check_kinds(
             spec.exposure
         )));
     }
-    if constant(outcome) {
+    // A time-to-event outcome may have no censoring (every row an event).
+    if constant(outcome) && spec.time.is_none() {
         return Err(Error::input(format!(
             "the outcome '{}' takes a single value in the complete rows",
             spec.outcome
         )));
+    }
+    if spec.time.is_some() {
+        if frame.kind(exposure) == &Kind::Numeric {
+            return Err(Error::option(
+                Opt::Time,
+                format!(
+                    "a time-to-event outcome is analysed for a binary or categorical exposure; '{}' is \
+                     continuous (a dose), for which survival curves are not estimated: compare groups of \
+                     doses named as levels instead",
+                    spec.exposure
+                ),
+            ));
+        }
+        if spec.estimand != Estimand::Ate {
+            return Err(Error::option(
+                Opt::Estimand,
+                "time-to-event outcomes are estimated for the ATE (everyone) only",
+            ));
+        }
+        if spec.scale != Scale::Difference {
+            return Err(Error::option(
+                Opt::Scale,
+                "does not apply to a time-to-event outcome: its rows give the risk difference and the \
+                 risk ratio at each horizon",
+            ));
+        }
     }
     if spec.scale != Scale::Difference && !binary(outcome) {
         return Err(Error::option(

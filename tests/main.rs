@@ -25,6 +25,7 @@ mod estimate_missing;
 mod estimate_nhefs;
 mod estimate_sim;
 mod estimate_subgroup;
+mod estimate_survival;
 mod estimate_weights;
 mod formats;
 mod fuzz_pipeline;

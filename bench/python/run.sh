@@ -5,13 +5,21 @@
 # - the bootstrap benchmark's (default):
 #     bash bench/python/run.sh [DATA.csv] [REPLICATES]
 #   DATA.csv defaults to the file `cargo bench --bench bootstrap` writes;
+# - the survival benchmark's (IP-weighted and standardised hazard curves):
+#     bash bench/python/run.sh survival [DATA.csv] [REPLICATES]
+#   DATA.csv defaults to the file `cargo bench --bench survival` writes;
 # - the estimate benchmark's 4-level categorical exposure:
 #     bash bench/python/run.sh multilevel [DATA.csv]
 #   DATA.csv defaults to the file `cargo bench --bench estimate` writes.
 set -euo pipefail
 here="$(cd "$(dirname "$0")" && pwd)"
 repo="$(cd "$here/../.." && pwd)"
-if [ "${1:-}" = "multilevel" ]; then
+if [ "${1:-}" = "survival" ]; then
+    shift
+    bench=survival
+    data="${1:-$repo/target/tmp/survival-bench-100000.csv}"
+    run=("$here/survival_reference.py" "$data" "${2:-200}")
+elif [ "${1:-}" = "multilevel" ]; then
     shift
     bench=estimate
     data="${1:-$repo/target/tmp/estimate-bench-1000000.csv}"

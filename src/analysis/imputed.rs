@@ -25,7 +25,7 @@ pub(super) fn run(plan: &Plan, data: &Dataset, opts: &Options) -> Result<Analysi
     if opts.bootstrap > 0 {
         return Err(Error::option(
             Setting::Bootstrap,
-            "the bootstrap is not combined with multiple imputation: the pooled intervals come from \
+            "with multiple imputation: the bootstrap is not combined with it; the pooled intervals come from \
              Rubin's rules over each imputed dataset's sandwich variance; leave the bootstrap out, or \
              handle missing values by complete cases",
         ));
@@ -33,7 +33,8 @@ pub(super) fn run(plan: &Plan, data: &Dataset, opts: &Options) -> Result<Analysi
     if opts.model.subgroup.is_some() {
         return Err(Error::option(
             Setting::Subgroup,
-            "effects within subgroups are not pooled across imputed datasets yet; leave the subgroups out, \
+            "with multiple imputation: effects within subgroups are not pooled across imputed datasets yet; leave \
+             the subgroups out, \
              or handle missing values by complete cases or by weighting for a missing outcome",
         ));
     }

@@ -35,7 +35,8 @@ pub struct EstimateFlags {
     /// is compared with it. Default: the lowest level.
     #[arg(long, value_name = "LEVEL")]
     pub reference: Option<String>,
-    /// Methods, comma-separated: regression, ipw, ipw-ht, aipw, frontdoor.
+    /// Methods, comma-separated: regression, ipw, ipw-ht, aipw, frontdoor,
+    /// and km (IP-weighted Kaplan-Meier, with --time).
     /// Default: every method that fits the strategy and the exposure.
     #[arg(long, value_name = "LIST")]
     pub method: Option<String>,
@@ -131,6 +132,35 @@ pub struct EstimateFlags {
     /// differ, and a forest plot in the bundle.
     #[arg(long, value_name = "COLUMN")]
     pub subgroup: Option<String>,
+    /// A time-to-event outcome: the column of follow-up times (positive, in
+    /// any unit; need not be a graph node). --outcome is then the event
+    /// indicator: 1 for an event, 0 for censored (or see --event). Reports
+    /// adjusted survival curves and, at each --horizon, the risk under each
+    /// exposure level, risk differences and ratios, and the restricted
+    /// mean survival time up to the last horizon.
+    #[arg(long, value_name = "COLUMN")]
+    pub time: Option<String>,
+    /// With --time: the outcome value that marks an event when the
+    /// indicator is not 1/0 (the other value is censored), e.g. died.
+    #[arg(long, value_name = "VALUE")]
+    pub event: Option<String>,
+    /// With --time: the times at which risks are compared, in the unit of
+    /// the time column. Default: the quartiles of the event times and the
+    /// end of follow-up.
+    #[arg(long, value_name = "T1,T2,...", allow_negative_numbers = true)]
+    pub horizon: Option<String>,
+    /// With --time: the width of the periods of the pooled logistic hazard
+    /// models, in the unit of the time column. Default: the last horizon
+    /// cut into the fewest periods (10 to 100) that hold at most 5% of the
+    /// events each; reported.
+    #[arg(long, value_name = "WIDTH", allow_negative_numbers = true)]
+    pub period: Option<f64>,
+    /// With --time: weight by the inverse probability of remaining
+    /// uncensored, from a pooled logistic model of censoring given the
+    /// exposure, time and the adjustment set (stabilised), for censoring
+    /// that depends on them.
+    #[arg(long)]
+    pub censoring_weights: bool,
     /// Seed of the bootstrap's random streams.
     #[arg(long, allow_negative_numbers = true, default_value_t = 1, value_name = "N")]
     pub seed: u64,
@@ -306,6 +336,30 @@ impl EstimateFlags {
                 "--imputations applies only with --missing impute; add it, or leave --imputations out",
             ));
         }
+        let horizon = match &self.horizon {
+            None => None,
+            Some(c) => match numbers(c) {
+                Some(v) if !v.is_empty() => Some(v),
+                _ => {
+                    return Err(Error::input(format!(
+                        "--horizon '{c}': expected one or more times, comma-separated"
+                    )));
+                }
+            },
+        };
+        if self.time.is_none() {
+            let needs_time = [
+                (self.event.is_some(), "--event"),
+                (self.horizon.is_some(), "--horizon"),
+                (self.period.is_some(), "--period"),
+                (self.censoring_weights, "--censoring-weights"),
+            ];
+            if let Some((_, f)) = needs_time.iter().find(|(given, _)| *given) {
+                return Err(Error::input(format!(
+                    "{f} applies to a time-to-event outcome: give the follow-up time column with --time"
+                )));
+            }
+        }
         let threads = super::common::threads(self.threads, self.quiet);
         let methods = self.method.as_ref().map(|m| split_list(m));
         if let Some(ms) = &methods {
@@ -335,6 +389,11 @@ impl EstimateFlags {
                 missing: self.missing.into(),
                 imputations: self.imputations.unwrap_or(causeway::problem::DEFAULT_IMPUTATIONS),
                 subgroup: self.subgroup.clone(),
+                time: self.time.clone(),
+                event: self.event.clone(),
+                horizon,
+                period: self.period,
+                censoring_weights: self.censoring_weights,
                 ..Spec::default()
             },
             bootstrap: self.bootstrap,

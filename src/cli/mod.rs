@@ -155,6 +155,11 @@ pub fn flag(setting: Setting) -> &'static str {
         Setting::Missing => "--missing",
         Setting::Imputations => "--imputations",
         Setting::Subgroup => "--subgroup",
+        Setting::Time => "--time",
+        Setting::Event => "--event",
+        Setting::Horizon => "--horizon",
+        Setting::Period => "--period",
+        Setting::CensoringWeights => "--censoring-weights",
     }
 }
 
@@ -165,7 +170,7 @@ mod tests {
     use clap::CommandFactory;
 
     /// Every setting, so that each is checked against the flags below.
-    const SETTINGS: [Setting; 39] = [
+    const SETTINGS: [Setting; 44] = [
         Setting::Method,
         Setting::Estimand,
         Setting::Scale,
@@ -205,6 +210,11 @@ mod tests {
         Setting::Missing,
         Setting::Imputations,
         Setting::Subgroup,
+        Setting::Time,
+        Setting::Event,
+        Setting::Horizon,
+        Setting::Period,
+        Setting::CensoringWeights,
     ];
 
     #[test]

@@ -265,6 +265,7 @@ pub fn run(a: Args) -> Result<i32> {
             let out = Output {
                 block: SensitivityBlock {
                     by_contrast: Vec::new(),
+                    by_horizon: Vec::new(),
                     evalue: ev,
                     robustness_value: reg.as_ref().map(|r| r.rv.clone()),
                     benchmarks: None,

@@ -10,7 +10,7 @@
 //! model, propensity model, the two means), which stays valid when one of
 //! the two working models is wrong.
 
-use super::{About, Estimator, ExposureKind, Points, Serves, Target, Targets};
+use super::{About, Estimator, ExposureKind, Points, Serves, Target, Targets, TimeToEvent};
 use crate::Result;
 use crate::data::Setting;
 use crate::identify::Strategy;
@@ -33,6 +33,7 @@ static ABOUT: About = About {
         exposure: true,
     },
     default: true,
+    time_to_event: TimeToEvent::No,
 };
 
 /// P(A = k | L) for every row and level: the logistic score of a binary

@@ -68,9 +68,29 @@ pub struct ContrastSpec {
     /// How the JSON names it (`None`: a binary exposure or a one-unit
     /// shift, whose rows carry no `contrast`).
     pub label: Option<ContrastLabel>,
+    /// Time to event: what is compared, when and on which scale (`None`:
+    /// mean outcomes on the problem's scale).
+    pub horizon: Option<Horizon>,
+}
+
+/// What a time-to-event contrast compares.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct Horizon {
+    /// The time.
+    pub time: f64,
+    /// Risk, survival or restricted mean.
+    pub measure: crate::survival::Measure,
+    /// Difference or ratio.
+    pub scale: Scale,
 }
 
 impl ContrastSpec {
+    /// The contrast's scale: its own for a time-to-event contrast, else
+    /// `default` (the problem's).
+    pub fn scale(&self, default: Scale) -> Scale {
+        self.horizon.map_or(default, |h| h.scale)
+    }
+
     /// Has no label (a binary exposure or a one-unit shift).
     pub fn unlabelled(&self) -> bool {
         self.label.is_none()

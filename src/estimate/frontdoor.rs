@@ -18,7 +18,7 @@
 //!
 //! No adjustment covariates are used: the front-door strategy needs none.
 
-use super::{About, Estimator, ExposureKind, Points, Serves, Target, Targets};
+use super::{About, Estimator, ExposureKind, Points, Serves, Target, Targets, TimeToEvent};
 use crate::data::{Design, Kind, Setting, Shape};
 use crate::error::Setting as Opt;
 use crate::identify::Strategy;
@@ -43,6 +43,7 @@ static ABOUT: About = About {
         exposure: false,
     },
     default: true,
+    time_to_event: TimeToEvent::No,
 };
 
 enum Path {
@@ -228,7 +229,8 @@ fn linear(p: &Problem, freq: Option<&[f64]>, with_se: bool) -> Result<LinearFit>
 /// The value of target `t` under a linear path of effect `e` per unit.
 fn per_unit(t: Target) -> f64 {
     match t {
-        Target::Level(k) => k as f64,
+        // Time-to-event targets never reach the front-door formula (refused).
+        Target::Level(k) | Target::Survival(k, _) | Target::Risk(k, _) | Target::Rmst(k, _) => k as f64,
         Target::Dose(x) => x,
         Target::Shifted => 1.0,
         Target::Observed => 0.0,

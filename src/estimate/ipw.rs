@@ -26,7 +26,7 @@
 //!   was slightly narrower), so the diagnostics warn of such weights
 //!   instead.
 
-use super::{About, Estimator, ExposureKind, Points, Serves, Target, Targets};
+use super::{About, Estimator, ExposureKind, Points, Serves, Target, Targets, TimeToEvent};
 use crate::data::{Design, Rows, Setting};
 use crate::identify::Strategy;
 use crate::learn::{Fits, Needs, Observed, Propensity};
@@ -53,6 +53,7 @@ static HAJEK: About = About {
         exposure: true,
     },
     default: true,
+    time_to_event: TimeToEvent::Also,
 };
 
 static HORVITZ_THOMPSON: About = About {
@@ -67,6 +68,7 @@ static HORVITZ_THOMPSON: About = About {
         exposure: true,
     },
     default: false,
+    time_to_event: TimeToEvent::No,
 };
 
 /// The weight of a row in each arm for `estimand`, and its derivative in the
@@ -138,6 +140,13 @@ impl Estimator for Ipw {
     }
 
     fn point(&self, p: &Problem, fits: &Fits, freq: Option<&[f64]>) -> Result<Points> {
+        if p.survival.is_some() {
+            let t = crate::survival::methods::ipw_hazard(p, fits, freq, false)?;
+            return Ok(Points {
+                targets: t.targets,
+                values: t.values,
+            });
+        }
         match &p.kind {
             ExposureKind::Binary => {
                 let ps = fits.propensity()?;
@@ -167,6 +176,16 @@ impl Estimator for Ipw {
     }
 
     fn targets(&self, p: &Problem, fits: &Fits) -> Result<Targets> {
+        if p.survival.is_some() {
+            let mut t = crate::survival::methods::ipw_hazard(p, fits, p.sampling(), true)?;
+            t.notes.push(
+                "the standard errors are the hazard model's robust sandwich with the IP weights (and any \
+                 censoring weights) taken as known, as for a marginal structural model; a bootstrap interval \
+                 also counts their estimation"
+                    .into(),
+            );
+            return Ok(t);
+        }
         match &p.kind {
             ExposureKind::Binary => self.binary_targets(p, fits.propensity()?, fits.observed()?),
             ExposureKind::Levels(_) => self.level_targets(p, fits),

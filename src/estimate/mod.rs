@@ -26,13 +26,14 @@ mod diagnostics;
 mod frontdoor;
 mod heterogeneity;
 mod ipw;
+mod km;
 mod regression;
 mod result;
 mod sensitivity;
 mod targets;
 
 pub use aipw::Aipw;
-pub use contrast::{ContrastLabel, ContrastSpec};
+pub use contrast::{ContrastLabel, ContrastSpec, Horizon};
 pub use diagnostics::{
     Balance, Diagnostics, DoseDiagnostics, LevelDiagnostics, PropensityDiagnostics, Range, Summary,
     WeightDiagnostics, diagnostics, dose_diagnostics, level_diagnostics,
@@ -40,6 +41,7 @@ pub use diagnostics::{
 pub use frontdoor::FrontDoor;
 pub use heterogeneity::{Heterogeneity, heterogeneity};
 pub use ipw::Ipw;
+pub use km::Km;
 pub use regression::Regression;
 pub use result::{Estimate, Means, SubgroupLevel, z_value};
 pub use sensitivity::{SensitivityInputs, TermStat, level_coefficients, sample_sd, sensitivity_inputs};
@@ -72,6 +74,34 @@ pub struct About {
     pub needs: Needs,
     /// Run by default when it applies.
     pub default: bool,
+    /// Whether it takes a time-to-event outcome.
+    pub time_to_event: TimeToEvent,
+}
+
+/// Whether an estimator takes a time-to-event outcome.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum TimeToEvent {
+    /// Only other outcomes.
+    No,
+    /// Both kinds.
+    Also,
+    /// Only time-to-event outcomes.
+    Only,
+    /// Only time-to-event outcomes, without censoring weights (its weights
+    /// are fixed in time).
+    OnlyFixedWeights,
+}
+
+impl TimeToEvent {
+    /// Does it take the outcome of `p`?
+    pub fn takes(self, p: &Problem) -> bool {
+        match self {
+            TimeToEvent::No => p.survival.is_none(),
+            TimeToEvent::Also => true,
+            TimeToEvent::Only => p.survival.is_some(),
+            TimeToEvent::OnlyFixedWeights => p.survival.as_ref().is_some_and(|s| !s.censoring_weights),
+        }
+    }
 }
 
 /// An estimator.
@@ -91,7 +121,7 @@ pub trait Estimator: Sync {
 }
 
 /// Every estimator, in the order of the method list.
-pub const ESTIMATORS: [&dyn Estimator; 5] = [
+pub const ESTIMATORS: [&dyn Estimator; 6] = [
     &Regression,
     &Ipw {
         horvitz_thompson: false,
@@ -101,6 +131,7 @@ pub const ESTIMATORS: [&dyn Estimator; 5] = [
     },
     &Aipw,
     &FrontDoor,
+    &Km,
 ];
 
 /// Every method name [`by_name`] accepts.
@@ -137,7 +168,29 @@ pub fn refusal(e: &dyn Estimator, p: &Problem, strategy: Strategy) -> Option<Err
             .collect();
         names.join(", ")
     };
-    let message = if !fits_strategy(a) {
+    let takes = |x: &About| x.time_to_event.takes(p);
+    let message = if !takes(a) {
+        if p.survival.as_ref().is_some_and(|s| s.censoring_weights) && a.time_to_event != TimeToEvent::No {
+            format!(
+                "'{}' weights each row the same at every time, so it does not take censoring weights (with \
+                 them: {})",
+                a.name,
+                others(&|x| takes(x) && fits_strategy(x))
+            )
+        } else if p.survival.is_some() {
+            format!(
+                "'{}' does not take a time-to-event outcome (for one: {})",
+                a.name,
+                others(&|x| takes(x) && fits_strategy(x))
+            )
+        } else {
+            format!(
+                "'{}' needs a time-to-event outcome: a follow-up time column with the outcome as the event \
+                 indicator",
+                a.name
+            )
+        }
+    } else if !fits_strategy(a) {
         format!(
             "'{}' does not fit the {} strategy of this graph (it takes: {})",
             a.name,
@@ -150,7 +203,7 @@ pub fn refusal(e: &dyn Estimator, p: &Problem, strategy: Strategy) -> Option<Err
             a.name,
             p.kind.words(),
             p.spec.exposure,
-            others(&|x| fits_strategy(x) && serves(x))
+            others(&|x| takes(x) && fits_strategy(x) && serves(x))
         )
     } else if p.weights.is_some() && !a.weighted.iter().any(|s| s.covers(&p.kind)) {
         format!(
@@ -158,7 +211,7 @@ pub fn refusal(e: &dyn Estimator, p: &Problem, strategy: Strategy) -> Option<Err
             a.name,
             p.kind.words(),
             p.spec.exposure,
-            others(&|x| fits_strategy(x) && x.weighted.iter().any(|s| s.covers(&p.kind)))
+            others(&|x| takes(x) && fits_strategy(x) && x.weighted.iter().any(|s| s.covers(&p.kind)))
         )
     } else if p.observed.is_some() && !a.weighted.iter().any(|s| s.covers(&p.kind)) {
         format!(
@@ -176,7 +229,7 @@ pub fn refusal(e: &dyn Estimator, p: &Problem, strategy: Strategy) -> Option<Err
             a.name,
             forms.join(" and "),
             p.spec.estimand,
-            others(&|x| fits_strategy(x) && serves(x) && x.estimands.contains(&p.spec.estimand))
+            others(&|x| takes(x) && fits_strategy(x) && serves(x) && x.estimands.contains(&p.spec.estimand))
         )
     } else {
         return None;
@@ -205,15 +258,29 @@ pub fn needs(estimators: &[&dyn Estimator]) -> Needs {
 /// the estimator's targets form, with the sandwich interval; and the
 /// targets themselves (for curves).
 pub fn rows(e: &dyn Estimator, p: &Problem, fits: &Fits) -> Result<(Vec<Estimate>, Targets)> {
-    let t = e.targets(p, fits)?;
+    let mut t = e.targets(p, fits)?;
     let variance = contrast::Variance::of(p, &t);
     let subgroup = p.subgroup_level();
     let mut out = Vec::new();
     for c in p.contrasts() {
-        let Some(formed) = contrast::form(&t, &c, p.spec.scale, p.spec.level, &variance) else {
+        let scale = c.scale(p.spec.scale);
+        let Some(formed) = contrast::form(&t, &c, scale, p.spec.level, &variance) else {
             continue;
         };
-        let f = formed?;
+        // A time-to-event ratio with no events by its horizon in an arm is
+        // left out with a warning; the other rows stand.
+        let f = match (formed, c.horizon) {
+            (Err(err), Some(h)) => {
+                t.warnings.push(format!(
+                    "no {} {} at time {}: {err}",
+                    h.measure.words(),
+                    h.scale,
+                    crate::problem::short_number(h.time)
+                ));
+                continue;
+            }
+            (f, _) => f?,
+        };
         let within = subgroup
             .as_ref()
             .map_or(String::new(), |s| format!(" in {} = {}", s.variable, s.level));
@@ -227,7 +294,9 @@ pub fn rows(e: &dyn Estimator, p: &Problem, fits: &Fits) -> Result<(Vec<Estimate
         out.push(Estimate {
             method: e.about().name.into(),
             estimand: p.spec.estimand,
-            scale: p.spec.scale,
+            scale,
+            horizon: c.horizon.map(|h| h.time),
+            measure: c.horizon.map(|h| h.measure),
             estimate: f.estimate,
             std_error: f.std_error,
             ci: f.ci,
@@ -275,7 +344,7 @@ pub fn finite_result(values: &[f64], what: &str) -> Result<()> {
 pub fn replicate(points: &Points, p: &Problem, row_contrasts: &[ContrastSpec], curve: &[Target]) -> Vec<f64> {
     let mut v: Vec<f64> = row_contrasts
         .iter()
-        .map(|c| contrast::point(points, c, p.spec.scale))
+        .map(|c| contrast::point(points, c, c.scale(p.spec.scale)))
         .collect();
     v.extend(curve.iter().map(|&t| points.get(t).unwrap_or(f64::NAN)));
     v
@@ -333,13 +402,14 @@ impl Method {
             .into_iter()
             .next()
             .ok_or_else(|| Error::Internal("no contrast".into()))?;
-        let v = contrast::point(&points, &c, p.spec.scale);
+        let scale = c.scale(p.spec.scale);
+        let v = contrast::point(&points, &c, scale);
         if v.is_finite() {
             Ok(v)
         } else {
             // Say why, as the full-sample estimate would.
             contrast::effect(
-                p.spec.scale,
+                scale,
                 points.get(c.level).unwrap_or(f64::NAN),
                 points.get(c.reference).unwrap_or(f64::NAN),
             )

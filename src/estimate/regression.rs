@@ -7,7 +7,7 @@
 //! 2002;56:29-38), so it accounts for both the fitted coefficients and the
 //! averaging over covariates.
 
-use super::{About, Estimator, ExposureKind, Points, Serves, Target, Targets};
+use super::{About, Estimator, ExposureKind, Points, Serves, Target, Targets, TimeToEvent};
 use crate::data::Setting;
 use crate::identify::Strategy;
 use crate::learn::{Fits, Needs, Observed, OutcomeFit};
@@ -29,6 +29,7 @@ static ABOUT: About = About {
         exposure: false,
     },
     default: true,
+    time_to_event: TimeToEvent::Also,
 };
 
 /// Weighted mean of `m` over `u` (`u` = frequency x group).
@@ -64,6 +65,13 @@ impl Estimator for Regression {
     }
 
     fn point(&self, p: &Problem, fits: &Fits, freq: Option<&[f64]>) -> Result<Points> {
+        if p.survival.is_some() {
+            let t = crate::survival::methods::standardised(p, fits.hazard()?, freq, false)?;
+            return Ok(Points {
+                targets: t.targets,
+                values: t.values,
+            });
+        }
         let m = fits.outcome()?;
         let u = group_weights(p, freq);
         let targets = p.targets();
@@ -72,6 +80,17 @@ impl Estimator for Regression {
     }
 
     fn targets(&self, p: &Problem, fits: &Fits) -> Result<Targets> {
+        if let Some(s) = &p.survival {
+            let mut t = crate::survival::methods::standardised(p, fits.hazard()?, p.sampling(), true)?;
+            if s.censoring_weights {
+                t.notes.push(
+                    "the standardised curves take no censoring weights: their hazard model conditions on the \
+                     adjustment set, which covers censoring that depends on it"
+                        .into(),
+                );
+            }
+            return Ok(t);
+        }
         let m = fits.outcome()?;
         // Under sampling weights the averaging is weighted and so is the
         // outcome model's score (see `OutcomeFit::influence`).

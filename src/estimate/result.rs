@@ -78,6 +78,12 @@ pub struct Estimate {
     /// The subgroup the effect is within (absent: everyone).
     #[serde(skip_serializing_if = "Option::is_none")]
     pub subgroup: Option<SubgroupLevel>,
+    /// Time to event: the time at which the arms are compared.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub horizon: Option<f64>,
+    /// Time to event: what is compared (risk, survival, restricted mean).
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub measure: Option<crate::survival::Measure>,
     /// Point estimate on `scale`.
     pub estimate: f64,
     /// Standard error on `scale` (delta method; for ratio and odds the

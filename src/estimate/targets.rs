@@ -61,13 +61,22 @@ pub enum Target {
     Shifted,
     /// The exposure as observed.
     Observed,
+    /// Time to event: survival at level code `.0` at time `.1`.
+    Survival(usize, f64),
+    /// Time to event: the risk (1 - survival) at level `.0` by time `.1`.
+    Risk(usize, f64),
+    /// Time to event: the restricted mean survival time at level `.0` up
+    /// to time `.1`.
+    Rmst(usize, f64),
 }
 
 impl Target {
     /// How the exposure column is filled for this target.
     pub fn setting(self) -> Setting {
         match self {
-            Target::Level(k) => Setting::Fixed(k as f64),
+            Target::Level(k) | Target::Survival(k, _) | Target::Risk(k, _) | Target::Rmst(k, _) => {
+                Setting::Fixed(k as f64)
+            }
             Target::Dose(x) => Setting::Fixed(x),
             Target::Shifted => Setting::Shift(1.0),
             Target::Observed => Setting::Observed,

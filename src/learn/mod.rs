@@ -34,6 +34,7 @@ pub use propensity::{Propensity, separating_terms};
 
 use crate::estimate::ExposureKind;
 use crate::problem::Problem;
+use crate::survival::hazard::Hazard;
 use crate::{Error, Result};
 
 /// A nuisance model: fitted on the problem's rows under frequency weights
@@ -102,6 +103,9 @@ pub struct Fits {
     outcome: Option<Result<OutcomeFit>>,
     exposure: Option<Result<ExposureModel>>,
     observed: Option<Result<Observed>>,
+    /// A time-to-event outcome's model: the pooled logistic hazard model
+    /// with the adjustment set (in place of the outcome model).
+    hazard: Option<Result<Hazard>>,
 }
 
 impl Fits {
@@ -117,8 +121,9 @@ impl Fits {
             .is_some()
             .then(|| Observed::fit(p, w, full.and_then(|f| f.observed().ok().flatten())));
         let outcome = |w: Option<&[f64]>| OutcomeFit::fit(p, w, full.and_then(|f| f.outcome().ok()));
+        let survival = p.survival.is_some();
         Fits {
-            outcome: needs.outcome.then(|| match &observed {
+            outcome: (needs.outcome && !survival).then(|| match &observed {
                 None => outcome(w),
                 Some(Err(_)) => available(&observed, "observation").map(|_| unreachable_fit()),
                 Some(Ok(o)) => {
@@ -127,6 +132,9 @@ impl Fits {
                         .collect();
                     outcome(Some(&cw))
                 }
+            }),
+            hazard: (needs.outcome && survival).then(|| {
+                crate::survival::methods::standardising_model(p, w, full.and_then(|f| f.hazard().ok()))
             }),
             exposure: needs
                 .exposure
@@ -147,6 +155,11 @@ impl Fits {
     /// The outcome model, or why it is missing.
     pub fn outcome(&self) -> Result<&OutcomeFit> {
         available(&self.outcome, "outcome")
+    }
+
+    /// The hazard model of a time-to-event outcome, or why it is missing.
+    pub fn hazard(&self) -> Result<&Hazard> {
+        available(&self.hazard, "hazard")
     }
 
     /// The exposure model, or why it is missing.

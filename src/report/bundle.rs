@@ -10,7 +10,7 @@ use super::doc::{Block, DataTable, Doc, Exporter, Table};
 use super::estimate_doc::{self, figure_paths};
 use super::graph_figure::{self, Marks};
 use super::sensitivity_figure::{self, benchmark_yardsticks};
-use super::{balance_figure, curve_figure, forest_figure, markdown::Markdown};
+use super::{balance_figure, curve_figure, forest_figure, markdown::Markdown, survival_figure};
 use super::{csv, latex};
 use crate::Result;
 use crate::analysis::Analysis;
@@ -58,7 +58,9 @@ pub fn figures(plan: &Plan, a: Option<&Analysis>, prefix: &str) -> Result<Vec<Fi
     {
         out.push(file(&balance, balance_figure::svg(&d.balance)));
     }
-    if !a.curves.is_empty() {
+    if let Some(plot) = survival_plot(a) {
+        out.push(file(&curve, survival_figure::survival_svg(&plot)));
+    } else if !a.curves.is_empty() {
         out.push(file(&curve, curve_figure::curve_svg(&curve_plot(a))));
     }
     if let Some(plot) = forest_plot(a) {
@@ -73,6 +75,50 @@ pub fn figures(plan: &Plan, a: Option<&Analysis>, prefix: &str) -> Result<Vec<Fi
         out.push(file(&tipping, sensitivity_figure::figure(s.evalue.as_ref(), r2)?));
     }
     Ok(out)
+}
+
+/// The survival figure's content from an analysis with a time-to-event
+/// outcome: the first method's curves.
+fn survival_plot(a: &Analysis) -> Option<survival_figure::SurvivalPlot> {
+    let s = a.survival.as_ref()?;
+    let first = a.curves.first()?;
+    let level = a.estimates.first().map_or(0.95, |e| e.estimate.level);
+    let series = a
+        .curves
+        .iter()
+        .filter(|c| c.method == first.method)
+        .map(|c| {
+            let label = c.level.clone().unwrap_or_default();
+            let at_risk = s
+                .at_risk
+                .iter()
+                .find(|r| r.level == label)
+                .map(|r| r.counts.clone())
+                .unwrap_or_default();
+            survival_figure::SurvivalSeries {
+                label,
+                points: c
+                    .points
+                    .iter()
+                    .map(|q| (q.x, q.estimate, q.ci[0], q.ci[1]))
+                    .collect(),
+                at_risk,
+            }
+        })
+        .collect();
+    Some(survival_figure::SurvivalPlot {
+        title: format!(
+            "Survival (no {}) had everyone had each level of {} ({})",
+            a.outcome,
+            a.exposure,
+            estimate_doc::method_label(&first.method)
+        ),
+        x_label: format!("time ({})", s.time),
+        level,
+        horizons: s.horizons.clone(),
+        at_risk_times: s.at_risk_times.clone(),
+        series,
+    })
 }
 
 /// The dose-response figure's content from an analysis.

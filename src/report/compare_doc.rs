@@ -4,7 +4,7 @@
 //! with the reason.
 
 use super::doc::{Align, Block, Table};
-use super::estimate_doc::{evalue_cell, num, scale_label, set_text, shown, shown_interval};
+use super::estimate_doc::{evalue_cell, num, row_interval, row_label, row_shown, set_text, value};
 use crate::analysis::{Analysis, CheckSummary};
 use crate::graph::GraphDiff;
 use crate::identify::Strategy;
@@ -170,9 +170,12 @@ pub fn comparison_table(runs: &[Run], level: f64) -> Table {
                                 super::subgroup_doc::level_words(&s.variable, &s.level)
                             ))
                         ),
-                        scale_label(a, e.scale).into(),
-                        num(shown(a, e.scale, e.estimate)),
-                        shown_interval(a, e.scale, e.ci),
+                        match e.horizon {
+                            Some(h) => format!("{} at {}", row_label(a, e), value(h)),
+                            None => row_label(a, e),
+                        },
+                        num(row_shown(a, e, e.estimate)),
+                        row_interval(a, e, e.ci),
                         ev,
                     ]);
                 }

@@ -154,6 +154,9 @@ pub fn estimates(graph: &str, a: &Analysis) -> DataTable {
     if subgroups {
         columns.extend(["subgroup_variable", "subgroup_level"]);
     }
+    if a.survival.is_some() {
+        columns.extend(["horizon", "measure"]);
+    }
     let mut t = DataTable::new("estimates", &columns);
     let [strategy, set] = strategy_cells(a);
     let note = if a.identification.directed_path {
@@ -169,12 +172,27 @@ pub fn estimates(graph: &str, a: &Analysis) -> DataTable {
             .iter()
             .find(|c| Some(&c.contrast) == e.contrast() && c.method == e.method)
             .and_then(|c| c.evalue.as_ref());
-        let ev = own.or_else(|| {
+        // Time to event: each risk ratio's own E-value, none elsewhere.
+        let timed = a.survival.as_ref().map(|_| {
             a.sensitivity
-                .evalue
-                .as_ref()
-                .filter(|_| a.details.evalue_method.as_deref() == Some(e.method.as_str()))
-                .filter(|_| a.sensitivity.by_contrast.is_empty())
+                .by_horizon
+                .iter()
+                .find(|h| {
+                    h.method == e.method
+                        && Some(h.horizon) == e.horizon
+                        && h.contrast.as_ref() == e.contrast()
+                        && e.scale == crate::problem::Scale::Ratio
+                })
+                .map(|h| &h.evalue)
+        });
+        let ev = timed.unwrap_or_else(|| {
+            own.or_else(|| {
+                a.sensitivity
+                    .evalue
+                    .as_ref()
+                    .filter(|_| a.details.evalue_method.as_deref() == Some(e.method.as_str()))
+                    .filter(|_| a.sensitivity.by_contrast.is_empty())
+            })
         });
         // A subgroup row's E-value is its own.
         let ev = if e.subgroup.is_some() {
@@ -241,6 +259,12 @@ pub fn estimates(graph: &str, a: &Analysis) -> DataTable {
             row.extend([
                 s.map_or(Cell::Empty, |s| text(&s.variable)),
                 s.map_or(Cell::Empty, |s| text(&s.level)),
+            ]);
+        }
+        if a.survival.is_some() {
+            row.extend([
+                Cell::opt(e.horizon),
+                e.measure.map_or(Cell::Empty, |m| text(m.words())),
             ]);
         }
         t.row(row);

@@ -92,12 +92,13 @@ const PLOT_H: f64 = 340.0;
 /// Gap between the plot frame and the data, so markers stay inside it.
 const INSET: f64 = 10.0;
 const MARKER: f64 = 9.0;
-const CAUTION: &str = "An estimate is only as valid as the declared graph and the usual assumptions.";
+pub(super) const CAUTION: &str =
+    "An estimate is only as valid as the declared graph and the usual assumptions.";
 
 /// Colour, dash pattern and marker of the `i`th series.
 /// Beyond four series the marker shifts, so no two of the first sixteen
 /// series look alike.
-fn style(i: usize) -> (&'static str, &'static str, Shape) {
+pub(super) fn style(i: usize) -> (&'static str, &'static str, Shape) {
     let shapes = [Shape::Circle, Shape::Square, Shape::Triangle, Shape::Diamond];
     let shape = shapes[(i + i / 4) % 4];
     match i % 4 {
@@ -108,14 +109,14 @@ fn style(i: usize) -> (&'static str, &'static str, Shape) {
     }
 }
 
-fn line_style(i: usize) -> String {
+pub(super) fn line_style(i: usize) -> String {
     let (colour, dash, _) = style(i);
     format!(r#"stroke="{colour}" stroke-width="2.2" stroke-linejoin="round"{dash}"#)
 }
 
 /// A band's fill and faint edge; lighter when three or more bands may
 /// overlap, so that each stays traceable by its edge.
-fn band_style(i: usize, count: usize) -> String {
+pub(super) fn band_style(i: usize, count: usize) -> String {
     let colour = style(i).0;
     let fill = if count <= 2 { 0.16 } else { 0.1 };
     format!(
@@ -127,7 +128,7 @@ fn marker_style(i: usize) -> String {
     format!(r#"fill="{}" stroke="white" stroke-width="1""#, style(i).0)
 }
 
-fn text_style() -> String {
+pub(super) fn text_style() -> String {
     format!(r#"fill="{}""#, ink::TEXT)
 }
 

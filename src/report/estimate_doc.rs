@@ -116,6 +116,29 @@ pub fn shown(a: &Analysis, scale: Scale, v: f64) -> f64 {
     }
 }
 
+/// The scale label of an estimate row: a time-to-event row's measure and
+/// scale ("restricted mean difference"), else [`scale_label`].
+pub fn row_label(a: &Analysis, e: &crate::estimate::Estimate) -> String {
+    match e.measure {
+        Some(crate::survival::Measure::RestrictedMean) => "restricted mean difference".into(),
+        _ => scale_label(a, e.scale).into(),
+    }
+}
+
+/// A value of an estimate row as shown in reading text: a restricted mean
+/// in the time's unit, others by [`shown`].
+pub fn row_shown(a: &Analysis, e: &crate::estimate::Estimate, v: f64) -> f64 {
+    match e.measure {
+        Some(crate::survival::Measure::RestrictedMean) => v,
+        _ => shown(a, e.scale, v),
+    }
+}
+
+/// An interval of an estimate row as shown in reading text.
+pub fn row_interval(a: &Analysis, e: &crate::estimate::Estimate, ci: [f64; 2]) -> String {
+    interval([row_shown(a, e, ci[0]), row_shown(a, e, ci[1])])
+}
+
 /// An interval on `scale` as shown in reading text (see [`shown`]).
 pub fn shown_interval(a: &Analysis, scale: Scale, ci: [f64; 2]) -> String {
     interval([shown(a, scale, ci[0]), shown(a, scale, ci[1])])
@@ -135,9 +158,13 @@ pub fn estimates_table(a: &Analysis) -> Table {
     };
     let boot_head = boot.map(|b| format!("{pct} interval (bootstrap {})", bootstrap_label(&b.interval)));
     let contrasts = a.estimates.iter().any(|e| e.estimate.contrast().is_some());
+    let horizons = a.survival.is_some();
     let mut heads = vec!["method"];
     if contrasts {
         heads.push("contrast");
+    }
+    if horizons {
+        heads.push("time");
     }
     heads.extend([
         "estimand",
@@ -162,21 +189,24 @@ pub fn estimates_table(a: &Analysis) -> Table {
     }
     for it in a.estimates.iter().filter(|e| e.estimate.subgroup.is_none()) {
         let e = &it.estimate;
-        let sh = |v: f64| num(shown(a, e.scale, v));
+        let sh = |v: f64| num(row_shown(a, e, v));
         let mut row = vec![method_label(&e.method).into()];
         if contrasts {
             row.push(e.contrast().map_or("-".into(), |c| c.words()));
         }
+        if horizons {
+            row.push(e.horizon.map_or("-".into(), value));
+        }
         row.extend([
             e.estimand.to_string(),
-            scale_label(a, e.scale).into(),
+            row_label(a, e),
             sh(e.estimate),
             sh(e.std_error),
-            shown_interval(a, e.scale, it.analytic_ci),
+            row_interval(a, e, it.analytic_ci),
         ]);
         if boot.is_some() {
             row.push(match &it.bootstrap {
-                Some(b) => shown_interval(a, e.scale, b.ci),
+                Some(b) => row_interval(a, e, b.ci),
                 None => "-".into(),
             });
         }
@@ -217,6 +247,13 @@ pub fn estimates_table(a: &Analysis) -> Table {
             "Analytic intervals use the sandwich (M-estimation) standard error.".into()
         },
     );
+    if let Some(s) = &a.survival {
+        t.notes.push(format!(
+            "Time to event: risks by each time (in the unit of {}) and the restricted mean survival time up \
+             to the last, under each exposure level compared.",
+            s.time
+        ));
+    }
     if a.binary_outcome && a.estimates.iter().any(|e| e.estimate.scale == Scale::Difference) {
         t.notes.push(
             "Risk differences are in percentage points (100 times the difference in risk); the results file \
@@ -365,6 +402,9 @@ pub fn missing_text(m: &crate::data::MissingData, outcome: &str) -> String {
 /// The dose-response curves as one table: a row per dose, a column per
 /// method (estimate and interval).
 pub fn curves_table(a: &Analysis) -> Option<Table> {
+    if a.survival.is_some() {
+        return survival_table(a);
+    }
     let first = a.curves.first()?;
     let level = a.estimates.first().map_or(0.95, |e| e.estimate.level);
     let heads: Vec<String> = std::iter::once(format!("dose of {}", a.exposure))
@@ -394,6 +434,66 @@ pub fn curves_table(a: &Analysis) -> Option<Table> {
     t.notes.push(format!(
         "Each cell: the estimated mean with its pointwise {:.0}% interval.",
         100.0 * level
+    ));
+    Some(t)
+}
+
+/// The survival curves at the horizons: a row per time, a column per
+/// method and exposure level (estimate and interval).
+fn survival_table(a: &Analysis) -> Option<Table> {
+    let s = a.survival.as_ref()?;
+    let level = a.estimates.first().map_or(0.95, |e| e.estimate.level);
+    let heads: Vec<String> = std::iter::once(format!("time ({})", s.time))
+        .chain(a.curves.iter().map(|c| {
+            format!(
+                "{}, {}",
+                method_label(&c.method),
+                c.level.as_deref().unwrap_or("-")
+            )
+        }))
+        .collect();
+    let heads: Vec<&str> = heads.iter().map(String::as_str).collect();
+    let mut t = Table::new(
+        &format!(
+            "Survival (no {}) had everyone had each level of {}",
+            a.outcome, a.exposure
+        ),
+        &heads,
+    );
+    for &h in &s.horizons {
+        let mut row = vec![value(h)];
+        for c in &a.curves {
+            row.push(c.points.iter().find(|p| p.x == h).map_or("-".into(), |p| {
+                format!("{} ({})", num(p.estimate), interval(p.ci))
+            }));
+        }
+        t.row(row);
+    }
+    t.notes.push(format!(
+        "Each cell: the survival probability with its pointwise {:.0}% interval; the whole curves are in \
+         the results file and the figure.",
+        100.0 * level
+    ));
+    t.notes.push(format!(
+        "Numbers at risk at {}: {}.",
+        s.at_risk_times
+            .iter()
+            .map(|&x| value(x))
+            .collect::<Vec<_>>()
+            .join(", "),
+        s.at_risk
+            .iter()
+            .map(|r| format!(
+                "{} {}",
+                r.level,
+                r.counts
+                    .iter()
+                    .map(|c| c.to_string())
+                    .collect::<Vec<_>>()
+                    .join(", ")
+            ))
+            .collect::<Vec<_>>()
+            .join("; ")
     ));
     Some(t)
 }
@@ -702,7 +802,11 @@ pub fn analysis_blocks(a: &Analysis, figures: Option<&str>) -> Vec<Block> {
         b.push(Block::Table(t));
         b.extend(fig(
             3,
-            "The dose-response curve of each method, with its pointwise interval",
+            if a.survival.is_some() {
+                "The first method's survival curves under each exposure level, with pointwise intervals and the numbers at risk"
+            } else {
+                "The dose-response curve of each method, with its pointwise interval"
+            },
         ));
     }
     b.extend(super::subgroup_doc::subgroup_blocks(

@@ -23,6 +23,7 @@ pub mod sensitivity_doc;
 pub mod sensitivity_figure;
 pub mod sensitivity_text;
 pub mod subgroup_doc;
+pub mod survival_figure;
 pub mod svg;
 pub mod text;
 

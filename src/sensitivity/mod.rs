@@ -32,6 +32,26 @@ pub struct SensitivityBlock {
     /// E-value and robustness value.
     #[serde(skip_serializing_if = "Vec::is_empty")]
     pub by_contrast: Vec<ContrastSensitivity>,
+    /// Time to event: the E-value of each risk ratio of the first method,
+    /// per horizon (and contrast of levels).
+    #[serde(skip_serializing_if = "Vec::is_empty")]
+    pub by_horizon: Vec<HorizonSensitivity>,
+}
+
+/// The E-value of a time-to-event risk ratio at one horizon.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct HorizonSensitivity {
+    /// The method whose estimate is read.
+    pub method: String,
+    /// The horizon.
+    pub horizon: f64,
+    /// The two levels compared (categorical exposure).
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub contrast: Option<crate::estimate::ContrastLabel>,
+    /// The risk ratio.
+    pub risk_ratio: f64,
+    /// Its E-value (a risk ratio needs no conversion, whatever the risk).
+    pub evalue: evalue::EValue,
 }
 
 /// The sensitivity of one contrast.
