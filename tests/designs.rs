@@ -61,3 +61,43 @@ pub fn surveyed(seed: u64, n: usize) -> Dataset {
     }
     dataset(vec![("x", x), ("a", a), ("y", y), ("w", w)])
 }
+
+/// `n` rows in which x confounds and modifies the effect (ATE 2) and
+/// the outcome is missing more often for larger x (missing at random given
+/// x; about 40% missing).
+pub fn outcome_missing(seed: u64, n: usize) -> Dataset {
+    let mut r = rng(seed);
+    let (mut x, mut a, mut y) = (vec![], vec![], vec![]);
+    for _ in 0..n {
+        let xi = normal(&mut r);
+        let ai = f64::from(u8::from(r.random::<f64>() < 1.0 / (1.0 + (-0.5 * xi).exp())));
+        let yi = 1.0 + ai * (2.0 + xi) + xi + normal(&mut r);
+        let seen = r.random::<f64>() < 1.0 / (1.0 + (-(0.5 - 1.5 * xi)).exp());
+        x.push(xi);
+        a.push(ai);
+        y.push(if seen { yi } else { f64::NAN });
+    }
+    dataset(vec![("x", x), ("a", a), ("y", y)])
+}
+
+/// `n` rows with true effect 2: l ~ N(0, 1), a ~ Bernoulli(expit(0.5 l)),
+/// y = 1 + 2 a + l + N(0, 1). The outcome is missing with a probability
+/// that depends on the exposure (always observed); the covariate, on rows
+/// whose outcome is observed, with a probability rising steeply with the
+/// outcome. Missing at random: each pattern depends on observed values.
+pub fn missing_at_random(seed: u64, n: usize) -> Dataset {
+    let mut r = rng(seed);
+    let expit = |x: f64| 1.0 / (1.0 + (-x).exp());
+    let (mut l, mut a, mut y) = (vec![], vec![], vec![]);
+    for _ in 0..n {
+        let li = normal(&mut r);
+        let ai = f64::from(u8::from(r.random::<f64>() < expit(0.5 * li)));
+        let yi = 1.0 + 2.0 * ai + li + normal(&mut r);
+        let y_missing = r.random::<f64>() < expit(-1.5 + ai);
+        let l_missing = !y_missing && r.random::<f64>() < expit(-2.0 + 1.5 * (yi - 2.0));
+        l.push(if l_missing { f64::NAN } else { li });
+        a.push(ai);
+        y.push(if y_missing { f64::NAN } else { yi });
+    }
+    dataset(vec![("l", l), ("a", a), ("y", y)])
+}

@@ -3,13 +3,11 @@
 //! JSON, text and CSV fields, and refusals. The pooling formulas are
 //! checked against a numpy/scipy reproduction in `src/infer/pool.rs`.
 
-use crate::estimate_sim::{dataset, normal, rng};
 use crate::helpers::{repo, run_bounded, write};
 use causeway::analysis::{self, Options};
 use causeway::estimate::Spec;
 use causeway::plan::{AdjustChoice, Plan, Roles};
 use causeway::problem::Missing;
-use rand::RngExt;
 use serde_json::Value;
 use std::time::Duration;
 
@@ -24,28 +22,6 @@ fn plan(columns: &[&str]) -> Plan {
     Plan::new(roles, &AdjustChoice::Optimal, false).unwrap()
 }
 
-/// `n` rows with true effect 2: l ~ N(0, 1), a ~ Bernoulli(expit(0.5 l)),
-/// y = 1 + 2 a + l + N(0, 1). The outcome is missing with a probability
-/// that depends on the exposure (always observed); the covariate, on rows
-/// whose outcome is observed, with a probability rising steeply with the
-/// outcome. Missing at random: each pattern depends on observed values.
-fn sample(seed: u64, n: usize) -> causeway::data::Dataset {
-    let mut r = rng(seed);
-    let expit = |x: f64| 1.0 / (1.0 + (-x).exp());
-    let (mut l, mut a, mut y) = (vec![], vec![], vec![]);
-    for _ in 0..n {
-        let li = normal(&mut r);
-        let ai = f64::from(u8::from(r.random::<f64>() < expit(0.5 * li)));
-        let yi = 1.0 + 2.0 * ai + li + normal(&mut r);
-        let y_missing = r.random::<f64>() < expit(-1.5 + ai);
-        let l_missing = !y_missing && r.random::<f64>() < expit(-2.0 + 1.5 * (yi - 2.0));
-        l.push(if l_missing { f64::NAN } else { li });
-        a.push(ai);
-        y.push(if y_missing { f64::NAN } else { yi });
-    }
-    dataset(vec![("l", l), ("a", a), ("y", y)])
-}
-
 // Seeded coverage simulation (120 repetitions of 600 rows, 10 imputations):
 // the complete cases' regression estimate is biased (selection on the
 // outcome through the covariate's missingness) and its intervals rarely
@@ -54,6 +30,7 @@ fn sample(seed: u64, n: usize) -> causeway::data::Dataset {
 // (within three binomial standard errors, 0.95 +- 0.06).
 #[test]
 fn imputation_removes_the_complete_case_bias_with_near_nominal_coverage() {
+    use crate::designs::missing_at_random as sample;
     let reps = 120;
     let p = plan(&["l", "a", "y"]);
     let opts = |missing| Options {

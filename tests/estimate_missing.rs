@@ -9,7 +9,6 @@ use crate::estimate_nhefs::{COVARIATES, nhefs, nhefs_spec};
 use crate::estimate_sim::{dataset, normal, rng};
 use crate::helpers::{data, fixture, method_row as row, rel_close as close, run_in};
 use causeway::estimate::{Missing, Problem, Spec, method};
-use rand::RngExt;
 use serde_json::Value;
 
 fn reference() -> Value {
@@ -133,24 +132,6 @@ fn complete_cases_report_the_missing_pattern_in_every_format() {
     );
 }
 
-/// `n` rows in which x confounds and modifies the effect (ATE 2) and
-/// the outcome is missing more often for larger x (missing at random given
-/// x; about 40% missing).
-fn sample(seed: u64, n: usize) -> causeway::data::Dataset {
-    let mut r = rng(seed);
-    let (mut x, mut a, mut y) = (vec![], vec![], vec![]);
-    for _ in 0..n {
-        let xi = normal(&mut r);
-        let ai = f64::from(u8::from(r.random::<f64>() < 1.0 / (1.0 + (-0.5 * xi).exp())));
-        let yi = 1.0 + ai * (2.0 + xi) + xi + normal(&mut r);
-        let seen = r.random::<f64>() < 1.0 / (1.0 + (-(0.5 - 1.5 * xi)).exp());
-        x.push(xi);
-        a.push(ai);
-        y.push(if seen { yi } else { f64::NAN });
-    }
-    dataset(vec![("x", x), ("a", a), ("y", y)])
-}
-
 // Seeded coverage simulation (200 repetitions of 1000 rows, the outcome
 // missing at random given x, which also modifies the effect): complete cases
 // are biased (the complete rows have smaller x, so a smaller effect) and rarely
@@ -158,6 +139,7 @@ fn sample(seed: u64, n: usize) -> causeway::data::Dataset {
 // standard errors, 0.95 +- 0.046) with IPW, regression and AIPW.
 #[test]
 fn weighting_a_missing_outcome_removes_the_complete_case_bias() {
+    use crate::designs::outcome_missing as sample;
     let reps = 200;
     let methods = ["ipw", "regression", "aipw"];
     let mut cover = [0usize; 3];

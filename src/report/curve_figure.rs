@@ -447,18 +447,7 @@ pub fn curve_svg(plot: &CurvePlot) -> String {
     let py = |v: f64| bottom - INSET - (v - y_lo) / (y_hi - y_lo) * (PLOT_H - 2.0 * INSET);
 
     let mut c = Svg::new(WIDTH, height);
-    let mut y = MARGIN;
-    for l in &title {
-        y += TITLE + 5.0;
-        c.text(
-            MARGIN,
-            y - 5.0,
-            TITLE,
-            "start",
-            &format!(r#"{ts} font-weight="bold""#),
-            l,
-        );
-    }
+    let mut y = c.title_lines(MARGIN, MARGIN, TITLE, &ts, &title);
     y += 8.0;
     // Legend: band swatch, line and marker, then the label.
     c.raw(r#"<g class="legend">"#);

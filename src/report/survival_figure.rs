@@ -115,18 +115,7 @@ pub fn survival_svg(plot: &SurvivalPlot) -> String {
     let py = |v: f64| bottom - v.clamp(0.0, 1.0) * PLOT_H;
 
     let mut c = Svg::new(WIDTH, height);
-    let mut y = MARGIN;
-    for l in &title {
-        y += TITLE + 5.0;
-        c.text(
-            MARGIN,
-            y - 5.0,
-            TITLE,
-            "start",
-            &format!(r#"{ts} font-weight="bold""#),
-            l,
-        );
-    }
+    c.title_lines(MARGIN, MARGIN, TITLE, &ts, &title);
     // Legend.
     let mut lx = MARGIN;
     let cy = legend_top + ROW / 2.0;

@@ -125,6 +125,23 @@ impl Svg {
         self.body.push('\n');
     }
 
+    /// Bold title lines of `size` from the left margin `x`, the first
+    /// below `y`; returns the `y` under the last line.
+    pub fn title_lines(&mut self, x: f64, mut y: f64, size: f64, style: &str, lines: &[String]) -> f64 {
+        for l in lines {
+            y += size + 5.0;
+            self.text(
+                x,
+                y - 5.0,
+                size,
+                "start",
+                &format!(r#"{style} font-weight="bold""#),
+                l,
+            );
+        }
+        y
+    }
+
     /// A text label; `anchor` is start, middle or end.
     pub fn text(&mut self, x: f64, y: f64, size: f64, anchor: &str, style: &str, s: &str) {
         let _ = writeln!(
