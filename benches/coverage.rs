@@ -6,7 +6,7 @@
 //! standard error (sqrt(p (1 - p) / reps)).
 //!
 //! Run: `cargo bench --bench coverage` (set `CAUSEWAY_BENCH_REPS` for the
-//! number of repetitions, default 1000; multiple imputation, which analyses
+//! number of repetitions, default 5000; multiple imputation, which analyses
 //! 20 datasets per repetition, runs a fifth as many).
 
 #[path = "../tests/designs.rs"]
@@ -163,7 +163,7 @@ fn main() {
     let reps: u64 = std::env::var("CAUSEWAY_BENCH_REPS")
         .ok()
         .and_then(|v| v.parse().ok())
-        .unwrap_or(1000);
+        .unwrap_or(5000);
     println!("95% intervals; repetitions per design as shown");
     println!(
         "{:<70} {:>5} {:<11} {:>9} {:>9} {:>9} {:>7}",

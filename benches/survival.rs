@@ -139,11 +139,11 @@ fn main() {
     for e in &boot.estimates {
         if let Some(b) = &e.bootstrap {
             println!(
-                "{:>10} {:?} {} at {:?}: {:.6}, bootstrap CI {:.5} to {:.5} ({} failed)",
+                "{:>10} {} {} at {}: {:.6}, bootstrap CI {:.5} to {:.5} ({} failed)",
                 e.estimate.method,
-                e.estimate.measure,
+                e.estimate.measure.map_or("", |m| m.words()),
                 e.estimate.scale,
-                e.estimate.horizon,
+                e.estimate.horizon.map_or(f64::NAN, |h| h),
                 e.estimate.estimate,
                 b.ci[0],
                 b.ci[1],
