@@ -485,21 +485,7 @@ pub fn curve_svg(plot: &CurvePlot) -> String {
     }
 
     // The plot frame, grid and axes.
-    c.rect(
-        plot_x,
-        top,
-        plot_w,
-        PLOT_H,
-        &format!(
-            r#"class="plot-area" fill="none" stroke="{}" stroke-width="0.8""#,
-            ink::MUTED
-        ),
-    );
-    let grid = format!(
-        r#"stroke="{}" stroke-width="0.5" stroke-dasharray="1 3""#,
-        ink::MUTED
-    );
-    let axis = format!(r#"stroke="{}" stroke-width="1""#, ink::TEXT);
+    let (grid, axis) = c.plot_frame(plot_x, top, plot_w, PLOT_H);
     for (t, l) in y_ticks.iter().zip(&y_labels.labels) {
         let yy = py(*t);
         c.line(plot_x, yy, plot_x + plot_w, yy, &grid);

@@ -126,21 +126,7 @@ pub fn survival_svg(plot: &SurvivalPlot) -> String {
         lx += 66.0 + label_width(&s.label, SMALL);
     }
     // Frame, grid, axes.
-    let grid = format!(
-        r#"stroke="{}" stroke-width="0.5" stroke-dasharray="1 3""#,
-        ink::MUTED
-    );
-    let axis = format!(r#"stroke="{}" stroke-width="1""#, ink::TEXT);
-    c.rect(
-        plot_x,
-        top,
-        plot_w,
-        PLOT_H,
-        &format!(
-            r#"class="plot-area" fill="none" stroke="{}" stroke-width="0.8""#,
-            ink::MUTED
-        ),
-    );
+    let (grid, axis) = c.plot_frame(plot_x, top, plot_w, PLOT_H);
     for &t in &y_ticks {
         let yy = py(t);
         c.line(plot_x, yy, plot_x + plot_w, yy, &grid);

@@ -125,6 +125,29 @@ impl Svg {
         self.body.push('\n');
     }
 
+    /// The frame of a plot area (the curve figures' look): a thin muted
+    /// border around `w` by `h` from (`x`, `top`). Returns the styles of
+    /// its grid lines and of its axis ticks.
+    pub fn plot_frame(&mut self, x: f64, top: f64, w: f64, h: f64) -> (String, String) {
+        self.rect(
+            x,
+            top,
+            w,
+            h,
+            &format!(
+                r#"class="plot-area" fill="none" stroke="{}" stroke-width="0.8""#,
+                ink::MUTED
+            ),
+        );
+        (
+            format!(
+                r#"stroke="{}" stroke-width="0.5" stroke-dasharray="1 3""#,
+                ink::MUTED
+            ),
+            format!(r#"stroke="{}" stroke-width="1""#, ink::TEXT),
+        )
+    }
+
     /// Bold title lines of `size` from the left margin `x`, the first
     /// below `y`; returns the `y` under the last line.
     pub fn title_lines(&mut self, x: f64, mut y: f64, size: f64, style: &str, lines: &[String]) -> f64 {

@@ -228,11 +228,7 @@ pub fn censoring_weights(p: &Problem, fw: Option<&[f64]>) -> Result<Vec<f64>> {
         .zip(&ev)
         .map(|(&mi, &e)| if e { mi - 1 } else { mi })
         .collect();
-    let mut offsets = Vec::with_capacity(p.n() + 1);
-    offsets.push(0);
-    for &r in &risk {
-        offsets.push(offsets.last().copied().unwrap_or(0) + r);
-    }
+    let offsets = row_offsets(&risk);
     let total = *offsets.last().unwrap_or(&0);
     let mut y = vec![0.0; total];
     let mut rw = vec![0.0; total];
@@ -273,6 +269,17 @@ pub fn censoring_weights(p: &Problem, fw: Option<&[f64]>) -> Result<Vec<f64>> {
     Ok(out)
 }
 
+/// Where each person's person-period rows start, from their row counts
+/// (the last entry is the total).
+fn row_offsets(counts: &[usize]) -> Vec<usize> {
+    let mut offsets = Vec::with_capacity(counts.len() + 1);
+    offsets.push(0);
+    for &c in counts {
+        offsets.push(offsets.last().copied().unwrap_or(0) + c);
+    }
+    offsets
+}
+
 /// The covariate rows of the standardised model: the propensity design's
 /// rows (intercept and adjustment terms), column-major.
 fn covariates(p: &Problem) -> (Vec<f64>, usize) {
@@ -290,11 +297,7 @@ pub fn standardising_model(p: &Problem, w: Option<&[f64]>, full: Option<&Hazard>
     let (m, ev) = s.person_periods(p.y());
     let a = codes(p);
     let (x, q) = covariates(p);
-    let mut offsets = Vec::with_capacity(p.n() + 1);
-    offsets.push(0);
-    for &mi in &m {
-        offsets.push(offsets.last().copied().unwrap_or(0) + mi);
-    }
+    let offsets = row_offsets(&m);
     let total = *offsets.last().unwrap_or(&0);
     let mut y = vec![0.0; total];
     let mut rw = vec![0.0; total];
